@@ -1,0 +1,311 @@
+"""The series object, and reading it from a CSV file or pandas objects."""
+
+from __future__ import annotations
+
+import hashlib
+import math
+import warnings
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from bayesgrowth.data.periods import PeriodAxis, PeriodError, parse_periods
+
+__all__ = ["GrowthSeries", "InputError", "read_series", "MIN_OBSERVATIONS"]
+
+#: Fewest observations a growth curve is fitted to.
+MIN_OBSERVATIONS = 3
+
+
+class InputError(ValueError):
+    """Input that cannot be used, with a one-line message naming where and what to do."""
+
+
+@dataclass(frozen=True)
+class GrowthSeries:
+    """A positive-valued series on a regular calendar, sorted by period.
+
+    Parameters
+    ----------
+    values : numpy.ndarray
+        Observed values, all finite and > 0, sorted by period.
+    t : numpy.ndarray
+        Integer time index of each value: periods since the first observation.
+        Gaps (missing periods) keep their true index.
+    axis : PeriodAxis
+        The calendar, used to label past and future periods in the input's style.
+    name : str
+        A display name for the series.
+    source : str
+        Where the series came from (a file name, or ``"DataFrame"``).
+    """
+
+    values: np.ndarray
+    t: np.ndarray
+    axis: PeriodAxis
+    name: str = "series"
+    source: str = "DataFrame"
+    gaps: tuple[str, ...] = field(default=())
+
+    @property
+    def n(self) -> int:
+        """Number of observations."""
+        return int(self.values.size)
+
+    @property
+    def labels(self) -> list[str]:
+        """Period labels of the observations, in the input's style."""
+        return self.axis.labels(self.t)
+
+    @property
+    def t_last(self) -> int:
+        """Time index of the last observation."""
+        return int(self.t[-1])
+
+    @property
+    def log_values(self) -> np.ndarray:
+        """Natural log of the values."""
+        return np.log(self.values)
+
+    def future_t(self, horizon: int) -> np.ndarray:
+        """Time indices of the ``horizon`` periods after the last observation."""
+        return self.t_last + np.arange(1, horizon + 1)
+
+    def future_labels(self, horizon: int) -> list[str]:
+        """Labels of the ``horizon`` periods after the last observation."""
+        return self.axis.labels(self.future_t(horizon))
+
+    def index_of(self, label: str) -> int:
+        """Position of the observation whose period label is ``label``.
+
+        Raises
+        ------
+        InputError
+            If no observation has that label.
+        """
+        wanted = label.strip()
+        labels = self.labels
+        if wanted in labels:
+            return labels.index(wanted)
+        try:
+            _, t = parse_periods([labels[0], wanted])
+        except PeriodError:
+            t = None
+        if t is not None:
+            hits = np.flatnonzero(self.t == t[1])
+            if hits.size:
+                return int(hits[0])
+        raise InputError(
+            f"period {label!r} is not in the series (first {labels[0]}, last {labels[-1]})"
+        )
+
+    def head(self, n: int) -> GrowthSeries:
+        """The first ``n`` observations, on the same calendar (for backtests)."""
+        return self.take(np.arange(n))
+
+    def take(self, positions: np.ndarray) -> GrowthSeries:
+        """The observations at ``positions`` (sorted), on the same calendar."""
+        positions = np.sort(np.asarray(positions, dtype=int))
+        return GrowthSeries(
+            values=self.values[positions],
+            t=self.t[positions],
+            axis=self.axis,
+            name=self.name,
+            source=self.source,
+        )
+
+    def fingerprint(self) -> str:
+        """SHA-256 of the periods and values, to tell later whether the input changed."""
+        digest = hashlib.sha256()
+        for label, value in zip(self.labels, self.values, strict=True):
+            digest.update(f"{label},{float(value)!r}\n".encode())
+        return digest.hexdigest()
+
+    def to_frame(self) -> pd.DataFrame:
+        """The series as a DataFrame with columns ``period``, ``t`` and ``value``."""
+        return pd.DataFrame({"period": self.labels, "t": self.t, "value": self.values})
+
+
+def _where(source: str, row: int | None, column: str | None) -> str:
+    parts = [source]
+    if row is not None:
+        parts.append(f"row {row}")
+    if column is not None:
+        parts.append(f"column {column!r}")
+    return ", ".join(parts)
+
+
+def _from_columns(
+    periods: list[str],
+    raw_values: list[str],
+    rows: list[int],
+    *,
+    source: str,
+    period_col: str,
+    value_col: str,
+    name: str,
+) -> GrowthSeries:
+    """Validate raw cells and build a series; ``rows`` are the rows as the user counts them."""
+    values = []
+    for raw, row in zip(raw_values, rows, strict=True):
+        text = str(raw).strip()
+        if text == "" or text.lower() in ("nan", "na", "none", "null"):
+            raise InputError(
+                f"{_where(source, row, value_col)}: value is missing; fill it in or delete the row"
+            )
+        try:
+            value = float(text)
+        except ValueError:
+            raise InputError(
+                f"{_where(source, row, value_col)}: {text!r} is not a number"
+            ) from None
+        if not math.isfinite(value):
+            raise InputError(f"{_where(source, row, value_col)}: {text!r} is not a finite number")
+        if value <= 0:
+            raise InputError(
+                f"{_where(source, row, value_col)}: value {text} is not above zero; the growth "
+                "model works on the log scale and needs every value > 0"
+            )
+        values.append(value)
+    for label, row in zip(periods, rows, strict=True):
+        if str(label).strip() == "":
+            raise InputError(f"{_where(source, row, period_col)}: period is missing")
+    if len(values) < MIN_OBSERVATIONS:
+        raise InputError(
+            f"{source}: {len(values)} observation(s); a growth curve needs at least "
+            f"{MIN_OBSERVATIONS}"
+        )
+    try:
+        axis, t = parse_periods([str(p).strip() for p in periods])
+    except PeriodError as exc:
+        raise InputError(f"{_where(source, rows[exc.position], period_col)}: {exc}") from None
+    t_arr = np.asarray(t, dtype=int)
+    order = np.argsort(t_arr, kind="stable")
+    t_sorted = t_arr[order]
+    dup = np.flatnonzero(np.diff(t_sorted) == 0)
+    if dup.size:
+        first, second = order[dup[0]], order[dup[0] + 1]
+        lo, hi = sorted((rows[first], rows[second]))
+        raise InputError(
+            f"{_where(source, hi, period_col)}: period {periods[second]!r} repeats row {lo}; "
+            "keep one value per period"
+        )
+    missing = sorted(set(range(int(t_sorted[-1]) + 1)) - set(t_sorted.tolist()))
+    gaps = tuple(axis.labels(missing))
+    if gaps:
+        shown = ", ".join(gaps[:5]) + (" ..." if len(gaps) > 5 else "")
+        warnings.warn(
+            f"{source}: {len(gaps)} missing period(s) ({shown}); they keep their place in time "
+            "and are not filled",
+            stacklevel=3,
+        )
+    return GrowthSeries(
+        values=np.asarray(values, dtype=float)[order],
+        t=t_sorted,
+        axis=axis,
+        name=name,
+        source=source,
+        gaps=gaps,
+    )
+
+
+def read_series(
+    data: str | Path | pd.DataFrame | pd.Series,
+    *,
+    period_col: str = "period",
+    value_col: str = "value",
+    name: str | None = None,
+) -> GrowthSeries:
+    """Read one growth series from a CSV file, a DataFrame or a Series.
+
+    Parameters
+    ----------
+    data : str, pathlib.Path, pandas.DataFrame or pandas.Series
+        A CSV file with a header row, a DataFrame with a period column and a value
+        column, or a Series whose index holds the periods.
+    period_col, value_col : str
+        Column names of the periods and the values.
+    name : str, optional
+        Display name; defaults to the file's stem or the Series' name.
+
+    Returns
+    -------
+    GrowthSeries
+        The validated series, sorted by period.
+
+    Raises
+    ------
+    InputError
+        With a one-line message that names the file, row and column at fault. Rows
+        are counted as a spreadsheet shows them (the header is row 1).
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> s = read_series(pd.DataFrame({"period": ["2024Q1", "2024Q2", "2024Q3"],
+    ...                               "value": [10.0, 12.0, 14.5]}))
+    >>> s.future_labels(2)
+    ['2024Q4', '2025Q1']
+    """
+    if isinstance(data, pd.Series):
+        frame = pd.DataFrame({period_col: data.index.astype(str), value_col: data.to_numpy()})
+        source = "Series"
+        name = name or (str(data.name) if data.name is not None else "series")
+        return _frame_to_series(frame, source, period_col, value_col, name, header_offset=0)
+    if isinstance(data, pd.DataFrame):
+        return _frame_to_series(
+            data, "DataFrame", period_col, value_col, name or "series", header_offset=0
+        )
+    path = Path(data)
+    source = path.name
+    if not path.exists():
+        raise InputError(f"{path}: no such file")
+    if path.is_dir():
+        raise InputError(f"{path}: is a folder, not a CSV file")
+    try:
+        frame = pd.read_csv(path, dtype=str, keep_default_na=False, skipinitialspace=True)
+    except UnicodeDecodeError:
+        raise InputError(f"{source}: not a text CSV file (could not decode it as UTF-8)") from None
+    except pd.errors.EmptyDataError:
+        raise InputError(f"{source}: the file is empty") from None
+    except pd.errors.ParserError as exc:
+        raise InputError(f"{source}: not a readable CSV file ({str(exc).strip()})") from None
+    frame.columns = [str(c).strip() for c in frame.columns]
+    return _frame_to_series(frame, source, period_col, value_col, name or path.stem, 2)
+
+
+def _frame_to_series(
+    frame: pd.DataFrame,
+    source: str,
+    period_col: str,
+    value_col: str,
+    name: str,
+    header_offset: int,
+) -> GrowthSeries:
+    for col, option in ((period_col, "--period-col"), (value_col, "--value-col")):
+        if col not in frame.columns:
+            have = ", ".join(repr(str(c)) for c in frame.columns)
+            raise InputError(
+                f"{source}: no column {col!r} (columns are {have}); name the right one with "
+                f"{option}"
+            )
+    # Rows as the user counts them: CSV line numbers (header = 1), or DataFrame positions.
+    rows = [i + header_offset for i in range(len(frame))]
+    return _from_columns(
+        frame[period_col].astype(str).tolist(),
+        frame[value_col].tolist(),
+        rows,
+        source=source,
+        period_col=period_col,
+        value_col=value_col,
+        name=name,
+    )
+
+
+def as_series(data: GrowthSeries | str | Path | pd.DataFrame | pd.Series) -> GrowthSeries:
+    """Return ``data`` if it is a series already, else read it with the defaults."""
+    if isinstance(data, GrowthSeries):
+        return data
+    return read_series(data)

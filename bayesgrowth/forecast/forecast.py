@@ -1,0 +1,277 @@
+"""Posterior predictive forecasts: bands, probabilities of targets, growth summaries."""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+import pandas as pd
+
+from bayesgrowth.config import DEFAULT_LEVELS, check_levels
+from bayesgrowth.inference.fit import Fit
+from bayesgrowth.models import exponential
+
+__all__ = ["Forecast", "forecast", "extrapolation_caution", "CAUTION"]
+
+#: The standing caution printed with every forecast.
+CAUTION = (
+    "A forecast extrapolates past growth; it is not investment advice. The bands describe "
+    "uncertainty under the model's assumptions, and real outcomes fall outside them more often "
+    "when the business changes: check calibration with a backtest."
+)
+
+#: A horizon longer than this share of the history gets an explicit caution
+#: (a common rule of thumb, with no single published source).
+HORIZON_SHARE = 0.5
+
+
+def extrapolation_caution(n_history_periods: int, horizon: int) -> str | None:
+    """Explain the extra risk of a horizon long relative to the history, or ``None``."""
+    if horizon > HORIZON_SHARE * n_history_periods:
+        return (
+            f"The horizon ({horizon} periods) is more than half the history "
+            f"({n_history_periods} periods). The growth curve is extrapolated far beyond the "
+            "data: the bands assume growth continues on the same curve, which ignores "
+            "saturation, competition and shocks, so treat the later periods as scenarios."
+        )
+    return None
+
+
+def _quantile_columns(draws: np.ndarray, levels: tuple[int, ...], prefix: str = "") -> dict:
+    cols = {}
+    for level in levels:
+        lo, hi = (100 - level) / 200, 1 - (100 - level) / 200
+        q = np.quantile(draws, [lo, hi], axis=0)
+        cols[f"{prefix}lower_{level}"] = q[0]
+        cols[f"{prefix}upper_{level}"] = q[1]
+    return cols
+
+
+def _interval(x: np.ndarray, levels=(80, 95)) -> dict:
+    out = {"median": float(np.median(x)), "mean": float(np.mean(x))}
+    for level in levels:
+        lo, hi = np.quantile(x, [(100 - level) / 200, 1 - (100 - level) / 200])
+        out[f"lower_{level}"] = float(lo)
+        out[f"upper_{level}"] = float(hi)
+    return out
+
+
+@dataclass
+class Forecast:
+    """A posterior predictive forecast for ``horizon`` periods after the last observation.
+
+    Attributes
+    ----------
+    fit : Fit
+        The fitted model the forecast comes from.
+    horizon : int
+    levels : tuple of int
+        Band levels in percent.
+    periods : list of str
+        Labels of the future periods, in the input's style.
+    t : numpy.ndarray
+        Time indices of the future periods.
+    draws : numpy.ndarray, shape (n_draws, horizon)
+        Posterior predictive draws of the value (parameter and noise uncertainty).
+    curve_draws : numpy.ndarray, shape (n_draws, horizon)
+        Draws of the mean curve alone (parameter uncertainty only).
+    seed : int
+        Seed of the predictive noise.
+    """
+
+    fit: Fit
+    horizon: int
+    levels: tuple[int, ...]
+    periods: list[str]
+    t: np.ndarray
+    draws: np.ndarray
+    curve_draws: np.ndarray
+    seed: int
+
+    @property
+    def table(self) -> pd.DataFrame:
+        """One row per future period: ``period``, ``step``, ``mean``, ``median``, bands.
+
+        Columns ``lower_L``/``upper_L`` are the central ``L``% credible band of the
+        value; ``curve_median``, ``curve_lower_L``/``curve_upper_L`` the band of
+        the mean curve alone.
+        """
+        frame = {
+            "period": self.periods,
+            "step": np.arange(1, self.horizon + 1),
+            "mean": self.draws.mean(axis=0),
+            "median": np.median(self.draws, axis=0),
+            **_quantile_columns(self.draws, self.levels),
+            "curve_median": np.median(self.curve_draws, axis=0),
+            **_quantile_columns(self.curve_draws, self.levels, prefix="curve_"),
+        }
+        return pd.DataFrame(frame)
+
+    def _column(self, period: str | int | None) -> int:
+        if period is None:
+            return self.horizon - 1
+        if isinstance(period, int | np.integer):
+            if not 1 <= period <= self.horizon:
+                raise ValueError(f"step must be between 1 and {self.horizon}, got {period}")
+            return int(period) - 1
+        if period not in self.periods:
+            raise ValueError(
+                f"period {period!r} is not in the forecast ({self.periods[0]} to "
+                f"{self.periods[-1]})"
+            )
+        return self.periods.index(period)
+
+    def prob_exceeds(self, target: float) -> pd.Series:
+        """Posterior probability that the value in each future period is at least ``target``."""
+        return pd.Series(
+            (self.draws >= target).mean(axis=0), index=pd.Index(self.periods, name="period"),
+            name="probability",
+        )
+
+    def first_period_reaching(self, target: float, probability: float = 0.5) -> str | None:
+        """First future period whose value is at least ``target`` with ``probability``.
+
+        Returns ``None`` if no period within the horizon reaches it.
+        """
+        if not 0 < probability < 1:
+            raise ValueError(f"probability must be between 0 and 1, got {probability}")
+        p = self.prob_exceeds(target).to_numpy()
+        hits = np.flatnonzero(p >= probability)
+        return self.periods[int(hits[0])] if hits.size else None
+
+    def value_draws(self, period: str | int | None = None) -> np.ndarray:
+        """Predictive draws for one future period (a label or a step; default the last)."""
+        return self.draws[:, self._column(period)]
+
+    def growth(self) -> pd.DataFrame:
+        """Growth per period, per year and doubling time, with 80% and 95% credible intervals.
+
+        Doubling time (periods) is ``ln 2 / ln(1+g)``; draws with ``g <= 0`` never
+        double and count as infinite, so its upper bounds can be ``inf``.
+        """
+        g = self.fit.derived()["growth_per_period"]
+        rows = {"growth_per_period": _interval(g)}
+        ppy = self.fit.series.axis.periods_per_year
+        if ppy is not None and ppy != 1:
+            rows["growth_per_year"] = _interval((1 + g) ** ppy - 1)
+        with np.errstate(divide="ignore"):
+            log_growth = np.log1p(g)
+            doubling = np.where(log_growth > 0, math.log(2) / log_growth, np.inf)
+        rows["doubling_time_periods"] = _interval(doubling)
+        rows["prob_growth_positive"] = {"median": float((g > 0).mean())}
+        return pd.DataFrame(rows).T
+
+    @property
+    def caution(self) -> str | None:
+        """The extrapolation caution for this horizon, if it applies."""
+        s = self.fit.series
+        return extrapolation_caution(s.t_last - int(s.t[0]) + 1, self.horizon)
+
+    def summary(self, target: float | None = None, target_probability: float = 0.5) -> dict:
+        """A JSON-ready summary: parameters, growth, diagnostics, provenance, cautions."""
+        derived = self.fit.derived()
+        growth = self.growth()
+        out = {
+            "series": self.fit.series.name,
+            "engine": self.fit.engine,
+            "model": self.fit.model,
+            "seed": self.fit.seed,
+            "forecast_seed": self.seed,
+            "horizon": self.horizon,
+            "levels": list(self.levels),
+            "frequency": self.fit.series.axis.frequency,
+            "last_observed_period": self.fit.series.labels[-1],
+            "initial_value": {
+                "reference_period": self.fit.priors.reference_period,
+                **_interval(derived["initial_value"]),
+            },
+            "growth_per_period": _interval(derived["growth_per_period"]),
+        }
+        for name in ("growth_per_year", "doubling_time_periods"):
+            if name in growth.index:
+                out[name] = {k: _finite(v) for k, v in growth.loc[name].items()}
+        out["prob_growth_positive"] = float(growth.loc["prob_growth_positive", "median"])
+        final = self.draws[:, -1]
+        out["final_period"] = {"period": self.periods[-1], **_interval(final, self.levels)}
+        if target is not None:
+            out["target"] = {
+                "value": target,
+                "probability_at_least_by_period": {
+                    k: float(v) for k, v in self.prob_exceeds(target).items()
+                },
+                "probability": target_probability,
+                "first_period_reaching": self.first_period_reaching(target, target_probability),
+            }
+        fit = self.fit
+        out["diagnostics"] = fit.diagnostics.to_dict()
+        out["priors"] = {"used": fit.priors.to_dict(), "in_words": fit.priors.describe()}
+        out["settings"] = fit.settings
+        out["input"] = {
+            "source": fit.series.source,
+            "n_observations": fit.series.n,
+            "first_period": fit.series.labels[0],
+            "missing_periods": list(fit.series.gaps),
+            "fingerprint_sha256": fit.series.fingerprint(),
+        }
+        out["bayesgrowth_version"] = fit.attrs()["bayesgrowth_version"]
+        out["cautions"] = [c for c in (self.caution, CAUTION) if c]
+        return out
+
+    def predictive_groups(self) -> dict:
+        """The draws in the form :meth:`Fit.to_inference_data` takes."""
+        return {"periods": self.periods, "draws": {"value": self.draws, "curve": self.curve_draws}}
+
+    def to_inference_data(self):
+        """InferenceData with posterior, posterior predictive, log likelihood and observed data."""
+        return self.fit.to_inference_data(self.predictive_groups())
+
+
+def _finite(v: float) -> float | None:
+    return float(v) if math.isfinite(v) else None
+
+
+def forecast(
+    fit: Fit,
+    horizon: int,
+    *,
+    levels=DEFAULT_LEVELS,
+    seed: int | None = None,
+) -> Forecast:
+    """Posterior predictive forecast ``horizon`` periods past the last observation.
+
+    Parameters
+    ----------
+    fit : Fit
+    horizon : int
+        Number of future periods (>= 1).
+    levels : sequence of int
+        Central band levels in percent.
+    seed : int, optional
+        Seed of the predictive noise; defaults to the fit's seed, so one seed
+        reproduces the whole forecast.
+
+    Returns
+    -------
+    Forecast
+    """
+    if int(horizon) != horizon or horizon < 1:
+        raise ValueError(f"horizon must be a whole number of periods >= 1, got {horizon}")
+    horizon = int(horizon)
+    levels = check_levels(levels)
+    seed = fit.seed if seed is None else int(seed)
+    rng = np.random.default_rng([seed, 1])
+    t = fit.series.future_t(horizon)
+    params = fit.flat()
+    log_draws = exponential.simulate_log(params, t, fit.priors.t_ref, rng)
+    curve = exponential.log_mean(params, t, fit.priors.t_ref)
+    return Forecast(
+        fit=fit,
+        horizon=horizon,
+        levels=levels,
+        periods=fit.series.future_labels(horizon),
+        t=t,
+        draws=np.exp(log_draws),
+        curve_draws=np.exp(curve),
+        seed=seed,
+    )

@@ -1,0 +1,146 @@
+"""The result of fitting a growth model: posterior draws, priors, diagnostics, provenance."""
+
+from __future__ import annotations
+
+import json
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+
+from bayesgrowth._version import __version__
+from bayesgrowth.data.series import GrowthSeries
+from bayesgrowth.inference.diagnostics import Diagnostics
+from bayesgrowth.models import exponential
+from bayesgrowth.priors import ResolvedPriors
+
+__all__ = ["Fit"]
+
+
+@dataclass
+class Fit:
+    """A fitted growth model.
+
+    Attributes
+    ----------
+    series : GrowthSeries
+        The data the model was fitted to.
+    priors : ResolvedPriors
+        The priors actually used, on the log scale (with the stated ones).
+    engine : str
+        ``"nuts"`` or ``"exact"``.
+    seed : int
+        Seed that reproduces the draws.
+    posterior : dict of str to numpy.ndarray
+        Draws of each parameter with shape ``(chain, draw)``: ``log_a``, ``log1p_g``,
+        ``sigma``.
+    diagnostics : Diagnostics
+        Convergence checks.
+    settings : dict
+        Engine settings (draws, chains, target_accept, ...).
+    """
+
+    series: GrowthSeries
+    priors: ResolvedPriors
+    engine: str
+    seed: int
+    posterior: dict[str, np.ndarray]
+    diagnostics: Diagnostics
+    settings: dict = field(default_factory=dict)
+    model: str = "exponential"
+
+    @property
+    def n_draws(self) -> int:
+        """Total number of posterior draws (chains times draws)."""
+        return int(next(iter(self.posterior.values())).size)
+
+    def flat(self) -> dict[str, np.ndarray]:
+        """Draws with chains stacked: each parameter as a 1-D array."""
+        return {k: v.reshape(-1) for k, v in self.posterior.items()}
+
+    def derived(self) -> dict[str, np.ndarray]:
+        """Draws of ``initial_value`` (``a``) and ``growth_per_period`` (``g``), flat."""
+        d = self.flat()
+        return {"initial_value": np.exp(d["log_a"]), "growth_per_period": np.expm1(d["log1p_g"])}
+
+    def log_likelihood(self) -> np.ndarray:
+        """Pointwise log likelihood of the observations, ``(chain, draw, obs)``."""
+        flat = exponential.log_likelihood(
+            self.flat(), self.series.t, self.series.values, self.priors.t_ref
+        )
+        c, d = next(iter(self.posterior.values())).shape
+        return flat.reshape(c, d, -1)
+
+    def attrs(self) -> dict[str, str]:
+        """Provenance written into saved files: model, priors, version, input fingerprint."""
+        axis = self.series.axis
+        return {
+            "bayesgrowth_version": __version__,
+            "model": self.model,
+            "engine": self.engine,
+            "seed": str(self.seed),
+            "series_name": self.series.name,
+            "source": self.series.source,
+            "input_fingerprint": self.series.fingerprint(),
+            "priors": json.dumps(self.priors.to_dict()),
+            "settings": json.dumps(self.settings),
+            "diagnostics": json.dumps(self.diagnostics.to_dict()),
+            "period_axis": json.dumps(
+                {"style": axis.style, "step": axis.step, "origin": axis.origin,
+                 "month_end": axis.month_end, "day": axis.day}
+            ),
+        }
+
+    def _datasets(self, predictive: dict | None = None):
+        import xarray as xr
+
+        c, d = next(iter(self.posterior.values())).shape
+        coords = {"chain": np.arange(c), "draw": np.arange(d)}
+        derived = {k: v.reshape(c, d) for k, v in self.derived().items()}
+        post = xr.Dataset(
+            {k: (("chain", "draw"), v) for k, v in {**self.posterior, **derived}.items()},
+            coords=coords,
+            attrs=self.attrs(),
+        )
+        obs_coords = {"period": self.series.labels}
+        observed = xr.Dataset(
+            {"value": (("period",), self.series.values), "t": (("period",), self.series.t)},
+            coords=obs_coords,
+        )
+        loglik = xr.Dataset(
+            {"value": (("chain", "draw", "period"), self.log_likelihood())},
+            coords={**coords, **obs_coords},
+        )
+        groups = {"posterior": post, "observed_data": observed, "log_likelihood": loglik}
+        if predictive is not None:
+            groups["posterior_predictive"] = xr.Dataset(
+                {
+                    name: (("chain", "draw", "future_period"), arr.reshape(c, d, -1))
+                    for name, arr in predictive["draws"].items()
+                },
+                coords={**coords, "future_period": predictive["periods"]},
+            )
+        return groups
+
+    def to_inference_data(self, predictive: dict | None = None):
+        """An :class:`arviz.InferenceData` with posterior, log likelihood and observed data.
+
+        Parameters
+        ----------
+        predictive : dict, optional
+            ``{"periods": labels, "draws": {name: array (n_draws, H)}}`` to add a
+            posterior predictive group (see :meth:`Forecast.predictive_groups`).
+        """
+        import arviz as az
+
+        return az.InferenceData(**self._datasets(predictive))
+
+    def to_netcdf(self, path: str | Path, predictive: dict | None = None) -> Path:
+        """Save as NetCDF in the InferenceData layout (readable by ``arviz.from_netcdf``).
+
+        Written with xarray alone so that saving does not pay ArviZ's import.
+        """
+        path = Path(path)
+        for i, (name, ds) in enumerate(self._datasets(predictive).items()):
+            ds.to_netcdf(path, mode="w" if i == 0 else "a", group=name, engine="h5netcdf")
+        return path

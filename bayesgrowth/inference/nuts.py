@@ -1,0 +1,98 @@
+"""The NUTS engine: PyMC's No-U-Turn sampler on CPU, with diagnostics on every fit."""
+
+from __future__ import annotations
+
+import numpy as np
+
+from bayesgrowth.data.series import GrowthSeries
+from bayesgrowth.inference.diagnostics import Diagnostics
+from bayesgrowth.inference.fit import Fit
+from bayesgrowth.models import exponential
+from bayesgrowth.priors import ResolvedPriors
+
+__all__ = ["fit_nuts", "default_target_accept"]
+
+#: Series this short diverged at the default target_accept when measured; 0.95 was clean.
+SHORT_SERIES = 6
+
+
+def default_target_accept(n_obs: int) -> float:
+    """Step-size target: 0.9, or 0.95 for series of ``SHORT_SERIES`` points or fewer."""
+    return 0.95 if n_obs <= SHORT_SERIES else 0.9
+
+
+def diagnose(posterior_ds, divergences: int) -> Diagnostics:
+    """R-hat, ESS (ArviZ, rank-normalised) and divergences of a posterior dataset."""
+    import arviz as az
+
+    names = [v for v in ("log_a", "log1p_g", "sigma") if v in posterior_ds and
+             posterior_ds[v].std() > 0]
+    ds = posterior_ds[names]
+    rhat = float(az.rhat(ds).to_array().max())
+    ess_bulk = float(az.ess(ds, method="bulk").to_array().min())
+    ess_tail = float(az.ess(ds, method="tail").to_array().min())
+    return Diagnostics.from_values(rhat, ess_bulk, ess_tail, divergences, method="NUTS (PyMC)")
+
+
+def fit_nuts(
+    series: GrowthSeries,
+    priors: ResolvedPriors,
+    *,
+    seed: int,
+    draws: int = 1000,
+    tune: int = 1000,
+    chains: int = 4,
+    target_accept: float | None = None,
+    cores: int = 1,
+    progressbar: bool = False,
+) -> Fit:
+    """Sample the posterior with PyMC NUTS.
+
+    Parameters
+    ----------
+    series : GrowthSeries
+    priors : ResolvedPriors
+    seed : int
+        Seed for the sampler; the same seed gives identical draws.
+    draws, tune, chains : int
+        Draws kept per chain, tuning steps per chain, number of chains.
+    target_accept : float, optional
+        Default from :func:`default_target_accept`.
+    cores : int
+        Processes. The default 1 runs chains one after another: on two cores a
+        second process barely pays for its start-up with a model this small.
+    progressbar : bool
+        Show PyMC's progress bar.
+    """
+    import pymc as pm
+
+    target_accept = target_accept or default_target_accept(series.n)
+    model = exponential.build_pymc_model(priors, series.t, series.log_values)
+    with model:
+        idata = pm.sample(
+            draws=draws,
+            tune=tune,
+            chains=chains,
+            cores=cores,
+            random_seed=seed,
+            target_accept=target_accept,
+            progressbar=progressbar,
+            compute_convergence_checks=False,
+            mp_ctx="fork" if cores > 1 else None,
+        )
+    post = idata.posterior
+    posterior = {k: np.asarray(post[k].values, dtype=float) for k in exponential.PARAMETERS}
+    if priors.fixed_initial:
+        posterior["log_a"] = np.full_like(posterior["sigma"], priors.log_a_mu)
+    divergences = int(idata.sample_stats["diverging"].sum())
+    diagnostics = diagnose(post, divergences)
+    return Fit(
+        series=series,
+        priors=priors,
+        engine="nuts",
+        seed=seed,
+        posterior=posterior,
+        diagnostics=diagnostics,
+        settings={"draws": draws, "tune": tune, "chains": chains,
+                  "target_accept": target_accept, "cores": cores},
+    )
