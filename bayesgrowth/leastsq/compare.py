@@ -175,7 +175,7 @@ def fit_table(
         lv = check_levels(levels)
         table["bayes_median"] = float(np.median(draws))
         for level in lv:
-            lo, hi = np.quantile(draws, [0.5 - level / 200.0, 0.5 + level / 200.0])
+            lo, hi = np.quantile(draws, [(100.0 - level) / 200.0, (100.0 + level) / 200.0])
             table[f"bayes_lower_{level_name(level)}"] = float(lo)
             table[f"bayes_upper_{level_name(level)}"] = float(hi)
         sorted_draws = np.sort(draws)

@@ -130,7 +130,7 @@ def log_linear_intervals(
     se_pred = np.sqrt(st.residual_sd**2 + se_mean**2)
     out = {"t": t_arr, "fitted": np.exp(mean)}
     for level in lv:
-        q = stats.t.ppf(0.5 + level / 200.0, st.dof)
+        q = stats.t.ppf((100.0 + level) / 200.0, st.dof)
         name = level_name(level)
         out[f"confidence_lower_{name}"] = np.exp(mean - q * se_mean)
         out[f"confidence_upper_{name}"] = np.exp(mean + q * se_mean)

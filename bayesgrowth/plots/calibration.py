@@ -98,14 +98,14 @@ def plot_coverage(
     lo_lim = max(0.0, min(levs) - 15.0)
     ax.plot([lo_lim, 100], [lo_lim, 100], linestyle="--", color="0.4", linewidth=1,
             label="stated = observed")
-    ax.set_xlim(lo_lim, 100)
-    ax.set_ylim(min(lo_lim, ax.get_ylim()[0]), 100)
+    ax.set_xlim(lo_lim, 101)
+    ax.set_ylim(min(lo_lim, ax.get_ylim()[0]), 102)
     ax.set_xticks(nominal)
     ax.set_xlabel("Stated band level (%)")
     ax.set_ylabel("Outcomes inside the band (%)")
     title_step = "all steps" if str(step) == ALL_STEPS else f"step {step}"
     ax.set_title(f"Band coverage, {title_step} (bars: 95% binomial interval)")
-    ax.legend(loc="lower right", frameon=False)
+    ax.legend(loc="best", frameon=False)
     return ax
 
 
@@ -144,14 +144,18 @@ def plot_pit_histogram(
     n = int(counts.sum())
     edges = np.linspace(0.0, 1.0, bins + 1)
     ax.bar(edges[:-1], counts, width=1.0 / bins, align="edge", color=OKABE_ITO[1],
-           edgecolor="white", label="forecasts")
+           edgecolor="white", label="forecasts", zorder=2)
     if n:
         p = 1.0 / bins
         lo, hi = stats.binom.ppf([0.025, 0.975], n, p)
-        ax.axhspan(lo, hi, color="0.6", alpha=0.3, linewidth=0, label="95% range if calibrated")
+        ax.axhspan(lo, hi, color="0.85", linewidth=0, zorder=1, label="95% range if calibrated")
+        for bound in (lo, hi):
+            ax.axhline(bound, color="0.35", linestyle=":", linewidth=1, zorder=3)
         ax.axhline(
-            n * p, color="black", linestyle="--", linewidth=1, label="expected if calibrated"
+            n * p, color="black", linestyle="--", linewidth=1, zorder=3,
+            label="expected if calibrated",
         )
+        ax.set_ylim(0, 1.3 * max(hi, counts.max()))
     ax.set_xlim(0, 1)
     ax.set_xlabel("PIT value (share of the forecast below the outcome)")
     ax.set_ylabel("Number of forecasts")

@@ -63,9 +63,11 @@ def plot_comparison(
     horizon : float
         Number of periods past the last observation to draw.
     band : pandas.DataFrame, optional
-        Bayesian forecast band with a column ``t`` (periods on the same index
-        as ``t_obs``), ``median``, and pairs ``lower_L`` / ``upper_L`` for any
-        levels ``L`` (e.g. ``lower_80``, ``upper_80``). Each level is shaded,
+        Bayesian forecast band: a column ``t`` (periods on the same index as
+        ``t_obs``) or ``step`` (periods after the last observation, 1, 2, ...),
+        a column ``median``, and pairs ``lower_L`` / ``upper_L`` for any levels
+        ``L`` (e.g. ``lower_80``, ``upper_80``); other columns are ignored, so
+        a forecast table with these columns can be passed as it is. Each level is shaded,
         wider levels lighter, and the median is drawn as a line.
     ax : matplotlib.axes.Axes, optional
         Axes to draw on; a new figure is made when omitted.
@@ -93,14 +95,18 @@ def plot_comparison(
     labels: list[str] = []
 
     if band is not None:
-        missing = {"t", "median"} - set(band.columns)
-        if missing:
-            raise ValueError(f"band is missing column(s): {', '.join(sorted(missing))}")
+        if "median" not in band.columns or not ({"t", "step"} & set(band.columns)):
+            raise ValueError("band needs a 'median' column and a 't' or 'step' column")
+        band_t = (
+            band["t"].to_numpy(dtype=float)
+            if "t" in band.columns
+            else float(t_obs.max()) + band["step"].to_numpy(dtype=float)
+        )
         levels = _band_levels(band)
         for i, level in enumerate(levels):
             alpha = 0.15 + 0.15 * i
             ax.fill_between(
-                band["t"],
+                band_t,
                 band[f"lower_{level}"],
                 band[f"upper_{level}"],
                 color=_BAND_COLOUR,
@@ -110,7 +116,7 @@ def plot_comparison(
             handles.append(Patch(color=_BAND_COLOUR, alpha=alpha))
             labels.append(f"Bayesian {level}% band")
         (median,) = ax.plot(
-            band["t"], band["median"], color=_BAND_COLOUR, linewidth=2, label="Bayesian median"
+            band_t, band["median"], color=_BAND_COLOUR, lw=2, label="Bayesian median", zorder=4
         )
         handles.append(median)
         labels.append("Bayesian median")

@@ -153,8 +153,14 @@ def test_revenue_scale_anchored_matches_scipy_curve_fit():
     y = _series(7, growth=0.07)
     fit = fit_revenue_scale_anchored(T_GAP, y)
     popt, _ = curve_fit(
-        lambda t, g: y[0] * (1 + g) ** t, T_GAP, y, p0=[0.0], method="trf", xtol=1e-15,
-        ftol=1e-15, gtol=1e-15,
+        lambda t, g: y[0] * (1 + g) ** t,
+        T_GAP,
+        y,
+        p0=[0.0],
+        method="trf",
+        xtol=1e-15,
+        ftol=1e-15,
+        gtol=1e-15,
     )
     np.testing.assert_allclose(fit.growth_per_period, popt[0], rtol=1e-7)
     assert fit.initial_value == y[0]

@@ -62,7 +62,9 @@ def test_predictive_distribution_matches_statsmodels():
     pred = log_linear_predictive(fit, T_FUTURE)
     assert list(pred.columns) == ["t", "loc", "scale", "df"]
     np.testing.assert_allclose(pred["loc"], frame["mean"], rtol=1e-10)
-    np.testing.assert_allclose(pred["scale"], np.sqrt(frame["mean_se"] ** 2 + res.scale), rtol=1e-10)
+    np.testing.assert_allclose(
+        pred["scale"], np.sqrt(frame["mean_se"] ** 2 + res.scale), rtol=1e-10
+    )
     assert (pred["df"] == res.df_resid).all()
     upper = stats.t.ppf(0.95, pred["df"], loc=pred["loc"], scale=pred["scale"])
     np.testing.assert_allclose(upper, frame["obs_ci_upper"], rtol=1e-10)
@@ -77,8 +79,12 @@ def test_anchored_intervals_match_statsmodels_without_constant():
     frame = res.get_prediction((T_FUTURE - T[0])[:, None]).summary_frame(alpha=0.2)
     table = log_linear_intervals(fit, T_FUTURE, levels=[80])
     shift = np.log(y[0])
-    np.testing.assert_allclose(np.log(table["confidence_lower_80"]) - shift, frame["mean_ci_lower"])
-    np.testing.assert_allclose(np.log(table["prediction_upper_80"]) - shift, frame["obs_ci_upper"])
+    np.testing.assert_allclose(
+        np.log(table["confidence_lower_80"]) - shift, frame["mean_ci_lower"], rtol=1e-10
+    )
+    np.testing.assert_allclose(
+        np.log(table["prediction_upper_80"]) - shift, frame["obs_ci_upper"], rtol=1e-10
+    )
 
 
 def test_interval_ordering_and_width_growth():
