@@ -1,0 +1,178 @@
+"""Pieces every subcommand shares: one-line usage errors, input and model options."""
+
+from __future__ import annotations
+
+import argparse
+import sys
+import warnings
+from pathlib import Path
+
+from bayesgrowth.config import DEFAULT_LEVELS, check_levels
+from bayesgrowth.data.series import GrowthSeries, read_series
+
+PROG = "bayesgrowth"
+
+
+class UsageError(Exception):
+    """Bad usage, reported in one line with exit code 2."""
+
+
+class Parser(argparse.ArgumentParser):
+    """An argument parser whose usage errors are one line (exit code 2)."""
+
+    def error(self, message: str) -> None:  # noqa: D102 - one line, not a usage block
+        raise UsageError(f"{self.prog}: {message} (see --help)")
+
+
+def _levels(text: str) -> tuple[int, ...]:
+    try:
+        return check_levels(float(x) for x in text.split(",") if x.strip())
+    except ValueError as exc:
+        raise argparse.ArgumentTypeError(f"--levels {text!r}: {exc}") from None
+
+
+def _positive_int(text: str) -> int:
+    try:
+        value = int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a whole number") from None
+    if value < 1:
+        raise argparse.ArgumentTypeError(f"{text!r} must be at least 1")
+    return value
+
+
+def add_input(p: argparse.ArgumentParser) -> None:
+    """Options naming the input file and its columns."""
+    p.add_argument("file", type=Path, help="CSV file with a period column and a value column")
+    p.add_argument("--period-col", default="period", help="name of the period column [period]")
+    p.add_argument("--value-col", default="value", help="name of the value column [value]")
+
+
+def add_model_options(p: argparse.ArgumentParser, *, horizon_required: bool = True) -> None:
+    """Horizon, engine, seed, band levels, sampler size and the prior options."""
+    p.add_argument(
+        "--horizon",
+        "-H",
+        type=_positive_int,
+        required=horizon_required,
+        default=None if horizon_required else 8,
+        help="number of future periods to forecast" + ("" if horizon_required else " [8]"),
+    )
+    p.add_argument(
+        "--engine",
+        choices=("nuts", "exact"),
+        default="nuts",
+        help="nuts: PyMC sampler; exact: same posterior by quadrature, fast [nuts]",
+    )
+    p.add_argument("--seed", type=int, default=1, help="random seed; same seed, same output [1]")
+    p.add_argument(
+        "--levels",
+        type=_levels,
+        default=DEFAULT_LEVELS,
+        help="credible band levels in percent, comma-separated [50,80,95]",
+    )
+    p.add_argument(
+        "--draws", type=_positive_int, default=1000, help="posterior draws per chain [1000]"
+    )
+    p.add_argument("--chains", type=_positive_int, default=4, help="chains [4]")
+    g = p.add_argument_group("priors (see docs/user-guide.md)")
+    g.add_argument(
+        "--initial-give-or-take",
+        type=float,
+        default=50.0,
+        metavar="PCT",
+        help="initial value: the observed value give or take PCT%%; 0 fixes it [50]",
+    )
+    g.add_argument(
+        "--initial-value",
+        type=float,
+        default=None,
+        metavar="V",
+        help="centre of the initial-value prior [observed value]",
+    )
+    g.add_argument(
+        "--reference-period",
+        default=None,
+        metavar="LABEL",
+        help="period the initial value refers to [first observation]",
+    )
+    g.add_argument(
+        "--growth",
+        type=float,
+        default=0.0,
+        metavar="PCT",
+        help="central growth per period in percent [0]",
+    )
+    g.add_argument(
+        "--growth-give-or-take",
+        type=float,
+        default=30.0,
+        metavar="PTS",
+        help="spread of the growth prior in percentage points [30]",
+    )
+    g.add_argument(
+        "--noise",
+        type=float,
+        default=30.0,
+        metavar="PCT",
+        help="typical deviation from trend in percent (half-normal scale) [30]",
+    )
+    p.add_argument("--quiet", action="store_true", help="no progress output")
+
+
+def say(args, message: str) -> None:
+    """Progress message on stderr, unless ``--quiet``."""
+    if not getattr(args, "quiet", False):
+        print(message, file=sys.stderr, flush=True)
+
+
+def read_input(args) -> GrowthSeries:
+    """Read the input series; data warnings (gaps) become notes on stderr."""
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        series = read_series(args.file, period_col=args.period_col, value_col=args.value_col)
+    for w in caught:
+        say(args, f"note: {w.message}")
+    return series
+
+
+def priors_from_args(args):
+    """The :class:`~bayesgrowth.priors.Priors` the prior options describe."""
+    from bayesgrowth.priors import GrowthPrior, InitialValuePrior, NoisePrior, Priors
+
+    try:
+        return Priors(
+            initial=InitialValuePrior(args.initial_give_or_take, args.initial_value),
+            growth=GrowthPrior(args.growth, args.growth_give_or_take),
+            noise=NoisePrior(args.noise),
+            reference_period=args.reference_period,
+        )
+    except ValueError as exc:
+        raise UsageError(f"prior options: {exc}") from None
+
+
+def fit_from_args(args, series):
+    """Fit ``series`` with the engine and priors the options name; warn loudly on failure."""
+    from bayesgrowth.inference.run import fit_series
+
+    priors = priors_from_args(args)
+    options = {"draws": args.draws, "chains": args.chains}
+    if args.engine == "nuts":
+        options["progressbar"] = not args.quiet
+    say(
+        args,
+        f"fitting {series.name} ({series.n} {series.axis.frequency} observations) "
+        f"with the {args.engine} engine ...",
+    )
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        fit = fit_series(series, engine=args.engine, priors=priors, seed=args.seed, **options)
+    for w in caught:
+        if "diagnostics" in str(w.message):
+            print(f"WARNING: {w.message}", file=sys.stderr)
+    return fit
+
+
+def fmt_number(v: float) -> str:
+    """A value for people: thousands separators, four significant digits below 1,000."""
+    return f"{v:,.0f}" if abs(v) >= 1000 else f"{v:,.4g}"
