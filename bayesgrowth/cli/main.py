@@ -13,6 +13,7 @@ import sys
 from pathlib import Path
 
 from bayesgrowth._version import __version__
+from bayesgrowth.cli import compare
 from bayesgrowth.cli.common import (
     PROG,
     Parser,
@@ -79,6 +80,7 @@ def build_parser() -> argparse.ArgumentParser:
     demo.add_argument("--target", type=float, default=None, help=argparse.SUPPRESS)
     demo.add_argument("--target-probability", type=float, default=0.5, help=argparse.SUPPRESS)
     demo.set_defaults(run=_run_demo)
+    compare.add_parser(sub)
     return parser
 
 

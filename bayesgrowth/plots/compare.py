@@ -30,6 +30,10 @@ _FAMILIES = (
 _BAND_COLOUR = "tab:green"
 
 
+#: At most this many period labels on the x axis (the rest are thinned out).
+MAX_TICKS = 12
+
+
 def _band_levels(band: pd.DataFrame) -> list[str]:
     levels = []
     for col in band.columns:
@@ -175,8 +179,9 @@ def plot_comparison(
             if len(names) != t_obs.size:
                 raise ValueError("period_labels must give one label per observed period")
             ticks = list(t_obs)
-        ax.set_xticks(ticks)
-        ax.set_xticklabels(names, rotation=45, ha="right")
+        step = max(1, int(np.ceil(len(ticks) / MAX_TICKS)))
+        ax.set_xticks(ticks[::step])
+        ax.set_xticklabels(names[::step], rotation=45, ha="right")
 
     ax.set_xlabel("Period")
     ax.set_ylabel("Value")

@@ -1,0 +1,94 @@
+"""``bayesgrowth compare``: least-squares point forecasts beside the Bayesian band."""
+
+from __future__ import annotations
+
+import sys
+
+from bayesgrowth.cli.common import (
+    add_input,
+    add_model_options,
+    fit_from_args,
+    fmt_number,
+    read_input,
+)
+from bayesgrowth.cli.output import staged_output
+
+__all__ = ["add_parser"]
+
+
+def add_parser(sub) -> None:
+    """Register the ``compare`` subcommand."""
+    p = sub.add_parser(
+        "compare",
+        help="least-squares growth fits, their spread, and the Bayesian band beside them",
+        description="Fit the exponential curve by least squares in the ways analysts usually "
+        "do (log scale or revenue scale, anchored or not, dropping periods) and set their "
+        "point forecasts beside the Bayesian credible band for the same period. Writes "
+        "comparison.csv and comparison.png.",
+    )
+    add_input(p)
+    add_model_options(p)
+    p.add_argument("--out", required=True, help="output folder")
+    p.add_argument("--max-drop", type=int, default=None, metavar="K",
+                   help="drop up to K periods from either end in the window variants "
+                   "[min(3, n-3)]")
+    p.set_defaults(run=run)
+
+
+def run(args) -> int:
+    """Run ``compare``; returns the exit code."""
+    from pathlib import Path
+
+    from bayesgrowth.cli.common import UsageError
+    from bayesgrowth.comparison import compare_to_forecast
+    from bayesgrowth.forecast.forecast import CAUTION, forecast
+    from bayesgrowth.leastsq import LeastSquaresError
+
+    series = read_input(args)
+    if args.max_drop is not None and not 0 <= args.max_drop <= series.n - 3:
+        raise UsageError(f"--max-drop {args.max_drop}: must be between 0 and {series.n - 3} "
+                         f"for {series.n} observations (every fit keeps 3)")
+    names = ["comparison.csv", "comparison.png"]
+    with staged_output(Path(args.out), names, [args.file]) as stage:
+        fit = fit_from_args(args, series)
+        fc = forecast(fit, args.horizon, levels=args.levels)
+        try:
+            comp = compare_to_forecast(fc, max_drop=args.max_drop)
+        except LeastSquaresError as exc:
+            raise UsageError(f"{args.file}: least-squares fit failed: {exc}") from None
+        comp.table.to_csv(stage / "comparison.csv", index=False, float_format="%.6g")
+        _save_plot(comp, stage / "comparison.png")
+    sp = comp.spread
+    top = max(fc.levels)
+    row = comp.table.iloc[0]
+    print(f"{series.name}: point forecasts for {fc.periods[-1]} from {len(comp.fits)} "
+          f"least-squares variants range from {fmt_number(sp['min'])} ({sp['lowest_variant']}) "
+          f"to {fmt_number(sp['max'])} ({sp['highest_variant']}), a ratio of "
+          f"{sp['max_over_min']:.2f}")
+    print(f"Bayesian {fit.engine} forecast for {fc.periods[-1]}: median "
+          f"{fmt_number(row['bayes_median'])}, {top}% band {fmt_number(row[f'bayes_lower_{top}'])}"
+          f" to {fmt_number(row[f'bayes_upper_{top}'])}")
+    if not fit.diagnostics.ok:
+        print("diagnostics: FAILED - " + "; ".join(fit.diagnostics.problems), file=sys.stderr)
+    print(f"caution: {CAUTION}")
+    print(f"wrote {', '.join(names)} to {args.out}")
+    return 0
+
+
+def _save_plot(comp, path) -> None:
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    from bayesgrowth.plots.compare import plot_comparison
+
+    series = comp.forecast.fit.series
+    fig, ax = plt.subplots(figsize=(9, 5), layout="constrained")
+    all_t = list(series.t) + list(comp.forecast.t)
+    plot_comparison(series.t, series.values, comp.fits, comp.forecast.horizon,
+                    band=comp.forecast.table, ax=ax,
+                    period_labels=dict(zip(all_t, series.axis.labels(all_t), strict=True)))
+    ax.set_title(f"{series.name}: least-squares point forecasts and the Bayesian band")
+    fig.savefig(path, dpi=110)
+    plt.close(fig)
