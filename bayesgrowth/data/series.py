@@ -94,7 +94,7 @@ class GrowthSeries:
         except PeriodError:
             t = None
         if t is not None:
-            hits = np.flatnonzero(self.t == t[1])
+            hits = np.flatnonzero(self.t - self.t[0] == t[1] - t[0])
             if hits.size:
                 return int(hits[0])
         raise InputError(

@@ -2,6 +2,9 @@
 
 from __future__ import annotations
 
+import logging
+import warnings
+
 import numpy as np
 
 from bayesgrowth.data.series import GrowthSeries
@@ -68,18 +71,28 @@ def fit_nuts(
 
     target_accept = target_accept or default_target_accept(series.n)
     model = exponential.build_pymc_model(priors, series.t, series.log_values)
-    with model:
-        idata = pm.sample(
-            draws=draws,
-            tune=tune,
-            chains=chains,
-            cores=cores,
-            random_seed=seed,
-            target_accept=target_accept,
-            progressbar=progressbar,
-            compute_convergence_checks=False,
-            mp_ctx="fork" if cores > 1 else None,
-        )
+    logger = logging.getLogger("pymc")
+    level = logger.level
+    if not progressbar:
+        logger.setLevel(logging.WARNING)  # quiet runs: no sampler chatter
+    try:
+        with model, warnings.catch_warnings():
+            # Early tuning steps can overflow the kinetic-energy dot product before the
+            # step size adapts; the diagnostics below judge the result, not this.
+            warnings.filterwarnings("ignore", "overflow encountered", RuntimeWarning)
+            idata = pm.sample(
+                draws=draws,
+                tune=tune,
+                chains=chains,
+                cores=cores,
+                random_seed=seed,
+                target_accept=target_accept,
+                progressbar=progressbar,
+                compute_convergence_checks=False,
+                mp_ctx="fork" if cores > 1 else None,
+            )
+    finally:
+        logger.setLevel(level)
     post = idata.posterior
     posterior = {k: np.asarray(post[k].values, dtype=float) for k in exponential.PARAMETERS}
     if priors.fixed_initial:

@@ -78,3 +78,11 @@ def test_fingerprint_changes_with_data(tmp_path):
 def test_bundled_demo_matches_its_generator():
     bundled = pd.read_csv(demo_path())
     pd.testing.assert_frame_equal(bundled, make_demo_frame())
+
+
+def test_index_of_accepts_other_spellings_and_rejects_absent(tmp_path):
+    s = read_series(_csv(tmp_path, "period,value\n2024Q2,1\n2024Q3,2\n2024Q4,3\n"))
+    assert s.index_of("2024-Q3") == 1
+    for absent in ("2024Q1", "1999Q1", "2025Q1"):
+        with pytest.raises(InputError, match="not in the series"):
+            s.index_of(absent)

@@ -1,0 +1,177 @@
+"""The command line end to end: contracts, reproducibility, bad input."""
+
+import json
+import subprocess
+import sys
+
+import pandas as pd
+import pytest
+
+from bayesgrowth.cli import main
+from bayesgrowth.data.demo import demo_path
+
+GOOD = "period,value\n2023Q1,100\n2023Q2,108\n2023Q3,119\n2023Q4,127\n2024Q1,140\n2024Q2,150\n"
+
+
+@pytest.fixture
+def good_csv(tmp_path):
+    path = tmp_path / "revenue.csv"
+    path.write_text(GOOD)
+    return path
+
+
+def _run(argv):
+    return main(argv)
+
+
+def test_forecast_exact_follows_the_contract(tmp_path, good_csv, capsys):
+    out = tmp_path / "out"
+    rc = _run(["forecast", str(good_csv), "--horizon", "4", "--out", str(out), "--engine",
+               "exact", "--target", "200", "--quiet"])
+    assert rc == 0
+    assert sorted(p.name for p in out.iterdir()) == [
+        "fan_chart.png", "forecast.csv", "posterior.nc", "summary.json"]
+    fc = pd.read_csv(out / "forecast.csv")
+    assert list(fc.columns[:4]) == ["period", "step", "mean", "median"]
+    for level in (50, 80, 95):
+        assert f"lower_{level}" in fc and f"upper_{level}" in fc
+    assert list(fc["period"]) == ["2024Q3", "2024Q4", "2025Q1", "2025Q2"]
+    summary = json.loads((out / "summary.json").read_text())
+    for key in ("growth_per_period", "initial_value"):
+        assert set(summary[key]) >= {"median", "lower_95", "upper_95"}
+    assert set(summary["diagnostics"]) >= {"max_rhat", "min_ess_bulk", "divergences", "ok"}
+    assert summary["engine"] == "exact"
+    assert summary["seed"] == 1
+    assert "target" in summary
+    printed = capsys.readouterr().out
+    assert "not investment advice" in printed
+    assert (out / "fan_chart.png").read_bytes()[:4] == b"\x89PNG"
+
+
+def test_same_seed_identical_forecast_csv(tmp_path, good_csv):
+    for name in ("a", "b"):
+        assert _run(["forecast", str(good_csv), "-H", "3", "--out", str(tmp_path / name),
+                     "--engine", "exact", "--seed", "9", "--quiet"]) == 0
+    assert (tmp_path / "a" / "forecast.csv").read_bytes() == (
+        tmp_path / "b" / "forecast.csv").read_bytes()
+
+
+def test_levels_option(tmp_path, good_csv):
+    assert _run(["forecast", str(good_csv), "-H", "2", "--out", str(tmp_path / "o"),
+                 "--engine", "exact", "--levels", "60,90", "--quiet"]) == 0
+    cols = pd.read_csv(tmp_path / "o" / "forecast.csv").columns
+    assert "lower_60" in cols and "upper_90" in cols and "lower_80" not in cols
+
+
+BAD_INPUTS = {
+    "zero": ("period,value\n2024Q1,10\n2024Q2,0\n2024Q3,12\n", "row 3"),
+    "negative": ("period,value\n2024Q1,10\n2024Q2,-1\n2024Q3,12\n", "above zero"),
+    "duplicate": ("period,value\n2024Q1,10\n2024Q1,11\n2024Q3,12\n", "repeats row 2"),
+    "text": ("period,value\n2024Q1,10\n2024Q2,lots\n2024Q3,12\n", "not a number"),
+    "short": ("period,value\n2024Q1,10\n2024Q2,11\n", "at least 3"),
+    "mixed": ("period,value\n2024Q1,10\n2024-05,11\n2024Q3,12\n", "frequency"),
+}
+
+
+@pytest.mark.parametrize("case", sorted(BAD_INPUTS))
+@pytest.mark.parametrize("command", ["forecast", "compare"])
+def test_bad_input_one_line_exit_2_no_files(tmp_path, case, command):
+    text, fragment = BAD_INPUTS[case]
+    path = tmp_path / "bad.csv"
+    path.write_text(text)
+    out = tmp_path / "out"
+    proc = subprocess.run(
+        [sys.executable, "-m", "bayesgrowth", command, str(path), "-H", "4", "--out", str(out),
+         "--engine", "exact"],
+        capture_output=True, text=True, check=False,
+    )
+    assert proc.returncode == 2
+    lines = proc.stderr.strip().splitlines()
+    assert len(lines) == 1, proc.stderr
+    assert fragment in lines[0] and "bad.csv" in lines[0]
+    assert "Traceback" not in proc.stderr
+    assert not out.exists()
+    assert path.read_text() == text  # the input is untouched
+
+
+@pytest.mark.parametrize(
+    ("argv", "fragment"),
+    [
+        (["forecast", "{f}", "--out", "{o}"], "--horizon"),
+        (["forecast", "{f}", "-H", "0", "--out", "{o}"], "at least 1"),
+        (["forecast", "{f}", "-H", "3", "--out", "{o}", "--levels", "80,120"], "--levels"),
+        (["forecast", "{f}", "-H", "3", "--out", "{o}", "--engine", "gibbs"], "--engine"),
+        (["forecast", "{f}", "-H", "3", "--out", "{o}", "--noise", "-3"], "noise"),
+        (["forecast", "{f}", "-H", "3", "--out", "{o}", "--reference-period", "1999Q1"],
+         "1999Q1"),
+        (["forecast", "{f}", "-H", "3", "--out", "{o}", "--value-col", "sales"], "--value-col"),
+        (["forecast", "{f}", "-H", "3", "--out", "{o}", "--target", "-5"], "--target"),
+    ],
+)
+def test_bad_options(tmp_path, good_csv, capsys, argv, fragment):
+    out = tmp_path / "out"
+    argv = [a.format(f=good_csv, o=out) for a in argv] + ["--quiet", "--engine", "exact"] * (
+        "--engine" not in argv)
+    assert _run(argv) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and fragment in err[0]
+    assert not out.exists()
+
+
+def test_never_overwrites_the_input(tmp_path):
+    path = tmp_path / "forecast.csv"
+    path.write_text(GOOD)
+    assert _run(["forecast", str(path), "-H", "2", "--out", str(tmp_path), "--engine", "exact",
+                 "--quiet"]) == 2
+    assert path.read_text() == GOOD
+
+
+def test_existing_output_folder_keeps_other_files(tmp_path, good_csv):
+    out = tmp_path / "out"
+    out.mkdir()
+    (out / "notes.txt").write_text("mine")
+    assert _run(["forecast", str(good_csv), "-H", "2", "--out", str(out), "--engine", "exact",
+                 "--quiet"]) == 0
+    assert (out / "notes.txt").read_text() == "mine"
+    assert not any(p.name.startswith(".bayesgrowth-") for p in tmp_path.iterdir())
+
+
+def test_demo_command(tmp_path):
+    out = tmp_path / "demo"
+    assert _run(["demo", "--engine", "exact", "--out", str(out), "--quiet"]) == 0
+    fc = pd.read_csv(out / "forecast.csv")
+    assert len(fc) == 8 and fc["period"].iloc[0] == "2026Q1"
+
+
+def test_compare_writes_contract(tmp_path):
+    out = tmp_path / "cmp"
+    assert _run(["compare", str(demo_path()), "-H", "6", "--out", str(out), "--engine", "exact",
+                 "--quiet"]) == 0
+    table = pd.read_csv(out / "comparison.csv")
+    for col in ("variant", "n_points", "initial_value", "growth_per_period", "value_at_horizon",
+                "bayes_median", "bayes_lower_80", "bayes_upper_80", "prob_at_least"):
+        assert col in table
+    assert {"log-linear", "revenue-scale", "log-linear, anchored"} <= set(table["variant"])
+    assert (out / "comparison.png").exists()
+
+
+def test_help_documents_every_option(capsys):
+    with pytest.raises(SystemExit) as exc:
+        main(["forecast", "--help"])
+    assert exc.value.code == 0
+    text = capsys.readouterr().out
+    for option in ("--horizon", "--out", "--seed", "--levels", "--engine", "--target",
+                   "--initial-give-or-take", "--growth", "--noise", "--period-col"):
+        assert option in text
+
+
+@pytest.mark.slow
+def test_forecast_nuts_end_to_end(tmp_path, good_csv):
+    out = tmp_path / "nuts"
+    assert _run(["forecast", str(good_csv), "-H", "3", "--out", str(out), "--quiet"]) == 0
+    summary = json.loads((out / "summary.json").read_text())
+    assert summary["engine"] == "nuts"
+    assert summary["diagnostics"]["ok"] is True
+    again = tmp_path / "nuts2"
+    assert _run(["forecast", str(good_csv), "-H", "3", "--out", str(again), "--quiet"]) == 0
+    assert (out / "forecast.csv").read_bytes() == (again / "forecast.csv").read_bytes()
