@@ -49,11 +49,11 @@ def warm_run(engine: str, repeats: int = 3) -> float:
     import bayesgrowth as bg
 
     series = bg.load_demo()
-    bg.GrowthModel(engine=engine, seed=1).fit(series).forecast(8).table  # warm-up
+    _ = bg.GrowthModel(engine=engine, seed=1).fit(series).forecast(8).table  # warm-up
     best = float("inf")
     for _ in range(repeats):
         t0 = time.perf_counter()
-        bg.GrowthModel(engine=engine, seed=1).fit(series).forecast(8).table
+        _ = bg.GrowthModel(engine=engine, seed=1).fit(series).forecast(8).table
         best = min(best, time.perf_counter() - t0)
     return best
 

@@ -18,6 +18,7 @@ IMAGES = Path(__file__).with_name("images")
 
 
 def main() -> None:
+    """Write every guide figure to docs/images/ and print the numbers quoted in the text."""
     IMAGES.mkdir(exist_ok=True)
     series = bg.load_demo()
     model = bg.GrowthModel(engine="exact", seed=1).fit(series)
