@@ -81,14 +81,8 @@ def _save_plot(comp, path) -> None:
     matplotlib.use("Agg")
     import matplotlib.pyplot as plt
 
-    from bayesgrowth.plots.compare import plot_comparison
+    from bayesgrowth.plots.compare import comparison_figure
 
-    series = comp.forecast.fit.series
-    fig, ax = plt.subplots(figsize=(9, 5), layout="constrained")
-    all_t = list(series.t) + list(comp.forecast.t)
-    plot_comparison(series.t, series.values, comp.fits, comp.forecast.horizon,
-                    band=comp.forecast.table, ax=ax,
-                    period_labels=dict(zip(all_t, series.axis.labels(all_t), strict=True)))
-    ax.set_title(f"{series.name}: least-squares point forecasts and the Bayesian band")
+    fig = comparison_figure(comp)
     fig.savefig(path, dpi=110)
     plt.close(fig)

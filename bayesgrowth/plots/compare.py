@@ -14,7 +14,7 @@ from matplotlib.patches import Patch
 
 from bayesgrowth.leastsq.fits import GrowthFit
 
-__all__ = ["plot_comparison"]
+__all__ = ["comparison_figure", "plot_comparison"]
 
 _MAIN_STYLES = {
     "log-linear": ("tab:blue", "-"),
@@ -200,3 +200,17 @@ def plot_comparison(
         color="0.35",
     )
     return ax
+
+
+def comparison_figure(comparison):
+    """A new figure of a :class:`~bayesgrowth.comparison.Comparison`: curves, range, band."""
+    import matplotlib.pyplot as plt
+
+    fc = comparison.forecast
+    series = fc.fit.series
+    fig, ax = plt.subplots(figsize=(9, 5), layout="constrained")
+    all_t = list(series.t) + list(fc.t)
+    plot_comparison(series.t, series.values, comparison.fits, fc.horizon, band=fc.table, ax=ax,
+                    period_labels=dict(zip(all_t, series.axis.labels(all_t), strict=True)))
+    ax.set_title(f"{series.name}: least-squares point forecasts and the Bayesian band")
+    return fig

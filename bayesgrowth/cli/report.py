@@ -1,0 +1,59 @@
+"""``bayesgrowth report``: one self-contained HTML page for readers who do not run Python."""
+
+from __future__ import annotations
+
+import shlex
+import sys
+from pathlib import Path
+
+from bayesgrowth.cli.common import UsageError, add_input, add_model_options, read_input, say
+from bayesgrowth.cli.output import staged_output
+
+__all__ = ["add_parser"]
+
+
+def add_parser(sub) -> None:
+    """Register the ``report`` subcommand."""
+    p = sub.add_parser(
+        "report",
+        help="write one self-contained HTML report of a forecast",
+        description="Fit, forecast, compare with least-squares fits, backtest, and write "
+        "report.html: one page with figures embedded, viewable offline and printable.",
+    )
+    add_input(p)
+    add_model_options(p)
+    p.add_argument("--out", type=Path, required=True, help="output folder")
+    p.add_argument("--target", type=float, default=None,
+                   help="a budget or guidance value: report the probability of reaching it")
+    p.add_argument("--target-probability", type=float, default=0.5, metavar="P",
+                   help="probability at which the target counts as reached [0.5]")
+    p.add_argument("--no-backtest", action="store_true", help="leave out the backtest section")
+    p.set_defaults(run=run)
+
+
+def run(args) -> int:
+    """Run ``report``; returns the exit code."""
+    from bayesgrowth.cli.common import priors_from_args
+    from bayesgrowth.report import build_report, write_report
+
+    series = read_input(args)
+    if args.target is not None and not args.target > 0:
+        raise UsageError(f"--target {args.target}: must be a value above 0")
+    if not 0 < args.target_probability < 1:
+        raise UsageError(f"--target-probability {args.target_probability}: must be between 0 "
+                         "and 1")
+    priors = priors_from_args(args)
+    command = "bayesgrowth " + " ".join(shlex.quote(a) for a in sys.argv[1:])
+    names = ["report.html"]
+    say(args, f"building the report for {series.name} ({args.engine} engine) ...")
+    with staged_output(args.out, names, [args.file]) as stage:
+        page = build_report(
+            series, args.horizon, engine=args.engine, seed=args.seed, priors=priors,
+            levels=args.levels, target=args.target, target_probability=args.target_probability,
+            with_backtest=not args.no_backtest, command=command,
+            fit_options={"draws": args.draws, "chains": args.chains},
+        )
+        write_report(stage / "report.html", page)
+    print(f"wrote report.html to {args.out}")
+    print("caution: the report extrapolates past growth; it is not investment advice")
+    return 0

@@ -1,0 +1,133 @@
+"""Compute everything a report shows, then render it (see :mod:`bayesgrowth.report.html`)."""
+
+from __future__ import annotations
+
+import warnings
+from pathlib import Path
+
+from bayesgrowth.config import DEFAULT_LEVELS
+from bayesgrowth.data.series import GrowthSeries
+from bayesgrowth.report.html import ReportParts, figure_data_uri, render_report
+
+__all__ = ["build_report", "write_report", "backtest_settings_for"]
+
+#: Fewest training points at the first backtest origin in a report.
+MIN_TRAIN_FLOOR = 6
+
+
+def backtest_settings_for(n_obs: int, horizon: int) -> tuple[int, int] | None:
+    """``(min_train, backtest_horizon)`` for a report's backtest, or ``None`` if too short.
+
+    The first origin trains on half the history (at least 6 points) and each
+    origin forecasts up to 4 periods (or the forecast horizon if shorter), so
+    that the backtest scores at least 4 origins.
+    """
+    bt_horizon = max(1, min(4, horizon))
+    min_train = max(MIN_TRAIN_FLOOR, n_obs // 2)
+    if n_obs - min_train < 4:
+        return None
+    return min_train, bt_horizon
+
+
+def build_report(
+    series: GrowthSeries,
+    horizon: int,
+    *,
+    engine: str = "exact",
+    seed: int = 1,
+    priors=None,
+    levels=DEFAULT_LEVELS,
+    target: float | None = None,
+    target_probability: float = 0.5,
+    with_backtest: bool = True,
+    models=None,
+    models_note: str | None = None,
+    command: str | None = None,
+    fit_options: dict | None = None,
+    timestamp: str | None = None,
+) -> str:
+    """Fit, forecast, compare, backtest and render one self-contained HTML page.
+
+    Parameters
+    ----------
+    series : GrowthSeries
+    horizon : int
+        Periods to forecast.
+    engine : {"exact", "nuts"}
+        Engine of the forecast and of the backtest's Bayesian method.
+    seed : int
+    priors : Priors, optional
+    levels : sequence of int
+    target : float, optional
+        A budget or guidance value; the headline gives the probability of reaching it.
+    target_probability : float
+    with_backtest : bool
+        Run a rolling-origin backtest (engine, log-linear and naive methods) when the
+        history is long enough (see :func:`backtest_settings_for`).
+    models : pandas.DataFrame, optional
+        A model comparison table to show (when several models were fitted).
+    models_note : str, optional
+    command : str, optional
+        The command line (or call) that reproduces the report.
+    fit_options : dict, optional
+        Further options for :func:`bayesgrowth.inference.fit_series`.
+    timestamp : str, optional
+        Override the time stamp (for reproducibility tests).
+
+    Returns
+    -------
+    str
+        The HTML page.
+    """
+    import matplotlib
+
+    matplotlib.use("Agg")
+
+    from bayesgrowth.comparison import compare_to_forecast
+    from bayesgrowth.forecast.forecast import forecast
+    from bayesgrowth.inference.run import fit_series
+    from bayesgrowth.leastsq import LeastSquaresError
+    from bayesgrowth.plots.compare import comparison_figure
+    from bayesgrowth.plots.fan import plot_fan
+
+    fit = fit_series(series, engine=engine, priors=priors, seed=seed, **(fit_options or {}))
+    fc = forecast(fit, horizon, levels=levels)
+    ax = plot_fan(fc)
+    parts = ReportParts(
+        forecast=fc,
+        fan_chart=figure_data_uri(ax.figure),
+        command=command or f"build_report(series, {horizon}, engine={engine!r}, seed={seed})",
+        target=target,
+        target_probability=target_probability,
+        models=models,
+        models_note=models_note,
+    )
+    if timestamp is not None:
+        parts.timestamp = timestamp
+    try:
+        comp = compare_to_forecast(fc)
+    except LeastSquaresError:
+        comp = None
+    if comp is not None:
+        parts.comparison = comp
+        parts.comparison_chart = figure_data_uri(comparison_figure(comp))
+    settings = backtest_settings_for(series.n, horizon) if with_backtest else None
+    if settings is not None:
+        from bayesgrowth.backtest import backtest
+        from bayesgrowth.plots.backtest import calibration_figure
+
+        min_train, bt_h = settings
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            result = backtest(series, methods=(engine, "log-linear", "naive"), horizon=bt_h,
+                              min_train=min_train, levels=fc.levels, seed=seed, priors=priors)
+        parts.backtest = result
+        parts.calibration_chart = figure_data_uri(calibration_figure(result))
+    return render_report(parts)
+
+
+def write_report(path: str | Path, html_text: str) -> Path:
+    """Write a report page (UTF-8)."""
+    path = Path(path)
+    path.write_text(html_text, encoding="utf-8")
+    return path
