@@ -8,6 +8,7 @@ engines, diagnostics) → ``forecast`` (posterior predictive bands) → ``leasts
 """
 
 from bayesgrowth._version import __version__
+from bayesgrowth.backtest import BacktestResult, backtest
 from bayesgrowth.config import DEFAULT_LEVELS
 from bayesgrowth.data import GrowthSeries, InputError, load_demo, read_series
 from bayesgrowth.forecast import CAUTION, Forecast, forecast
@@ -17,6 +18,7 @@ from bayesgrowth.plots.fan import plot_fan
 from bayesgrowth.priors import GrowthPrior, InitialValuePrior, NoisePrior, Priors
 
 __all__ = [
+    "BacktestResult",
     "CAUTION",
     "DEFAULT_LEVELS",
     "Diagnostics",
@@ -31,6 +33,7 @@ __all__ = [
     "Priors",
     "SamplingWarning",
     "__version__",
+    "backtest",
     "fit_series",
     "forecast",
     "load_demo",

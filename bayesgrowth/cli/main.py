@@ -13,7 +13,7 @@ import sys
 from pathlib import Path
 
 from bayesgrowth._version import __version__
-from bayesgrowth.cli import compare
+from bayesgrowth.cli import backtest, batch, compare, models, report
 from bayesgrowth.cli.common import (
     PROG,
     Parser,
@@ -81,6 +81,10 @@ def build_parser() -> argparse.ArgumentParser:
     demo.add_argument("--target-probability", type=float, default=0.5, help=argparse.SUPPRESS)
     demo.set_defaults(run=_run_demo)
     compare.add_parser(sub)
+    backtest.add_parser(sub)
+    report.add_parser(sub)
+    batch.add_parser(sub)
+    models.add_parser(sub)
     return parser
 
 

@@ -159,7 +159,14 @@ def _headline(p: ReportParts, summary: dict) -> str:
         p_last = tg["probability_at_least_by_period"][fin["period"]]
         parts.append(f"Probability of reaching {_num(tg['value'])} by {_e(fin['period'])}: "
                      f"<strong>{p_last:.0%}</strong>.")
-    return '<p class="headline">' + " ".join(parts) + "</p>"
+    out = '<p class="headline">' + " ".join(parts) + "</p>"
+    if p.backtest is not None:
+        verdict = p.backtest.verdicts().get(summary["engine"])
+        if verdict and verdict != "calibrated":
+            out += (f'<p class="warn">The backtest on this history judged this model\'s bands: '
+                    f"<strong>{_e(verdict)}</strong>. Read the band above with that in mind "
+                    "(see Backtest calibration below).</p>")
+    return out
 
 
 def _forecast_table(fc: Forecast) -> str:

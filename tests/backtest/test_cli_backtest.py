@@ -1,0 +1,96 @@
+"""``bayesgrowth backtest`` end to end on the bundled demo, and its one-line usage errors."""
+
+from __future__ import annotations
+
+import subprocess
+import sys
+
+import pandas as pd
+import pytest
+
+from bayesgrowth.cli.backtest import OUTPUT_FILES
+from bayesgrowth.cli.main import main
+from bayesgrowth.data.demo import demo_path
+
+
+def _run(argv, capsys):
+    code = main(argv)
+    out = capsys.readouterr()
+    return code, out.out, out.err
+
+
+def test_backtest_writes_every_file_and_prints_verdicts(tmp_path, capsys):
+    out = tmp_path / "bt"
+    code, stdout, stderr = _run(
+        ["backtest", str(demo_path()), "--horizon", "3", "--min-train", "10", "--out", str(out),
+         "--methods", "exact,log-linear, anchored,revenue-scale,naive", "--levels", "50,80",
+         "--draws", "250", "--quiet"],
+        capsys,
+    )
+    assert code == 0, stderr
+    assert sorted(p.name for p in out.iterdir()) == sorted(OUTPUT_FILES)
+    forecasts = pd.read_csv(out / "backtest_forecasts.csv")
+    for col in ("method", "origin", "step", "period", "actual", "median", "lower_80",
+                "upper_80", "pit", "crps", "log_score"):
+        assert col in forecasts.columns
+    assert "lower_95" not in forecasts.columns
+    assert list(pd.unique(forecasts["method"])) == [
+        "exact", "log-linear, anchored", "revenue-scale", "naive"
+    ]
+    scores = pd.read_csv(out / "backtest_scores.csv")
+    for col in ("method", "step", "n", "coverage_50", "coverage_80", "crps", "log_score",
+                "abs_pct_error_median", "verdict"):
+        assert col in scores.columns
+    assert set(scores["step"].astype(str)) == {"1", "2", "3", "all"}
+    diagnostics = pd.read_csv(out / "backtest_diagnostics.csv")
+    assert set(diagnostics["method"]) == {"exact"} and len(diagnostics) == 10
+    for png in ("calibration.png", "backtest_fans.png"):
+        assert (out / png).read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+    for method in ("exact", "log-linear, anchored", "naive"):
+        assert any(line.startswith(f"{method}: ") and "80% bands held" in line
+                   for line in stdout.splitlines())
+    assert "revenue-scale: no bands (point forecast)" in stdout
+    assert "caution:" in stdout and "not investment advice" in stdout
+    assert "overlapping origins" in stdout
+
+
+@pytest.mark.parametrize(
+    ("extra", "needle"),
+    [
+        (["--horizon", "0"], "--horizon"),
+        (["--min-train", "2"], "--min-train 2"),
+        (["--min-train", "20"], "--min-train 20"),
+        (["--window", "12"], "--window 12"),
+        (["--stride", "0"], "--stride 0"),
+        (["--methods", "exact,guesswork"], "--methods"),
+        (["--engine", "nuts"], "--engine"),
+        (["--levels", "80,150"], "--levels"),
+        (["--growth-give-or-take", "-1"], "prior options"),
+        (["--reference-period", "1999Q1"], "1999Q1"),
+    ],
+)
+def test_bad_options_exit_2_with_one_line_and_no_files(tmp_path, capsys, extra, needle):
+    out = tmp_path / "never"
+    argv = ["backtest", str(demo_path()), "--horizon", "2", "--min-train", "10",
+            "--out", str(out), "--quiet", *extra]
+    code, stdout, stderr = _run(argv, capsys)
+    assert code == 2
+    lines = stderr.strip().splitlines()
+    assert len(lines) == 1 and needle in lines[0], stderr
+    assert "Traceback" not in stderr
+    assert not out.exists()
+    assert not list(tmp_path.iterdir())
+
+
+def test_missing_file_and_bad_value_exit_2_from_a_fresh_process(tmp_path):
+    bad = tmp_path / "bad.csv"
+    bad.write_text("period,value\n2024Q1,100\n2024Q2,0\n2024Q3,120\n2024Q4,130\n")
+    for path in (tmp_path / "absent.csv", bad):
+        proc = subprocess.run(
+            [sys.executable, "-m", "bayesgrowth", "backtest", str(path), "--horizon", "1",
+             "--min-train", "3", "--out", str(tmp_path / "out")],
+            capture_output=True, text=True,
+        )
+        assert proc.returncode == 2, proc.stderr
+        assert len(proc.stderr.strip().splitlines()) == 1 and "Traceback" not in proc.stderr
+        assert not (tmp_path / "out").exists()
