@@ -75,6 +75,34 @@ def add_model_options(p: argparse.ArgumentParser, *, horizon_required: bool = Tr
         "--draws", type=_positive_int, default=1000, help="posterior draws per chain [1000]"
     )
     p.add_argument("--chains", type=_positive_int, default=4, help="chains [4]")
+    m = p.add_argument_group("model (see docs/growth-curves.md)")
+    m.add_argument(
+        "--model",
+        choices=("exponential", "damped", "logistic", "gompertz", "local-trend"),
+        default="exponential",
+        help="growth curve [exponential]",
+    )
+    m.add_argument(
+        "--errors",
+        choices=("independent", "ar1"),
+        default="independent",
+        help="ar1: deviations from the curve persist into the next periods [independent]",
+    )
+    m.add_argument(
+        "--noise-dist",
+        choices=("normal", "student-t"),
+        default="normal",
+        help="student-t: heavy tails, one odd period does not bend the curve [normal]",
+    )
+    m.add_argument(
+        "--seasonal", action="store_true", help="seasonal factors (quarterly or monthly data)"
+    )
+    m.add_argument(
+        "--drift",
+        choices=("random-walk", "mean-reverting"),
+        default="random-walk",
+        help="local-trend only: how the growth rate drifts [random-walk]",
+    )
     g = p.add_argument_group("priors (see docs/user-guide.md)")
     g.add_argument(
         "--initial-give-or-take",
@@ -117,6 +145,41 @@ def add_model_options(p: argparse.ArgumentParser, *, horizon_required: bool = Tr
         metavar="PCT",
         help="typical deviation from trend in percent (half-normal scale) [30]",
     )
+    g.add_argument(
+        "--ceiling",
+        type=float,
+        default=None,
+        metavar="V",
+        help="logistic/gompertz: central ceiling (market size) on the data's scale",
+    )
+    g.add_argument(
+        "--ceiling-multiple",
+        type=float,
+        default=3.0,
+        metavar="M",
+        help="logistic/gompertz: ceiling about M times the latest value, if --ceiling unset [3]",
+    )
+    g.add_argument(
+        "--ceiling-give-or-take",
+        type=float,
+        default=100.0,
+        metavar="PCT",
+        help="spread of the ceiling prior in percent [100]",
+    )
+    g.add_argument(
+        "--half-life",
+        type=float,
+        default=None,
+        metavar="PERIODS",
+        help="damped/logistic/gompertz: periods over which growth halves [two years]",
+    )
+    g.add_argument(
+        "--half-life-factor",
+        type=float,
+        default=3.0,
+        metavar="F",
+        help="spread of the half-life prior: within a factor of F [3]",
+    )
     p.add_argument("--quiet", action="store_true", help="no progress output")
 
 
@@ -138,35 +201,76 @@ def read_input(args) -> GrowthSeries:
 
 def priors_from_args(args):
     """The :class:`~bayesgrowth.priors.Priors` the prior options describe."""
-    from bayesgrowth.priors import GrowthPrior, InitialValuePrior, NoisePrior, Priors
+    from bayesgrowth.priors import (
+        CeilingPrior,
+        GrowthPrior,
+        HalfLifePrior,
+        InitialValuePrior,
+        NoisePrior,
+        Priors,
+    )
 
     try:
+        extra = {}
+        if hasattr(args, "ceiling_multiple"):
+            extra["ceiling"] = CeilingPrior(
+                args.ceiling, args.ceiling_multiple, args.ceiling_give_or_take
+            )
+            extra["half_life"] = HalfLifePrior(args.half_life, args.half_life_factor)
         return Priors(
             initial=InitialValuePrior(args.initial_give_or_take, args.initial_value),
             growth=GrowthPrior(args.growth, args.growth_give_or_take),
             noise=NoisePrior(args.noise),
             reference_period=args.reference_period,
+            **extra,
         )
     except ValueError as exc:
         raise UsageError(f"prior options: {exc}") from None
 
 
+def model_options_from_args(args) -> dict:
+    """The ``fit_series`` options choosing the model (curve, errors, noise, seasons)."""
+    return {
+        "model": getattr(args, "model", "exponential"),
+        "errors": getattr(args, "errors", "independent"),
+        "noise": getattr(args, "noise_dist", "normal"),
+        "seasonal": bool(getattr(args, "seasonal", False)),
+        "drift": getattr(args, "drift", "random-walk"),
+    }
+
+
 def fit_from_args(args, series):
-    """Fit ``series`` with the engine and priors the options name; warn loudly on failure."""
+    """Fit ``series`` with the engine, model and priors the options name; warn on failure."""
     from bayesgrowth.inference.run import fit_series
+    from bayesgrowth.models.spec import ModelSpec
 
     priors = priors_from_args(args)
-    options = {"draws": args.draws, "chains": args.chains}
+    spec_options = model_options_from_args(args)
+    try:
+        spec = ModelSpec(**spec_options)
+    except ValueError as exc:
+        raise UsageError(f"model options: {exc}") from None
+    if args.engine == "exact" and not spec.is_plain_exponential:
+        raise UsageError(
+            f"--engine exact covers only the exponential model with independent normal "
+            f"errors, not {spec.label()}; use --engine nuts"
+        )
+    options = {"draws": args.draws, "chains": args.chains, **spec_options}
     if args.engine == "nuts":
         options["progressbar"] = not args.quiet
     say(
         args,
         f"fitting {series.name} ({series.n} {series.axis.frequency} observations) "
-        f"with the {args.engine} engine ...",
+        f"with the {args.engine} engine ({spec.label()}) ...",
     )
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
-        fit = fit_series(series, engine=args.engine, priors=priors, seed=args.seed, **options)
+        try:
+            fit = fit_series(
+                series, engine=args.engine, priors=priors, seed=args.seed, **options
+            )
+        except ValueError as exc:
+            raise UsageError(f"{exc}") from None
     for w in caught:
         if "diagnostics" in str(w.message):
             print(f"WARNING: {w.message}", file=sys.stderr)

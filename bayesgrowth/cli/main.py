@@ -13,7 +13,7 @@ import sys
 from pathlib import Path
 
 from bayesgrowth._version import __version__
-from bayesgrowth.cli import backtest, compare, report
+from bayesgrowth.cli import backtest, batch, compare, models, report
 from bayesgrowth.cli.common import (
     PROG,
     Parser,
@@ -83,6 +83,8 @@ def build_parser() -> argparse.ArgumentParser:
     compare.add_parser(sub)
     backtest.add_parser(sub)
     report.add_parser(sub)
+    batch.add_parser(sub)
+    models.add_parser(sub)
     return parser
 
 

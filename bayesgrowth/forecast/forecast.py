@@ -10,7 +10,7 @@ import pandas as pd
 
 from bayesgrowth.config import DEFAULT_LEVELS, check_levels
 from bayesgrowth.inference.fit import Fit
-from bayesgrowth.models import exponential
+from bayesgrowth.models import exponential, general
 
 __all__ = ["Forecast", "forecast", "extrapolation_caution", "CAUTION"]
 
@@ -171,11 +171,14 @@ class Forecast:
     def summary(self, target: float | None = None, target_probability: float = 0.5) -> dict:
         """A JSON-ready summary: parameters, growth, diagnostics, provenance, cautions."""
         derived = self.fit.derived()
+        fit_flat = self.fit.flat()
         growth = self.growth()
         out = {
             "series": self.fit.series.name,
             "engine": self.fit.engine,
             "model": self.fit.model,
+            "model_options": self.fit.spec.to_dict(),
+            "model_description": self.fit.spec.label(),
             "seed": self.fit.seed,
             "forecast_seed": self.seed,
             "horizon": self.horizon,
@@ -188,6 +191,10 @@ class Forecast:
             },
             "growth_per_period": _interval(derived["growth_per_period"]),
         }
+        if "ceiling" in derived:
+            out["ceiling"] = _interval(derived["ceiling"])
+        if "half_life" in fit_flat:
+            out["half_life_periods"] = _interval(fit_flat["half_life"])
         for name in ("growth_per_year", "doubling_time_periods"):
             if name in growth.index:
                 out[name] = {k: _finite(v) for k, v in growth.loc[name].items()}
@@ -205,7 +212,9 @@ class Forecast:
             }
         fit = self.fit
         out["diagnostics"] = fit.diagnostics.to_dict()
-        out["priors"] = {"used": fit.priors.to_dict(), "in_words": fit.priors.describe()}
+        out["priors"] = {
+            "used": fit.priors.to_dict(), "in_words": fit.priors.describe(fit.spec)
+        }
         out["settings"] = fit.settings
         out["input"] = {
             "source": fit.series.source,
@@ -263,8 +272,14 @@ def forecast(
     rng = np.random.default_rng([seed, 1])
     t = fit.series.future_t(horizon)
     params = fit.flat()
-    log_draws = exponential.simulate_log(params, t, fit.priors.t_ref, rng)
-    curve = exponential.log_mean(params, t, fit.priors.t_ref)
+    if fit.spec.is_plain_exponential:
+        log_draws = exponential.simulate_log(params, t, fit.priors.t_ref, rng)
+        curve = exponential.log_mean(params, t, fit.priors.t_ref)
+    else:
+        s = fit.series
+        log_draws, curve = general.simulate_log(
+            fit.spec, params, s.t, s.log_values, t, fit.priors.t_ref, rng, s.axis
+        )
     return Forecast(
         fit=fit,
         horizon=horizon,

@@ -11,7 +11,8 @@ import numpy as np
 from bayesgrowth._version import __version__
 from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.inference.diagnostics import Diagnostics
-from bayesgrowth.models import exponential
+from bayesgrowth.models import exponential, general
+from bayesgrowth.models.spec import ModelSpec
 from bayesgrowth.priors import ResolvedPriors
 
 __all__ = ["Fit"]
@@ -32,12 +33,19 @@ class Fit:
     seed : int
         Seed that reproduces the draws.
     posterior : dict of str to numpy.ndarray
-        Draws of each parameter with shape ``(chain, draw)``: ``log_a``, ``log1p_g``,
-        ``sigma``.
+        Draws of each parameter with shape ``(chain, draw)`` (``log_a``, ``log1p_g``,
+        ``sigma``, and the further parameters of ``spec``), or ``(chain, draw, k)``
+        for vectors (the seasonal factors ``season``). The local trend's states are
+        integrated out, so its posterior holds only scalar parameters.
     diagnostics : Diagnostics
         Convergence checks.
     settings : dict
         Engine settings (draws, chains, target_accept, ...).
+    model : str
+        The curve's name (``spec.model``).
+    spec : ModelSpec, optional
+        The full model choice (curve, errors, noise, seasonal factors); default the
+        exponential model with independent normal errors, or ``model`` if given.
     """
 
     series: GrowthSeries
@@ -48,27 +56,63 @@ class Fit:
     diagnostics: Diagnostics
     settings: dict = field(default_factory=dict)
     model: str = "exponential"
+    spec: ModelSpec | None = None
+
+    def __post_init__(self) -> None:
+        if self.spec is None:
+            self.spec = ModelSpec(model=self.model)
+        self.model = self.spec.model
+
+    @property
+    def _shape(self) -> tuple[int, int]:
+        c, d = next(iter(self.posterior.values())).shape[:2]
+        return int(c), int(d)
 
     @property
     def n_draws(self) -> int:
         """Total number of posterior draws (chains times draws)."""
-        return int(next(iter(self.posterior.values())).size)
+        c, d = self._shape
+        return c * d
 
     def flat(self) -> dict[str, np.ndarray]:
-        """Draws with chains stacked: each parameter as a 1-D array."""
-        return {k: v.reshape(-1) for k, v in self.posterior.items()}
+        """Draws with chains stacked: scalars as 1-D arrays, vectors as ``(n_draws, k)``."""
+        n = self.n_draws
+        return {k: v.reshape(n, *v.shape[2:]) for k, v in self.posterior.items()}
 
     def derived(self) -> dict[str, np.ndarray]:
-        """Draws of ``initial_value`` (``a``) and ``growth_per_period`` (``g``), flat."""
+        """Flat draws of quantities in the data's terms.
+
+        ``initial_value`` (``a``) and ``growth_per_period``: ``g`` for the exponential
+        model; for the other curves the growth of the trend over the last observed
+        period (the current growth rate, seasons excluded). Also ``ceiling``
+        (``K``) and ``half_life`` for the curves that have them.
+        """
         d = self.flat()
-        return {"initial_value": np.exp(d["log_a"]), "growth_per_period": np.expm1(d["log1p_g"])}
+        if self.spec.model == "exponential":
+            g = np.expm1(d["log1p_g"])
+        else:
+            g = np.expm1(general.latest_growth(
+                self.spec, d, self.series.t_last, self.priors.t_ref, self.series, self.seed
+            ))
+        out = {"initial_value": np.exp(d["log_a"]), "growth_per_period": g}
+        if "log_k" in d:
+            out["ceiling"] = np.exp(d["log_k"])
+        return out
 
     def log_likelihood(self) -> np.ndarray:
-        """Pointwise log likelihood of the observations, ``(chain, draw, obs)``."""
-        flat = exponential.log_likelihood(
-            self.flat(), self.series.t, self.series.values, self.priors.t_ref
-        )
-        c, d = next(iter(self.posterior.values())).shape
+        """Pointwise log likelihood of the observations, ``(chain, draw, obs)``.
+
+        With AR(1) errors each term is the density of an observation given the one
+        before it (see :func:`bayesgrowth.models.general.log_likelihood`).
+        """
+        s = self.series
+        if self.spec.is_plain_exponential:
+            flat = exponential.log_likelihood(self.flat(), s.t, s.values, self.priors.t_ref)
+        else:
+            flat = general.log_likelihood(
+                self.spec, self.flat(), s.t, s.values, self.priors.t_ref, s.axis
+            )
+        c, d = self._shape
         return flat.reshape(c, d, -1)
 
     def attrs(self) -> dict[str, str]:
@@ -77,6 +121,10 @@ class Fit:
         return {
             "bayesgrowth_version": __version__,
             "model": self.model,
+            "errors": self.spec.errors,
+            "noise": self.spec.noise,
+            "seasonal": str(self.spec.seasonal).lower(),
+            "model_spec": json.dumps(self.spec.to_dict()),
             "engine": self.engine,
             "seed": str(self.seed),
             "series_name": self.series.name,
@@ -94,14 +142,14 @@ class Fit:
     def _datasets(self, predictive: dict | None = None):
         import xarray as xr
 
-        c, d = next(iter(self.posterior.values())).shape
+        c, d = self._shape
         coords = {"chain": np.arange(c), "draw": np.arange(d)}
         derived = {k: v.reshape(c, d) for k, v in self.derived().items()}
-        post = xr.Dataset(
-            {k: (("chain", "draw"), v) for k, v in {**self.posterior, **derived}.items()},
-            coords=coords,
-            attrs=self.attrs(),
-        )
+        variables = {}
+        for k, v in {**self.posterior, **derived}.items():
+            dims = ("chain", "draw") + tuple(f"{k}_dim_{i}" for i in range(v.ndim - 2))
+            variables[k] = (dims, v)
+        post = xr.Dataset(variables, coords=coords, attrs=self.attrs())
         obs_coords = {"period": self.series.labels}
         observed = xr.Dataset(
             {"value": (("period",), self.series.values), "t": (("period",), self.series.t)},

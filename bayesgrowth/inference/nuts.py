@@ -10,7 +10,8 @@ import numpy as np
 from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.inference.diagnostics import Diagnostics
 from bayesgrowth.inference.fit import Fit
-from bayesgrowth.models import exponential
+from bayesgrowth.models import exponential, general
+from bayesgrowth.models.spec import ModelSpec
 from bayesgrowth.priors import ResolvedPriors
 
 __all__ = ["fit_nuts", "default_target_accept"]
@@ -28,8 +29,7 @@ def diagnose(posterior_ds, divergences: int) -> Diagnostics:
     """R-hat, ESS (ArviZ, rank-normalised) and divergences of a posterior dataset."""
     import arviz as az
 
-    names = [v for v in ("log_a", "log1p_g", "sigma") if v in posterior_ds and
-             posterior_ds[v].std() > 0]
+    names = [v for v in posterior_ds.data_vars if posterior_ds[v].std() > 0]
     ds = posterior_ds[names]
     rhat = float(az.rhat(ds).to_array().max())
     ess_bulk = float(az.ess(ds, method="bulk").to_array().min())
@@ -48,6 +48,7 @@ def fit_nuts(
     target_accept: float | None = None,
     cores: int = 1,
     progressbar: bool = False,
+    spec: ModelSpec | None = None,
 ) -> Fit:
     """Sample the posterior with PyMC NUTS.
 
@@ -66,11 +67,20 @@ def fit_nuts(
         second process barely pays for its start-up with a model this small.
     progressbar : bool
         Show PyMC's progress bar.
+    spec : ModelSpec, optional
+        The model; default the exponential curve with independent normal errors.
+        Diagnostics cover every parameter, seasonal factor and local-trend state.
     """
     import pymc as pm
 
+    spec = spec or ModelSpec()
     target_accept = target_accept or default_target_accept(series.n)
-    model = exponential.build_pymc_model(priors, series.t, series.log_values)
+    if spec.is_plain_exponential:
+        model = exponential.build_pymc_model(priors, series.t, series.log_values)
+    else:
+        model = general.build_pymc_model(
+            spec, priors, series.t, series.log_values, axis=series.axis
+        )
     logger = logging.getLogger("pymc")
     level = logger.level
     if not progressbar:
@@ -94,11 +104,15 @@ def fit_nuts(
     finally:
         logger.setLevel(level)
     post = idata.posterior
-    posterior = {k: np.asarray(post[k].values, dtype=float) for k in exponential.PARAMETERS}
+    names = spec.parameters() + spec.vector_parameters()
+    posterior = {k: np.asarray(post[k].values, dtype=float) for k in names}
+    for k in ("log_a", "long_run", "sigma_level"):  # fixed values are scalar Deterministics
+        if k in posterior and posterior[k].shape != posterior["sigma"].shape:
+            posterior[k] = np.broadcast_to(posterior[k], posterior["sigma"].shape).copy()
     if priors.fixed_initial:
         posterior["log_a"] = np.full_like(posterior["sigma"], priors.log_a_mu)
     divergences = int(idata.sample_stats["diverging"].sum())
-    diagnostics = diagnose(post, divergences)
+    diagnostics = diagnose(post[list(names)], divergences)
     return Fit(
         series=series,
         priors=priors,
@@ -108,4 +122,6 @@ def fit_nuts(
         diagnostics=diagnostics,
         settings={"draws": draws, "tune": tune, "chains": chains,
                   "target_accept": target_accept, "cores": cores},
+        model=spec.model,
+        spec=spec,
     )

@@ -7,6 +7,7 @@ import secrets
 from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.inference.exact import fit_exact
 from bayesgrowth.inference.fit import Fit
+from bayesgrowth.models.spec import ModelSpec
 from bayesgrowth.priors import Priors
 
 __all__ = ["ENGINES", "fit_series"]
@@ -20,18 +21,35 @@ def fit_series(
     engine: str = "nuts",
     priors: Priors | None = None,
     seed: int | None = None,
+    model: str = "exponential",
+    errors: str = "independent",
+    noise: str = "normal",
+    seasonal: bool = False,
+    drift: str = "random-walk",
     **settings,
 ) -> Fit:
-    """Fit the exponential growth model to ``series`` with the chosen engine.
+    """Fit a growth model to ``series`` with the chosen engine.
 
     Parameters
     ----------
     series : GrowthSeries
     engine : {"nuts", "exact"}
+        The exact engine covers only the exponential model with independent normal
+        errors and no seasonal factors.
     priors : Priors, optional
         Defaults documented in :mod:`bayesgrowth.priors`.
     seed : int, optional
         A fresh seed is drawn (and recorded in the result) when omitted.
+    model : {"exponential", "damped", "logistic", "gompertz", "local-trend"}
+        The curve (see :mod:`bayesgrowth.models.spec`).
+    errors : {"independent", "ar1"}
+        Whether deviations from the curve persist (AR(1) on the log scale).
+    noise : {"normal", "student-t"}
+        Noise distribution; Student-t tolerates outlying periods.
+    seasonal : bool
+        Multiplicative seasonal factors (quarterly or monthly data).
+    drift : {"random-walk", "mean-reverting"}
+        For ``local-trend``: how the growth rate drifts.
     **settings
         Passed to the engine (``draws``, ``chains``; for NUTS also ``tune``,
         ``target_accept``, ``cores``, ``progressbar``).
@@ -43,14 +61,29 @@ def fit_series(
     """
     if engine not in ENGINES:
         raise ValueError(f"engine must be one of {', '.join(ENGINES)}, got {engine!r}")
+    spec = ModelSpec(model=model, errors=errors, noise=noise, seasonal=seasonal, drift=drift)
+    if engine == "exact" and not spec.is_plain_exponential:
+        raise ValueError(
+            f"engine='exact' covers only the exponential model with independent normal errors "
+            f"and no seasonal factors, not {spec.label()}; use engine='nuts'"
+        )
+    if spec.seasonal:
+        from bayesgrowth.models.spec import season_index
+
+        season_index(series.axis, series.t)  # refuses calendars without seasons
     seed = secrets.randbits(32) if seed is None else int(seed)
     resolved = (priors or Priors()).resolve(series)
+    if spec.model == "local-trend" and resolved.t_ref != int(series.t[0]):
+        raise ValueError(
+            "the local-trend model anchors its level at the first observation; "
+            "leave the reference period unset"
+        )
     if engine == "exact":
         settings = {k: v for k, v in settings.items() if k in ("draws", "chains")}
         fit = fit_exact(series, resolved, seed=seed, **settings)
     else:
         from bayesgrowth.inference.nuts import fit_nuts
 
-        fit = fit_nuts(series, resolved, seed=seed, **settings)
+        fit = fit_nuts(series, resolved, seed=seed, spec=spec, **settings)
     fit.diagnostics.warn_if_failed()
     return fit

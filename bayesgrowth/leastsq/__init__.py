@@ -7,6 +7,7 @@ sets them beside a Bayesian predictive distribution.
 """
 
 from bayesgrowth.leastsq.compare import compare_fits, fit_table, fit_variants, forecast_spread
+from bayesgrowth.leastsq.curves import CurveFit, fit_curve
 from bayesgrowth.leastsq.fits import (
     GrowthFit,
     LineFit,
@@ -22,6 +23,8 @@ from bayesgrowth.leastsq.nls import LeastSquaresError, NonlinearFit, fit_nonline
 from bayesgrowth.leastsq.windows import drop_first_fits, drop_last_fits, leave_one_out_fits
 
 __all__ = [
+    "CurveFit",
+    "fit_curve",
     "GrowthFit",
     "LeastSquaresError",
     "LineFit",

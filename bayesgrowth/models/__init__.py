@@ -1,16 +1,30 @@
-"""Growth curves. Each model module gives the curve's math and builds its PyMC model.
+"""Growth curves. Each model gives the curve's math and builds its PyMC model.
 
-A model module provides ``PARAMETERS``, ``log_mean(draws, t, t_ref)``,
-``simulate_log(draws, t, t_ref, rng)``, ``log_likelihood(draws, t, values, t_ref)``
-and ``build_pymc_model(priors, t, log_y, weights=None)``; :func:`get_model` finds
-one by name.
+:class:`~bayesgrowth.models.spec.ModelSpec` names a model (curve, errors, noise,
+seasonal factors); :mod:`bayesgrowth.models.general` holds the math of every
+model in NumPy and PyMC. The exponential module keeps its own functions
+(``PARAMETERS``, ``log_mean``, ``simulate_log``, ``log_likelihood``,
+``build_pymc_model``), which the exact engine builds on; :func:`get_model` finds
+it by name.
 """
 
 from types import ModuleType
 
-from bayesgrowth.models import exponential
+from bayesgrowth.models import exponential, general
+from bayesgrowth.models.spec import CURVES, DRIFTS, ERRORS, NOISES, ModelSpec, season_index
 
-__all__ = ["MODELS", "exponential", "get_model"]
+__all__ = [
+    "CURVES",
+    "DRIFTS",
+    "ERRORS",
+    "MODELS",
+    "NOISES",
+    "ModelSpec",
+    "exponential",
+    "general",
+    "get_model",
+    "season_index",
+]
 
 MODELS: dict[str, ModuleType] = {"exponential": exponential}
 

@@ -1,0 +1,211 @@
+"""The work of one series and of one chunk of series; runs in the worker processes.
+
+Everything here is a top-level function of picklable arguments so that any
+executor (a local process pool, a Dask cluster) can run it. A worker returns
+small tables only (forecast rows and one summary row per series); posteriors are
+written to files by the worker itself when asked, never sent back.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import os
+import re
+import tempfile
+import warnings
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from bayesgrowth.config import DEFAULT_LEVELS
+from bayesgrowth.data.series import GrowthSeries
+from bayesgrowth.priors import Priors
+
+__all__ = ["BatchSettings", "SeriesOutcome", "fit_chunk", "fit_one", "posterior_file_name"]
+
+#: Summary columns, in order.
+SUMMARY_COLUMNS = [
+    "series", "n_observations", "first_period", "last_period", "reference_period",
+    "initial_value_median", "initial_value_lower_95", "initial_value_upper_95",
+    "growth_median", "growth_lower_95", "growth_upper_95",
+    "diagnostics_ok", "max_rhat", "min_ess_bulk", "divergences", "engine", "seed",
+]
+
+
+@dataclass(frozen=True)
+class BatchSettings:
+    """Everything a worker needs to fit and forecast one series, the same for all series.
+
+    Parameters
+    ----------
+    horizon : int
+        Future periods to forecast.
+    engine : {"exact", "nuts"}
+    seed : int
+        Global seed; each series' seed is derived from it and the series name.
+    levels : tuple of int
+        Band levels in percent.
+    priors : Priors, optional
+    draws, chains, tune : int
+        Posterior draws per chain, chains, and NUTS tuning steps per chain.
+    model_options : dict
+        Further options of :func:`bayesgrowth.inference.fit_series` (``model``,
+        ``errors``, ...); any but the plain exponential model fits series one by one.
+    padded_length : int
+        Length the compiled NUTS model is padded to (from the whole batch, so that it
+        does not depend on which series a worker meets first).
+    posterior_dir : str, optional
+        Folder for per-series posterior files; ``None`` saves none.
+    threads : int
+        Threads a NUTS fit may use for its chains.
+    """
+
+    horizon: int
+    engine: str = "exact"
+    seed: int = 1
+    levels: tuple[int, ...] = DEFAULT_LEVELS
+    priors: Priors | None = None
+    draws: int = 1000
+    chains: int = 4
+    tune: int = 1000
+    model_options: dict = field(default_factory=dict)
+    padded_length: int = 0
+    posterior_dir: str | None = None
+    threads: int = 1
+
+    def to_record(self) -> dict:
+        """The settings that decide the results, JSON-ready (to check a resumed run)."""
+        from dataclasses import asdict
+
+        return {
+            "horizon": self.horizon, "engine": self.engine, "seed": self.seed,
+            "levels": list(self.levels),
+            "priors": None if self.priors is None else asdict(self.priors),
+            "draws": self.draws, "chains": self.chains,
+            "tune": self.tune if self.engine == "nuts" else None,
+            "model_options": dict(sorted(self.model_options.items())),
+        }
+
+    def uses_compiled_nuts(self) -> bool:
+        """Whether NUTS fits go through one compiled model (nutpie, plain exponential)."""
+        if self.engine != "nuts" or self.padded_length <= 0:
+            return False
+        from bayesgrowth.inference.refit import supports
+
+        plain = {"model": "exponential", "errors": "independent", "noise": "normal",
+                 "seasonal": False}
+        if any(self.model_options.get(k, v) != v for k, v in plain.items()):
+            return False
+        extra = {k: v for k, v in self.model_options.items() if k not in plain and k != "drift"}
+        return supports(extra)
+
+
+@dataclass
+class SeriesOutcome:
+    """What one series gave: forecast rows and a summary row, or a failure reason."""
+
+    name: str
+    fingerprint: str
+    forecast: pd.DataFrame | None = None
+    summary: dict | None = None
+    failure: str | None = None
+
+
+def posterior_file_name(name: str) -> str:
+    """A file name for a series' posterior: the name made safe, plus a short hash of it."""
+    safe = re.sub(r"[^A-Za-z0-9_.-]+", "_", name).strip("._")[:60] or "series"
+    return f"{safe}-{hashlib.sha256(name.encode('utf-8')).hexdigest()[:8]}.nc"
+
+
+def _q(x: np.ndarray) -> tuple[float, float, float]:
+    lo, med, hi = np.quantile(x, [0.025, 0.5, 0.975])
+    return float(med), float(lo), float(hi)
+
+
+def _fit(series: GrowthSeries, settings: BatchSettings, seed: int):
+    if settings.uses_compiled_nuts():
+        priors = settings.priors or Priors()
+        resolved = priors.resolve(series)
+        if not resolved.fixed_initial:
+            from bayesgrowth.batch.compiled import compiled_for
+
+            model = compiled_for(
+                priors, resolved, settings.padded_length, draws=settings.draws,
+                tune=settings.tune, chains=settings.chains, cores=settings.threads,
+            )
+            return model.fit(series, resolved, seed)
+    from bayesgrowth.inference.run import fit_series
+
+    options = dict(settings.model_options)
+    if settings.engine == "nuts":
+        options.setdefault("progressbar", False)
+        options.setdefault("cores", 1)
+        options.setdefault("tune", settings.tune)
+    return fit_series(
+        series, engine=settings.engine, priors=settings.priors, seed=seed,
+        draws=settings.draws, chains=settings.chains, **options,
+    )
+
+
+def fit_one(series: GrowthSeries, settings: BatchSettings) -> SeriesOutcome:
+    """Fit and forecast one series; any error becomes the outcome's failure reason.
+
+    Parameters
+    ----------
+    series : GrowthSeries
+    settings : BatchSettings
+
+    Returns
+    -------
+    SeriesOutcome
+    """
+    from bayesgrowth.batch.seeds import series_seed
+    from bayesgrowth.forecast.forecast import forecast
+
+    outcome = SeriesOutcome(name=series.name, fingerprint=series.fingerprint())
+    seed = series_seed(settings.seed, series.name)
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")  # diagnostics go to the summary instead
+            fit = _fit(series, settings, seed)
+            fc = forecast(fit, settings.horizon, levels=settings.levels)
+            table = fc.table
+    except Exception as exc:  # a series that cannot be fitted must not stop the batch
+        outcome.failure = f"{series.name}: {type(exc).__name__}: {exc}"
+        return outcome
+    table.insert(0, "series", series.name)
+    outcome.forecast = table
+    d = fit.derived()
+    a, g = _q(d["initial_value"]), _q(d["growth_per_period"])
+    diag = fit.diagnostics
+    outcome.summary = {
+        "series": series.name, "n_observations": series.n,
+        "first_period": series.labels[0], "last_period": series.labels[-1],
+        "reference_period": fit.priors.reference_period,
+        "initial_value_median": a[0], "initial_value_lower_95": a[1],
+        "initial_value_upper_95": a[2],
+        "growth_median": g[0], "growth_lower_95": g[1], "growth_upper_95": g[2],
+        "diagnostics_ok": bool(diag.ok), "max_rhat": diag.max_rhat,
+        "min_ess_bulk": diag.min_ess_bulk, "divergences": diag.divergences,
+        "engine": fit.engine, "seed": seed,
+    }
+    if settings.posterior_dir is not None:
+        folder = Path(settings.posterior_dir)
+        target = folder / posterior_file_name(series.name)
+        fd, tmp = tempfile.mkstemp(prefix=".part-", suffix=".nc", dir=folder)
+        os.close(fd)
+        try:
+            fit.to_netcdf(tmp, fc.predictive_groups())
+            os.replace(tmp, target)
+        finally:
+            if os.path.exists(tmp):
+                os.unlink(tmp)
+        outcome.summary["posterior_file"] = f"posteriors/{target.name}"
+    return outcome
+
+
+def fit_chunk(chunk: list[GrowthSeries], settings: BatchSettings) -> list[SeriesOutcome]:
+    """Fit every series of ``chunk`` in turn (see :func:`fit_one`)."""
+    return [fit_one(series, settings) for series in chunk]

@@ -1,0 +1,144 @@
+"""The ``batch`` subcommand: fit and forecast every series of a long-format file.
+
+Exit codes: 0 every series has a forecast; 3 some series failed (listed in
+failures.csv, the others have forecasts); 2 bad input or usage (nothing written);
+1 an unexpected failure; 130 interrupted (finished chunks are kept; the same
+command resumes).
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+
+from bayesgrowth.cli.common import (
+    PROG,
+    UsageError,
+    _positive_int,
+    add_model_options,
+    model_options_from_args,
+    priors_from_args,
+    say,
+)
+
+__all__ = ["add_parser", "EXIT_SOME_FAILED"]
+
+#: Exit code when some series failed and the others finished.
+EXIT_SOME_FAILED = 3
+
+def add_parser(subparsers) -> argparse.ArgumentParser:
+    """Register ``batch`` on the ``bayesgrowth`` command's subparsers."""
+    p = subparsers.add_parser(
+        "batch",
+        help="fit and forecast many series of one long-format file, each on its own",
+        description="Fit and forecast every series of FILE (one row per series and period) "
+        "independently, and write forecast.csv, summary.csv and failures.csv to --out. "
+        "Results are recorded as they finish: run the same command again to resume an "
+        "interrupted batch. Exit code 0: all series done; 3: some series failed (see "
+        "failures.csv); 2: bad input or usage.",
+    )
+    p.add_argument("file", type=Path, help="CSV file with series, period and value columns")
+    p.add_argument("--series-col", default="series", help="name of the series column [series]")
+    p.add_argument("--period-col", default="period", help="name of the period column [period]")
+    p.add_argument("--value-col", default="value", help="name of the value column [value]")
+    add_model_options(p)
+    for action in p._actions:  # many series: the fast engine by default
+        if action.dest == "engine":
+            action.default = "exact"
+            action.help = (action.help or "").replace("[nuts]", "[exact]")
+    p.add_argument("--out", type=Path, required=True, help="output folder (resumed if it "
+                   "holds an interrupted batch with the same options)")
+    p.add_argument("--executor", choices=("local", "dask"), default="local",
+                   help="local: processes on this machine; dask: a Dask cluster [local]")
+    p.add_argument("--scheduler", default=None, metavar="ADDRESS",
+                   help="Dask scheduler address, e.g. tcp://10.0.0.5:8786 [start a local "
+                   "cluster]")
+    p.add_argument("--workers", type=_positive_int, default=None, metavar="N",
+                   help="worker processes (local executor or local Dask cluster) [CPUs]")
+    p.add_argument("--chunk-size", type=_positive_int, default=None, metavar="N",
+                   help="series per unit of work, the most an interruption loses [automatic]")
+    p.add_argument("--save-posteriors", action="store_true",
+                   help="also write each series' posterior to posteriors/ (NetCDF)")
+    p.set_defaults(run=run)
+    return p
+
+
+def _executor(args):
+    from bayesgrowth.batch.executors import make_executor
+
+    if args.scheduler and args.executor != "dask":
+        raise UsageError("--scheduler: only with --executor dask")
+    try:
+        return make_executor(args.executor, args.workers, args.scheduler)
+    except ImportError as exc:
+        raise UsageError(f"--executor dask: {exc}") from None
+    except (OSError, TimeoutError, ValueError) as exc:
+        raise UsageError(
+            f"--scheduler {args.scheduler}: could not connect ({type(exc).__name__}: {exc}); "
+            "check the address and that the scheduler is running"
+        ) from None
+
+
+def run(args) -> int:
+    """Run the batch subcommand; returns the exit code."""
+    from bayesgrowth.batch.runner import run_batch
+    from bayesgrowth.batch.store import OUTPUTS
+    from bayesgrowth.batch.work import BatchSettings
+    from bayesgrowth.data.panel import quiet_read_panel
+    from bayesgrowth.models.spec import ModelSpec
+
+    if args.seed < 0:
+        raise UsageError(f"--seed {args.seed}: must be 0 or more")
+    panel, bad, notes = quiet_read_panel(
+        args.file, series_col=args.series_col, period_col=args.period_col,
+        value_col=args.value_col,
+    )
+    for note in notes:
+        say(args, f"note: {note}")
+    priors = priors_from_args(args)
+    options = model_options_from_args(args)
+    try:
+        spec = ModelSpec(**options)
+    except ValueError as exc:
+        raise UsageError(f"model options: {exc}") from None
+    if args.engine == "exact" and not spec.is_plain_exponential:
+        raise UsageError(
+            f"--engine exact covers only the exponential model with independent normal errors "
+            f"and no seasonal factors, not {spec.label()}; add --engine nuts"
+        )
+    settings = BatchSettings(
+        horizon=args.horizon, engine=args.engine, seed=args.seed, levels=tuple(args.levels),
+        priors=priors, draws=args.draws, chains=args.chains, model_options=options,
+    )
+    order = list(dict.fromkeys([*panel, *(name for name, _ in bad)]))
+    say(args, f"{len(order)} series in {args.file.name}: {len(panel)} to fit, "
+        f"{len(bad)} refused at reading; engine {args.engine}, executor {args.executor}")
+    executor = _executor(args)
+    try:
+        result = run_batch(
+            panel, args.out, settings, executor=executor, read_failures=bad, order=order,
+            protect=[args.file], chunk_size=args.chunk_size,
+            save_posteriors=args.save_posteriors, progress=not args.quiet,
+        )
+    except KeyboardInterrupt:
+        print(f"{PROG}: interrupted; finished series are kept in {args.out}: run the same "
+              "command again to resume", file=sys.stderr)
+        return 130
+    finally:
+        executor.close()
+    n_bad = len(result.failures)
+    n_done = len(result.summary)
+    print(f"{n_done} of {len(order)} series forecast ({result.n_fitted} fitted now, "
+          f"{result.n_skipped} finished earlier), {n_bad} failed")
+    if n_done and "diagnostics_ok" in result.summary:
+        n_diag = int((~result.summary["diagnostics_ok"].astype(bool)).sum())
+        if n_diag:
+            print(f"WARNING: sampling diagnostics failed for {n_diag} series; do not trust "
+                  "their forecasts (see diagnostics_ok in summary.csv)", file=sys.stderr)
+    for _, row in result.failures.head(5).iterrows():
+        print(f"failed: {row['reason']}", file=sys.stderr)
+    if n_bad > 5:
+        print(f"... and {n_bad - 5} more in failures.csv", file=sys.stderr)
+    print(f"wrote {', '.join(OUTPUTS)} to {args.out}")
+    return EXIT_SOME_FAILED if n_bad else 0

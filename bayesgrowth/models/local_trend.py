@@ -1,0 +1,214 @@
+"""The local trend as a Gaussian process in closed form, its states integrated out.
+
+On the calendar grid ``j = 0, 1, ...`` from the first observation,
+
+``level_j = level_{j-1} + growth_j + sigma_level z_j``,
+``growth_j = c + rho (growth_{j-1} - c) + sigma_growth u_j`` (``rho = 1``, no ``c``,
+for the random walk), ``level_0 = log a``, ``growth_0 = b``, ``z, u ~ Normal(0, 1)``.
+
+Every level and growth is linear in the shocks, so given the scalar parameters
+the log values are jointly normal: ``level = mean + sigma_growth A u + sigma_level
+B z`` with ``A_jk = sum_{i=k..j} rho^(i-k) = (1 - rho^(j-k+1)) / (1 - rho)`` and
+``B_jk = 1`` for ``k <= j``, and ``growth_j = mean + sigma_growth sum_k rho^(j-k)
+u_k``. The likelihood is then the multivariate normal density of the
+observations, which is what the Kalman filter computes (Durbin & Koopman 2012,
+*Time Series Analysis by State Space Methods*, ch. 7: the prediction-error
+decomposition). Sampling only the handful of scalar parameters avoids the badly
+conditioned, funnel-shaped geometry of sampling the paths themselves.
+
+Pointwise log likelihoods are the one-step conditional densities
+``p(y_i | y_1..y_{i-1})`` (from the Cholesky factor of the covariance), and
+forecasts condition the joint normal of future values on the observed ones.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+__all__ = ["coefficients", "error_covariance", "log_likelihood", "conditional_draws"]
+
+_JITTER = 1e-10
+_CHUNK = 250
+
+
+def coefficients(rho: np.ndarray | None, n_grid: int, xp=np):
+    """Shock loadings ``A`` (level), ``C`` (growth) and ``B`` (level shocks).
+
+    Shapes ``(S, n_grid, n_grid - 1)`` when ``rho`` has ``S`` draws, or
+    ``(n_grid, n_grid - 1)`` for the random walk (``rho=None``). With ``xp``
+    ``pytensor.tensor`` and a scalar ``rho`` the matrices are symbolic.
+    """
+    j = np.arange(n_grid)[:, None]
+    k = np.arange(1, n_grid)[None, :]
+    on = (j >= k).astype(float)
+    d = np.maximum(j - k, 0).astype(float)
+    b = on
+    if rho is None:
+        return (d + 1) * on, on, b
+    if xp is np:
+        r = np.asarray(rho, dtype=float)[:, None, None]
+        a = on * (1 - r ** (d + 1)) / (1 - r)
+        c = on * r**d
+        return a, c, b
+    a = on * (1 - rho ** (d + 1)) / (1 - rho)
+    c = on * rho**d
+    return a, c, b
+
+
+def mean_paths(draws: dict, n_grid: int, mean_reverting: bool):
+    """Mean level and growth on the grid, ``(S, n_grid)`` each."""
+    j = np.arange(n_grid, dtype=float)[None, :]
+    log_a = np.asarray(draws["log_a"], dtype=float)[:, None]
+    g0 = np.asarray(draws["log1p_g"], dtype=float)[:, None]
+    if not mean_reverting:
+        return log_a + j * g0, np.broadcast_to(g0, (g0.shape[0], n_grid))
+    c = np.asarray(draws["long_run"], dtype=float)[:, None]
+    r = np.asarray(draws["rho"], dtype=float)[:, None]
+    growth = c + r**j * (g0 - c)
+    level = log_a + j * c + (g0 - c) * r * (1 - r**j) / (1 - r)
+    return level, growth
+
+
+def error_covariance(sigma, phi, t: np.ndarray, xp=np):
+    """Covariance of the errors at times ``t``: ``sigma^2 I`` or stationary AR(1).
+
+    With NumPy ``sigma`` and ``phi`` are draws (or ``phi=None``) and the result
+    is ``(S, n, n)``.
+    """
+    t = np.asarray(t, dtype=float)
+    gap = np.abs(t[:, None] - t[None, :])
+    if xp is np:
+        s2 = np.asarray(sigma, dtype=float)[:, None, None] ** 2
+        if phi is None:
+            return s2 * np.eye(t.size)[None]
+        p = np.asarray(phi, dtype=float)[:, None, None]
+        return s2 / (1 - p**2) * p**gap
+    if phi is None:
+        return sigma**2 * np.eye(t.size)
+    return sigma**2 / (1 - phi**2) * phi**gap
+
+
+def _level_cov(draws, spec, n_grid, rows_a, rows_b):
+    """``sigma_growth^2 A_r A_s' + sigma_level^2 B_r B_s'`` for row sets r, s."""
+    rho = np.asarray(draws["rho"]) if spec.mean_reverting else None
+    a, _, b = coefficients(rho, n_grid)
+    sg2 = np.asarray(draws["sigma_growth"], dtype=float)[:, None, None] ** 2
+    sl2 = np.asarray(draws["sigma_level"], dtype=float)[:, None, None] ** 2
+    ar, as_ = a[..., rows_a, :], a[..., rows_b, :]
+    br, bs = b[rows_a], b[rows_b]
+    return sg2 * (ar @ np.swapaxes(as_, -1, -2)) + sl2 * (br @ bs.T)[None]
+
+
+def _chunks(draws: dict, n: int):
+    for start in range(0, n, _CHUNK):
+        yield {k: np.asarray(v)[start:start + _CHUNK] for k, v in draws.items()}
+
+
+def log_likelihood(spec, draws: dict, t: np.ndarray, resid_mean: np.ndarray, t_ref: int):
+    """One-step conditional log densities of the log values, ``(S, n)``.
+
+    ``resid_mean`` is ``log y`` minus the seasonal factors, per draw ``(S, n)``.
+    """
+    t = np.asarray(t, dtype=int)
+    idx = t - int(t_ref)
+    n_grid = int(idx.max()) + 1
+    out = []
+    n_draws = resid_mean.shape[0]
+    draws = {**draws, "_y": resid_mean}
+    for d in _chunks(draws, n_draws):
+        level, _ = mean_paths(d, n_grid, spec.mean_reverting)
+        r = d["_y"] - level[:, idx]
+        cov = _level_cov(d, spec, n_grid, idx, idx) + error_covariance(
+            d["sigma"], d.get("phi") if spec.errors == "ar1" else None, t
+        )
+        cov = cov + _JITTER * np.eye(idx.size)
+        chol = np.linalg.cholesky(cov)
+        v = np.linalg.solve(chol, r[..., None])[..., 0]
+        diag = np.diagonal(chol, axis1=-2, axis2=-1)
+        out.append(-0.5 * v**2 - np.log(diag) - 0.5 * math.log(2 * math.pi))
+    return np.concatenate(out, axis=0)
+
+
+def conditional_draws(
+    spec,
+    draws: dict,
+    t_obs: np.ndarray,
+    resid_mean: np.ndarray,
+    t_future: np.ndarray,
+    t_ref: int,
+    rng: np.random.Generator,
+):
+    """Draw future levels, future log values (seasons excluded) and the latest growth.
+
+    Each posterior draw's joint normal of (observations, future levels, future
+    values, growth in the last observed period) is conditioned on the observed
+    values, and one draw is taken from the conditional.
+
+    Returns
+    -------
+    level, value : numpy.ndarray, shape (S, H)
+    growth_last : numpy.ndarray, shape (S,)
+    """
+    t_obs = np.asarray(t_obs, dtype=int)
+    t_future = np.asarray(t_future, dtype=int)
+    idx = t_obs - int(t_ref)
+    fidx = t_future - int(t_ref)
+    j_last = int(idx[-1])
+    n_grid = int(max(idx.max(), fidx.max() if fidx.size else 0)) + 1
+    n, h = idx.size, fidx.size
+    levels, values, growths = [], [], []
+    draws = {**draws, "_y": resid_mean}
+    for d in _chunks(draws, resid_mean.shape[0]):
+        s = d["_y"].shape[0]
+        rho = np.asarray(d["rho"]) if spec.mean_reverting else None
+        a, c, b = coefficients(rho, n_grid)
+        if rho is None:
+            a, c = np.broadcast_to(a, (s, *a.shape)), np.broadcast_to(c, (s, *c.shape))
+        sg = np.asarray(d["sigma_growth"], dtype=float)[:, None, None]
+        sl = np.asarray(d["sigma_level"], dtype=float)[:, None, None]
+        rows = np.concatenate([idx, fidx])
+        # loadings of [level at obs and future; growth at the last observation] on (u, z)
+        load_u = np.concatenate([a[:, rows, :], c[:, [j_last], :]], axis=1) * sg
+        load_z = np.concatenate(
+            [np.broadcast_to(b[rows], (s, rows.size, n_grid - 1)),
+             np.zeros((s, 1, n_grid - 1))], axis=1) * sl
+        lat = load_u @ np.swapaxes(load_u, -1, -2) + load_z @ np.swapaxes(load_z, -1, -2)
+        # add the errors: observations and future values get them, levels do not
+        m = n + h
+        k = n + 2 * h + 1
+        sel = np.zeros((k, m + 1))  # map [obs levels, future levels, growth] -> outputs
+        sel[:n, :n] = np.eye(n)
+        sel[n:n + h, n:n + h] = np.eye(h)  # future levels
+        sel[n + h:n + 2 * h, n:n + h] = np.eye(h)  # future values share the level
+        sel[-1, -1] = 1.0
+        cov = sel @ lat @ sel.T
+        err = error_covariance(
+            d["sigma"], d.get("phi") if spec.errors == "ar1" else None,
+            np.concatenate([t_obs, t_future]),
+        )
+        pos = np.concatenate([np.arange(n), np.arange(n + h, n + 2 * h)])
+        cov[:, pos[:, None], pos[None, :]] += err
+        level_mean, growth_mean = mean_paths(d, n_grid, spec.mean_reverting)
+        mean = np.concatenate(
+            [level_mean[:, idx], level_mean[:, fidx], level_mean[:, fidx],
+             growth_mean[:, [j_last]]], axis=1,
+        )
+        s_oo = cov[:, :n, :n] + _JITTER * np.eye(n)
+        s_fo = cov[:, n:, :n]
+        s_ff = cov[:, n:, n:]
+        chol = np.linalg.cholesky(s_oo)
+        gain = np.swapaxes(
+            np.linalg.solve(np.swapaxes(chol, -1, -2), np.linalg.solve(chol, np.swapaxes(
+                s_fo, -1, -2))), -1, -2)
+        cmean = mean[:, n:] + (gain @ (d["_y"] - mean[:, :n])[..., None])[..., 0]
+        ccov = s_ff - gain @ np.swapaxes(s_fo, -1, -2)
+        ccov = 0.5 * (ccov + np.swapaxes(ccov, -1, -2))
+        evals, evecs = np.linalg.eigh(ccov)
+        root = evecs * np.sqrt(np.clip(evals, 0, None))[:, None, :]
+        x = cmean + (root @ rng.standard_normal((s, k - n, 1)))[..., 0]
+        levels.append(x[:, :h])
+        values.append(x[:, h:2 * h])
+        growths.append(x[:, -1])
+    return (np.concatenate(levels), np.concatenate(values), np.concatenate(growths))

@@ -1,0 +1,63 @@
+"""The batch command: exit codes 0 / 3 / 2, one-line errors, resuming, input kept."""
+
+import subprocess
+import sys
+
+import pandas as pd
+
+from bayesgrowth.cli import main
+from bayesgrowth.cli.batch import EXIT_SOME_FAILED
+
+
+def _batch(*args):
+    return main(["batch", *map(str, args), "--engine", "exact", "--draws", "200", "--quiet"])
+
+
+def test_all_good_exits_0_and_writes_three_files(tmp_path, good_csv, capsys):
+    out = tmp_path / "out"
+    assert _batch(good_csv, "-H", 3, "--out", out) == 0
+    assert {"forecast.csv", "summary.csv", "failures.csv"} <= {p.name for p in out.iterdir()}
+    assert len(pd.read_csv(out / "failures.csv")) == 0
+    assert "6 of 6 series forecast" in capsys.readouterr().out
+
+
+def test_some_failed_exits_3_and_resume_skips_finished(tmp_path, panel_csv, capsys):
+    out = tmp_path / "out"
+    assert EXIT_SOME_FAILED == 3
+    assert _batch(panel_csv, "-H", 2, "--out", out, "--workers", 2) == 3
+    err = capsys.readouterr().err
+    assert "failed: panel.csv, series 'zero', row" in err
+    assert _batch(panel_csv, "-H", 2, "--out", out) == 3
+    assert "0 fitted now, 12 finished earlier" in capsys.readouterr().out
+
+
+def test_bad_usage_exits_2_with_one_line_and_writes_nothing(tmp_path, good_csv, capsys):
+    out = tmp_path / "out"
+    cases = [
+        (tmp_path / "missing.csv", "-H", 2, "--out", out),
+        (good_csv, "-H", 2, "--out", out, "--series-col", "unit"),
+        (good_csv, "-H", 2, "--out", out, "--seed", -1),
+        (good_csv, "-H", 2, "--out", out, "--scheduler", "tcp://127.0.0.1:9"),
+        (good_csv, "-H", 0, "--out", out),
+        (good_csv, "-H", 2, "--out", good_csv),
+    ]
+    for args in cases:
+        assert _batch(*args) == 2, args
+        err = capsys.readouterr().err.strip()
+        assert err.count("\n") == 0 and err.startswith("bayesgrowth"), err
+        assert "Traceback" not in err
+        assert not out.exists()
+    assert good_csv.read_text().startswith("series,period,value")
+    assert _batch(good_csv, "-H", 2, "--out", out) == 0
+    assert _batch(good_csv, "-H", 3, "--out", out) == 2
+    assert "other settings (horizon was 2, now 3)" in capsys.readouterr().err
+
+
+def test_command_line_entry_point_exit_code(tmp_path, panel_csv):
+    proc = subprocess.run(
+        [sys.executable, "-m", "bayesgrowth", "batch", str(panel_csv), "-H", "2", "--out",
+         str(tmp_path / "o"), "--engine", "exact", "--draws", "200", "--quiet"],
+        capture_output=True, text=True,
+    )
+    assert proc.returncode == 3, proc.stderr
+    assert "Traceback" not in proc.stderr
