@@ -11,6 +11,7 @@ from bayesgrowth.cli.common import (
     UsageError,
     add_input,
     add_model_options,
+    checked_model_options,
     priors_from_args,
     read_input,
     say,
@@ -119,6 +120,7 @@ def run(args) -> int:
     _check_settings(args, series.n)
     priors = priors_from_args(args)
     priors.resolve(series.head(args.min_train))  # a bad --reference-period fails here, early
+    spec_options = checked_model_options(args, methods)
     from bayesgrowth.backtest.runner import BACKTEST_CAUTION, backtest
 
     say(args, f"backtesting {', '.join(methods)} on {series.name} ({series.n} points) ...")
@@ -134,7 +136,7 @@ def run(args) -> int:
             levels=args.levels,
             seed=args.seed,
             priors=priors,
-            model_options={"draws": args.draws, "chains": args.chains},
+            model_options={"draws": args.draws, "chains": args.chains, **spec_options},
             n_draws=args.draws * args.chains,
             progress=not args.quiet,
         )

@@ -239,6 +239,26 @@ def model_options_from_args(args) -> dict:
     }
 
 
+def checked_model_options(args, engines) -> dict:
+    """The curve and error options, refused early where an engine in ``engines`` cannot fit them.
+
+    Returns an empty dict for the plain exponential model (the default), else the options.
+    """
+    from bayesgrowth.models.spec import ModelSpec
+
+    options = model_options_from_args(args)
+    try:
+        spec = ModelSpec(**options)
+    except ValueError as exc:
+        raise UsageError(f"model options: {exc}") from None
+    if "exact" in engines and not spec.is_plain_exponential:
+        raise UsageError(
+            f"the exact engine covers only the exponential model with independent normal "
+            f"errors, not {spec.label()}; use nuts"
+        )
+    return {} if spec.is_plain_exponential else options
+
+
 def fit_from_args(args, series):
     """Fit ``series`` with the engine, model and priors the options name; warn on failure."""
     from bayesgrowth.inference.run import fit_series

@@ -33,7 +33,7 @@ def add_parser(sub) -> None:
 
 def run(args) -> int:
     """Run ``report``; returns the exit code."""
-    from bayesgrowth.cli.common import priors_from_args
+    from bayesgrowth.cli.common import checked_model_options, priors_from_args
     from bayesgrowth.report import build_report, write_report
 
     series = read_input(args)
@@ -43,6 +43,7 @@ def run(args) -> int:
         raise UsageError(f"--target-probability {args.target_probability}: must be between 0 "
                          "and 1")
     priors = priors_from_args(args)
+    spec_options = checked_model_options(args, (args.engine,))
     command = "bayesgrowth " + " ".join(shlex.quote(a) for a in sys.argv[1:])
     names = ["report.html"]
     say(args, f"building the report for {series.name} ({args.engine} engine) ...")
@@ -51,7 +52,7 @@ def run(args) -> int:
             series, args.horizon, engine=args.engine, seed=args.seed, priors=priors,
             levels=args.levels, target=args.target, target_probability=args.target_probability,
             with_backtest=not args.no_backtest, command=command,
-            fit_options={"draws": args.draws, "chains": args.chains},
+            fit_options={"draws": args.draws, "chains": args.chains, **spec_options},
         )
         write_report(stage / "report.html", page)
     print(f"wrote report.html to {args.out}")

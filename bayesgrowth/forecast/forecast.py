@@ -12,7 +12,7 @@ from bayesgrowth.config import DEFAULT_LEVELS, check_levels
 from bayesgrowth.inference.fit import Fit
 from bayesgrowth.models import exponential, general
 
-__all__ = ["Forecast", "forecast", "extrapolation_caution", "CAUTION"]
+__all__ = ["Forecast", "band_columns", "forecast", "extrapolation_caution", "CAUTION"]
 
 #: The standing caution printed with every forecast.
 CAUTION = (
@@ -38,7 +38,8 @@ def extrapolation_caution(n_history_periods: int, horizon: int) -> str | None:
     return None
 
 
-def _quantile_columns(draws: np.ndarray, levels: tuple[int, ...], prefix: str = "") -> dict:
+def band_columns(draws: np.ndarray, levels, prefix: str = "") -> dict:
+    """Central bands of ``draws`` per column: ``{prefix}lower_L`` and ``{prefix}upper_L``."""
     cols = {}
     for level in levels:
         lo, hi = (100 - level) / 200, 1 - (100 - level) / 200
@@ -102,9 +103,9 @@ class Forecast:
             "step": np.arange(1, self.horizon + 1),
             "mean": self.draws.mean(axis=0),
             "median": np.median(self.draws, axis=0),
-            **_quantile_columns(self.draws, self.levels),
+            **band_columns(self.draws, self.levels),
             "curve_median": np.median(self.curve_draws, axis=0),
-            **_quantile_columns(self.curve_draws, self.levels, prefix="curve_"),
+            **band_columns(self.curve_draws, self.levels, prefix="curve_"),
         }
         return pd.DataFrame(frame)
 

@@ -26,6 +26,7 @@ import pandas as pd
 
 from bayesgrowth.config import DEFAULT_LEVELS, check_levels
 from bayesgrowth.data.series import GrowthSeries
+from bayesgrowth.forecast.forecast import band_columns
 from bayesgrowth.models import exponential, general
 from bayesgrowth.models.spec import ModelSpec
 from bayesgrowth.priors import Priors, ResolvedPriors
@@ -33,17 +34,6 @@ from bayesgrowth.priors import Priors, ResolvedPriors
 __all__ = ["PriorPredictive", "band_columns", "prior_predictive", "sample_prior"]
 
 SAMPLERS = ("auto", "numpy", "pymc")
-
-
-def band_columns(draws: np.ndarray, levels, prefix: str = "") -> dict:
-    """Central bands of ``draws`` per column: ``{prefix}lower_L`` and ``{prefix}upper_L``."""
-    cols = {}
-    for level in levels:
-        lo, hi = (100 - level) / 200, 1 - (100 - level) / 200
-        q = np.quantile(draws, [lo, hi], axis=0)
-        cols[f"{prefix}lower_{level}"] = q[0]
-        cols[f"{prefix}upper_{level}"] = q[1]
-    return cols
 
 
 @dataclass

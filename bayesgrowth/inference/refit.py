@@ -192,9 +192,9 @@ class NutsRefitter:
         weight[positions] = 1.0
         compiled, base = self._compiled_for(resolved, weight)
         shift = resolved.log_a_mu - base.log_a_mu
-        data = compiled.with_data(
-            weight=weight, dt=(s.t - resolved.t_ref).astype(float), log_y=s.log_values - shift
-        )
+        dt = (s.t - resolved.t_ref).astype(float)
+        extra = {} if resolved.fixed_initial else {"centre": float(np.average(dt, weights=weight))}
+        data = compiled.with_data(weight=weight, dt=dt, log_y=s.log_values - shift, **extra)
         idata = nutpie.sample(
             data,
             draws=self.draws,

@@ -84,7 +84,8 @@ def build_pymc_model(priors: ResolvedPriors, t: np.ndarray, log_y: np.ndarray, w
     # Sample the level at the data's centre instead of at t_ref: the prior is
     # unchanged (log_a = level - b * centre keeps its Normal prior, independent of
     # b) but level and slope are nearly uncorrelated in the posterior, which NUTS
-    # samples far more efficiently than the raw (log_a, b) pair on short series.
+    # samples far more efficiently than the raw (log_a, b) pair on short series. The
+    # centre is data, so a refit on other rows can move it with them.
     centre = float(np.average(t - priors.t_ref, weights=weights)) if weights.any() else 0.0
     with pm.Model() as model:
         dt = pm.Data("dt", t - priors.t_ref)
@@ -94,8 +95,9 @@ def build_pymc_model(priors: ResolvedPriors, t: np.ndarray, log_y: np.ndarray, w
         if priors.fixed_initial:
             log_a = pm.Deterministic("log_a", pm.math.constant(priors.log_a_mu))
         else:
-            level = pm.Normal("level", mu=priors.log_a_mu + b * centre, sigma=priors.log_a_sd)
-            log_a = pm.Deterministic("log_a", level - b * centre)
+            c = pm.Data("centre", centre)
+            level = pm.Normal("level", mu=priors.log_a_mu + b * c, sigma=priors.log_a_sd)
+            log_a = pm.Deterministic("log_a", level - b * c)
         sigma = pm.HalfNormal("sigma", sigma=priors.sigma_scale)
         mu = log_a + b * dt
         pm.Potential("loglik", (w * pm.logp(pm.Normal.dist(mu=mu, sigma=sigma), y)).sum())

@@ -120,7 +120,8 @@ def build_report(
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
             result = backtest(series, methods=(engine, "log-linear", "naive"), horizon=bt_h,
-                              min_train=min_train, levels=fc.levels, seed=seed, priors=priors)
+                              min_train=min_train, levels=fc.levels, seed=seed, priors=priors,
+                              model_options=fit_options)
         parts.backtest = result
         parts.calibration_chart = figure_data_uri(calibration_figure(result))
     return render_report(parts)

@@ -175,3 +175,18 @@ def test_forecast_nuts_end_to_end(tmp_path, good_csv):
     again = tmp_path / "nuts2"
     assert _run(["forecast", str(good_csv), "-H", "3", "--out", str(again), "--quiet"]) == 0
     assert (out / "forecast.csv").read_bytes() == (again / "forecast.csv").read_bytes()
+
+
+@pytest.mark.parametrize("command", ["backtest", "report"])
+def test_exact_engine_refuses_other_curves(tmp_path, command):
+    out = tmp_path / "out"
+    argv = [command, str(demo_path()), "-H", "2", "--out", str(out), "--model", "logistic",
+            "--quiet"]
+    argv += ["--min-train", "16", "--methods", "exact"] if command == "backtest" else [
+        "--engine", "exact"]
+    proc = subprocess.run([sys.executable, "-m", "bayesgrowth", *argv], capture_output=True,
+                          text=True, check=False)
+    assert proc.returncode == 2
+    assert len(proc.stderr.strip().splitlines()) == 1
+    assert "exact engine covers only the exponential" in proc.stderr
+    assert not out.exists()
