@@ -9,12 +9,65 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+import numpy as np
 import pandas as pd
 
 from bayesgrowth.forecast.forecast import Forecast
-from bayesgrowth.leastsq import GrowthFit, fit_table, fit_variants
+from bayesgrowth.leastsq import GrowthFit, LeastSquaresError, fit_table, fit_variants
+from bayesgrowth.leastsq.curves import fit_curve
 
-__all__ = ["Comparison", "compare_to_forecast"]
+#: Bending curves that also have a least-squares fit in :mod:`bayesgrowth.leastsq.curves`.
+CURVE_FITS = ("logistic", "gompertz", "damped")
+
+
+@dataclass(frozen=True)
+class CurveVariant:
+    """A least-squares bending curve, shaped like a :class:`GrowthFit` row of the table.
+
+    ``growth_per_period`` is the curve's growth over the last observed period
+    (bending curves have no single growth rate).
+    """
+
+    variant: str
+    n_points: int
+    initial_value: float
+    growth_per_period: float
+    r_squared: float
+    rmse: float
+    t_last: float
+    curve: object
+
+    def value_at(self, t):
+        """The fitted curve at times ``t``."""
+        return self.curve.value_at(t)
+
+
+def curve_variant(name: str, t: np.ndarray, y: np.ndarray, t_ref: float) -> CurveVariant:
+    """Least-squares fit of the bending curve ``name`` as a comparison row.
+
+    Raises
+    ------
+    LeastSquaresError
+        If the fit does not converge.
+    """
+    fit = fit_curve(name, t, y, t_ref=t_ref)
+    t = np.asarray(t, dtype=float)
+    fitted = np.asarray(fit.value_at(t), dtype=float)
+    resid = y - fitted
+    t_last = float(t[-1])
+    last = np.asarray(fit.value_at(np.array([t_last - 1.0, t_last])), dtype=float)
+    return CurveVariant(
+        variant=f"{name} (revenue scale)",
+        n_points=int(t.size),
+        initial_value=float(fit.params["a"]),
+        growth_per_period=float(last[1] / last[0] - 1.0),
+        r_squared=float(1.0 - resid @ resid / np.sum((y - y.mean()) ** 2)),
+        rmse=float(np.sqrt(np.mean(resid**2))),
+        t_last=t_last,
+        curve=fit,
+    )
+
+__all__ = ["CURVE_FITS", "Comparison", "CurveVariant", "compare_to_forecast", "curve_variant"]
 
 
 @dataclass(frozen=True)
@@ -41,6 +94,9 @@ class Comparison:
 def compare_to_forecast(forecast: Forecast, *, max_drop: int | None = None) -> Comparison:
     """Fit every least-squares variant to the forecast's series and tabulate the spread.
 
+    When the forecast's model is a bending curve (logistic, Gompertz, damped), the
+    least-squares fit of that curve is added as a further variant.
+
     Parameters
     ----------
     forecast : Forecast
@@ -54,8 +110,14 @@ def compare_to_forecast(forecast: Forecast, *, max_drop: int | None = None) -> C
     Comparison
     """
     series = forecast.fit.series
-    fits = fit_variants(series.t, series.values, t_ref=forecast.fit.priors.t_ref,
-                        max_drop=max_drop)
+    t_ref = forecast.fit.priors.t_ref
+    fits = fit_variants(series.t, series.values, t_ref=t_ref, max_drop=max_drop)
+    if forecast.fit.model in CURVE_FITS:
+        # The same curve as the Bayesian model, fitted the way an analyst would.
+        try:
+            fits.append(curve_variant(forecast.fit.model, series.t, series.values, t_ref))
+        except LeastSquaresError:
+            pass  # the table then holds the exponential variants only
     table = fit_table(fits, forecast.horizon, predictive_draws=forecast.draws[:, -1],
                       levels=forecast.levels)
     table.insert(1, "period", forecast.periods[-1])

@@ -21,6 +21,10 @@ _MAIN_STYLES = {
     "revenue-scale": ("tab:orange", "-"),
     "log-linear, anchored": ("tab:blue", "--"),
     "revenue-scale, anchored": ("tab:orange", "--"),
+    # The bending curve of the Bayesian model, fitted by least squares.
+    "logistic (revenue scale)": ("black", "-."),
+    "gompertz (revenue scale)": ("black", "-."),
+    "damped (revenue scale)": ("black", "-."),
 }
 _FAMILIES = (
     ("log-linear, drop last", "tab:red", "log-linear, last points dropped"),

@@ -1,0 +1,55 @@
+"""Least-squares variants beside the Bayesian band, including bending curves."""
+
+import dataclasses
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from bayesgrowth.comparison import compare_to_forecast, curve_variant
+from bayesgrowth.data import read_series
+from bayesgrowth.forecast import forecast
+from bayesgrowth.inference import fit_series
+from bayesgrowth.leastsq.curves import fit_curve
+from bayesgrowth.models.spec import ModelSpec
+
+
+@pytest.fixture(scope="module")
+def saturating():
+    # Invented logistic series (ceiling 5,000), for this test only.
+    rng = np.random.default_rng(4)
+    t = np.arange(24)
+    curve = 5000 / (1 + (5000 - 300) / 300 * np.exp(-0.3 * t))
+    values = curve * np.exp(rng.normal(0, 0.03, t.size))
+    labels = [f"{2019 + i // 4}Q{i % 4 + 1}" for i in t]
+    return read_series(pd.DataFrame({"period": labels, "value": values}))
+
+
+def test_curve_variant_is_the_least_squares_curve(saturating):
+    s = saturating
+    row = curve_variant("logistic", s.t, s.values, 0)
+    direct = fit_curve("logistic", s.t, s.values, t_ref=0)
+    np.testing.assert_allclose(row.value_at(s.t), direct.value_at(s.t))
+    fitted = direct.value_at(s.t)
+    # R^2 = 1 - RSS/TSS on the revenue scale (textbook definition).
+    tss = np.sum((s.values - s.values.mean()) ** 2)
+    assert row.r_squared == pytest.approx(1 - np.sum((s.values - fitted) ** 2) / tss)
+    last = direct.value_at(np.array([22.0, 23.0]))
+    assert row.growth_per_period == pytest.approx(last[1] / last[0] - 1)
+    assert direct.params["K"] == pytest.approx(5000, rel=0.1)
+
+
+def test_bending_model_adds_its_curve_to_the_table(saturating):
+    fc = forecast(fit_series(saturating, engine="exact", seed=1), 6)
+    plain = compare_to_forecast(fc)
+    assert not any("logistic" in v for v in plain.table["variant"])
+    # Only the model's name matters to the comparison: relabel the exact fit rather than
+    # pay for a NUTS logistic fit here.
+    relabelled = dataclasses.replace(fc.fit, spec=ModelSpec(model="logistic"))
+    as_logistic = dataclasses.replace(fc, fit=relabelled)
+    table = compare_to_forecast(as_logistic).table
+    row = table[table["variant"] == "logistic (revenue scale)"].iloc[0]
+    # On saturating data the logistic point forecast sits far below the exponential one.
+    exp_row = table[table["variant"] == "log-linear"].iloc[0]
+    assert row["value_at_horizon"] < 0.7 * exp_row["value_at_horizon"]
+    assert 0 <= row["prob_at_least"] <= 1
