@@ -382,6 +382,13 @@ class ResolvedPriors:
     nu_alpha: float = NU_ALPHA
     nu_beta: float = NU_BETA
 
+    def compile_key(self) -> tuple:
+        """Prior settings a compiled NUTS model bakes in (``log_a_mu`` and ``t_ref`` are data).
+
+        Two resolved priors with the same key can share one compiled model.
+        """
+        return (self.log_a_sd, self.log1p_g_mu, self.log1p_g_sd, self.sigma_scale)
+
     @property
     def fixed_initial(self) -> bool:
         """Whether the initial value is fixed rather than estimated."""

@@ -43,10 +43,6 @@ def padded_length(n_max: int) -> int:
     return int(-(-int(n_max) // LENGTH_STEP) * LENGTH_STEP)
 
 
-def _prior_key(p: ResolvedPriors) -> tuple:
-    return (p.log_a_sd, p.log1p_g_mu, p.log1p_g_sd, p.sigma_scale)
-
-
 def build_padded_model(priors: ResolvedPriors, length: int):
     """The exponential model on ``length`` padded rows, with every per-series quantity as data.
 
@@ -173,7 +169,7 @@ class CompiledBatchNuts:
 
 def compiled_for(priors: Priors | None, resolved: ResolvedPriors, length: int, **settings):
     """The process's compiled model for these prior spreads, length and settings (cached)."""
-    key = (_prior_key(resolved), int(length), tuple(sorted(settings.items())))
+    key = (resolved.compile_key(), int(length), tuple(sorted(settings.items())))
     if key not in _CACHE:
         _CACHE[key] = CompiledBatchNuts(resolved, length, **settings)
     return _CACHE[key]

@@ -99,11 +99,6 @@ def supports(options: dict | None) -> bool:
     return True
 
 
-def _prior_key(p: ResolvedPriors) -> tuple:
-    """Prior settings baked into a compiled model (``log_a_mu`` and ``t_ref`` are not)."""
-    return (p.log_a_sd, p.log1p_g_mu, p.log1p_g_sd, p.sigma_scale)
-
-
 class NutsRefitter:
     """NUTS fits of the exponential model to subsets of one series, compiled once.
 
@@ -154,7 +149,7 @@ class NutsRefitter:
         return len(self._compiled)
 
     def _compiled_for(self, resolved: ResolvedPriors, weight: np.ndarray):
-        key = _prior_key(resolved)
+        key = resolved.compile_key()
         if key not in self._compiled:
             import nutpie
 
