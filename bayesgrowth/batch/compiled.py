@@ -19,14 +19,11 @@ to :func:`bayesgrowth.inference.fit_series` per series.
 
 from __future__ import annotations
 
-import dataclasses
-
 import numpy as np
 
 from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.inference.fit import Fit
-from bayesgrowth.inference.refit import TARGET_ACCEPT
-from bayesgrowth.models import exponential
+from bayesgrowth.inference.refit import TARGET_ACCEPT, sample_compiled
 from bayesgrowth.priors import Priors, ResolvedPriors
 
 __all__ = ["CompiledBatchNuts", "padded_length", "compiled_for"]
@@ -120,10 +117,6 @@ class CompiledBatchNuts:
         Fit
             Diagnostics are not warned about here; the caller reports them.
         """
-        import nutpie
-
-        from bayesgrowth.inference.nuts import diagnose
-
         n, pad = series.n, self.length - series.n
         if pad < 0:
             raise ValueError(f"series of {n} points is longer than the compiled {self.length}")
@@ -135,23 +128,10 @@ class CompiledBatchNuts:
             anchor=np.asarray(resolved.log_a_mu, dtype=float),
             centre=np.asarray(dt.mean(), dtype=float),
         )
-        idata = nutpie.sample(
-            data,
-            draws=self.draws,
-            tune=self.tune,
-            chains=self.chains,
-            cores=self.cores,
-            seed=int(seed),
-            target_accept=self.target_accept,
-            save_warmup=False,
-            progress_bar=False,
-        )
-        post = idata.posterior
-        posterior = {k: np.asarray(post[k].values, dtype=float) for k in exponential.PARAMETERS}
-        divergences = int(idata.sample_stats["diverging"].sum())
-        names = ["level", "log1p_g", "sigma"]
-        diagnostics = dataclasses.replace(
-            diagnose(post[names], divergences), method="NUTS (nutpie, model compiled once)"
+        posterior, diagnostics, settings = sample_compiled(
+            data, draws=self.draws, tune=self.tune, chains=self.chains, cores=self.cores,
+            seed=seed, target_accept=self.target_accept,
+            diagnose_names=["level", "log1p_g", "sigma"],
         )
         return Fit(
             series=series,
@@ -160,10 +140,7 @@ class CompiledBatchNuts:
             seed=int(seed),
             posterior=posterior,
             diagnostics=diagnostics,
-            settings={
-                "draws": self.draws, "tune": self.tune, "chains": self.chains,
-                "target_accept": self.target_accept, "cores": self.cores, "sampler": "nutpie",
-            },
+            settings=settings,
         )
 
 

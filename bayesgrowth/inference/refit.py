@@ -99,6 +99,63 @@ def supports(options: dict | None) -> bool:
     return True
 
 
+def sample_compiled(
+    data,
+    *,
+    draws: int,
+    tune: int,
+    chains: int,
+    cores: int,
+    seed: int,
+    target_accept: float,
+    diagnose_names: list[str] | None = None,
+) -> tuple[dict[str, np.ndarray], object, dict]:
+    """Sample a nutpie model compiled once (with its data already swapped in) and diagnose it.
+
+    Parameters
+    ----------
+    data : nutpie compiled model
+        The result of ``compiled.with_data(...)``.
+    draws, tune, chains, cores, seed, target_accept
+        Sampler settings.
+    diagnose_names : list of str, optional
+        Posterior variables to diagnose (default: all that ``diagnose`` checks).
+
+    Returns
+    -------
+    posterior : dict of str to numpy.ndarray
+        Draws of ``exponential.PARAMETERS``, shape ``(chain, draw)``.
+    diagnostics : Diagnostics
+    settings : dict
+        The settings, for :attr:`Fit.settings`.
+    """
+    import nutpie
+
+    from bayesgrowth.inference.nuts import diagnose
+
+    idata = nutpie.sample(
+        data,
+        draws=draws,
+        tune=tune,
+        chains=chains,
+        cores=cores,
+        seed=int(seed),
+        target_accept=target_accept,
+        save_warmup=False,
+        progress_bar=False,
+    )
+    post = idata.posterior
+    posterior = {k: np.asarray(post[k].values, dtype=float) for k in exponential.PARAMETERS}
+    divergences = int(idata.sample_stats["diverging"].sum())
+    checked = post if diagnose_names is None else post[diagnose_names]
+    diagnostics = dataclasses.replace(
+        diagnose(checked, divergences), method="NUTS (nutpie, model compiled once)"
+    )
+    settings = {"draws": draws, "tune": tune, "chains": chains, "target_accept": target_accept,
+                "cores": cores, "sampler": "nutpie"}
+    return posterior, diagnostics, settings
+
+
 class NutsRefitter:
     """NUTS fits of the exponential model to subsets of one series, compiled once.
 
@@ -175,10 +232,6 @@ class NutsRefitter:
             For the subset, with its own diagnostics. Failed checks are not
             warned about here; the caller decides how to report them.
         """
-        import nutpie
-
-        from bayesgrowth.inference.nuts import diagnose
-
         s = self.series
         positions = np.sort(np.asarray(positions, dtype=int))
         train = s.take(positions)
@@ -190,27 +243,14 @@ class NutsRefitter:
         dt = (s.t - resolved.t_ref).astype(float)
         extra = {} if resolved.fixed_initial else {"centre": float(np.average(dt, weights=weight))}
         data = compiled.with_data(weight=weight, dt=dt, log_y=s.log_values - shift, **extra)
-        idata = nutpie.sample(
-            data,
-            draws=self.draws,
-            tune=self.tune,
-            chains=self.chains,
-            cores=self.cores,
-            seed=int(seed),
-            target_accept=self.target_accept,
-            save_warmup=False,
-            progress_bar=False,
+        posterior, diagnostics, settings = sample_compiled(
+            data, draws=self.draws, tune=self.tune, chains=self.chains, cores=self.cores,
+            seed=seed, target_accept=self.target_accept,
         )
-        post = idata.posterior
-        posterior = {k: np.asarray(post[k].values, dtype=float) for k in exponential.PARAMETERS}
         if resolved.fixed_initial:
             posterior["log_a"] = np.full_like(posterior["sigma"], resolved.log_a_mu)
         else:
             posterior["log_a"] = posterior["log_a"] + shift
-        divergences = int(idata.sample_stats["diverging"].sum())
-        diagnostics = dataclasses.replace(
-            diagnose(post, divergences), method="NUTS (nutpie, model compiled once)"
-        )
         return Fit(
             series=train,
             priors=resolved,
@@ -218,12 +258,5 @@ class NutsRefitter:
             seed=int(seed),
             posterior=posterior,
             diagnostics=diagnostics,
-            settings={
-                "draws": self.draws,
-                "tune": self.tune,
-                "chains": self.chains,
-                "target_accept": self.target_accept,
-                "cores": self.cores,
-                "sampler": "nutpie",
-            },
+            settings=settings,
         )
