@@ -163,12 +163,17 @@ def _pymc_prior(spec: ModelSpec, priors: ResolvedPriors, series: GrowthSeries, d
         logger.setLevel(level)
     prior = idata.prior
     out = {}
-    for name in spec.parameters() + spec.vector_parameters():
+    for name in [k for k in spec.parameters() + spec.vector_parameters() if k in prior]:
         v = np.asarray(prior[name].values, dtype=float)
         v = v.reshape(-1, *v.shape[2:]) if v.ndim >= 2 else v
         if v.shape[0] != draws:  # a fixed value kept as a scalar
             v = np.broadcast_to(v.reshape(-1)[:1], (draws,)).copy()
         out[name] = v
+    if spec.model == "local-trend":  # its linear coefficients are not in the PyMC model
+        from bayesgrowth.models import local_trend
+
+        out = local_trend.draw_linear(spec, priors, out, np.array([], dtype=int), np.array([]),
+                                      series.axis, np.random.default_rng([seed, 5]))
     return out
 
 

@@ -104,15 +104,17 @@ def fit_nuts(
     finally:
         logger.setLevel(level)
     post = idata.posterior
-    names = spec.parameters() + spec.vector_parameters()
+    names = [k for k in spec.parameters() + spec.vector_parameters() if k in post]
     posterior = {k: np.asarray(post[k].values, dtype=float) for k in names}
+    if spec.model == "local-trend":
+        posterior = _complete_local_trend(spec, priors, series, posterior, seed)
     for k in ("log_a", "long_run", "sigma_level"):  # fixed values are scalar Deterministics
         if k in posterior and posterior[k].shape != posterior["sigma"].shape:
             posterior[k] = np.broadcast_to(posterior[k], posterior["sigma"].shape).copy()
     if priors.fixed_initial:
         posterior["log_a"] = np.full_like(posterior["sigma"], priors.log_a_mu)
     divergences = int(idata.sample_stats["diverging"].sum())
-    diagnostics = diagnose(post[list(names)], divergences)
+    diagnostics = diagnose(post[names], divergences)
     return Fit(
         series=series,
         priors=priors,
@@ -125,3 +127,16 @@ def fit_nuts(
         model=spec.model,
         spec=spec,
     )
+
+
+def _complete_local_trend(spec, priors, series, posterior: dict, seed: int) -> dict:
+    """Add the local trend's linear coefficients, drawn given each draw of the scales."""
+    from bayesgrowth.models import local_trend
+
+    shape = posterior["sigma"].shape
+    flat = {k: np.broadcast_to(v, shape).reshape(-1) for k, v in posterior.items()}
+    done = local_trend.draw_linear(
+        spec, priors, flat, series.t, series.log_values, series.axis,
+        np.random.default_rng([seed, 7]),
+    )
+    return {k: np.asarray(v).reshape(*shape, *np.shape(v)[1:]) for k, v in done.items()}

@@ -282,19 +282,22 @@ def build_pymc_model(
         dt = pm.Data("dt", t - t_ref)
         y = pm.Data("log_y", log_y)
         w = pm.Data("weight", weights)
+        if spec.model == "local-trend":
+            _local_trend_likelihood(spec, priors, t, y, w, axis)
+            return model
         if priors.fixed_initial:
             log_a = pm.Deterministic("log_a", pm.math.constant(priors.log_a_mu))
         else:
             log_a = pm.Normal("log_a", mu=priors.log_a_mu, sigma=priors.log_a_sd)
         p = {"log_a": log_a}
-        if spec.model in ("exponential", "damped", "local-trend"):
+        if spec.model in ("exponential", "damped"):
             p["log1p_g"] = pm.Normal("log1p_g", mu=priors.log1p_g_mu, sigma=priors.log1p_g_sd)
         if spec.model in ("logistic", "gompertz"):
             p["log_k"] = pm.Normal("log_k", mu=priors.log_k_mu, sigma=priors.log_k_sd)
         if spec.model in ("damped", "logistic", "gompertz"):
             log_h = pm.Normal("log_half_life", mu=priors.log_h_mu, sigma=priors.log_h_sd)
             p["half_life"] = pm.Deterministic("half_life", pt.exp(log_h))
-        if spec.model == "damped" or spec.mean_reverting:
+        if spec.model == "damped":
             if priors.long_run_sd == 0:
                 p["long_run"] = pm.Deterministic(
                     "long_run", pm.math.constant(priors.long_run_mu)
@@ -305,31 +308,12 @@ def build_pymc_model(
                 )
         sigma = pm.HalfNormal("sigma", sigma=priors.sigma_scale)
 
-        if spec.model == "local-trend":
-            if np.min(t) != t_ref:
-                raise ValueError(
-                    "the local-trend model anchors its level at the first observation; "
-                    "leave the reference period unset"
-                )
-            if priors.level_shock_scale > 0:
-                s_l = pm.Gamma("sigma_level", alpha=2.0, beta=2.0 / priors.level_shock_scale)
-            else:
-                s_l = pm.Deterministic("sigma_level", pm.math.constant(0.0))
-            s_g = pm.Gamma("sigma_growth", alpha=2.0, beta=2.0 / priors.growth_drift_scale)
-            if spec.mean_reverting:
-                p["rho"] = pm.Beta("rho", alpha=priors.rho_alpha, beta=priors.rho_beta)
-            if spec.errors == "ar1":
-                p["phi"] = pm.Beta("phi", alpha=priors.phi_alpha, beta=priors.phi_beta)
-        else:
-            mu = curve_log_mean(spec.model, p, dt, pt)
+        mu = curve_log_mean(spec.model, p, dt, pt)
         season_term = 0.0
         if spec.seasonal:
             m, s_idx = season_index(axis, t)
             season = pm.ZeroSumNormal("season", sigma=priors.seasonal_scale, shape=m)
             season_term = season[pm.Data("season_index", s_idx.astype("int64"))]
-        if spec.model == "local-trend":
-            _local_trend_potential(spec, p, s_l, s_g, sigma, t, t_ref, y - season_term, w)
-            return model
         mu = mu + season_term
 
         resid = y - mu
@@ -353,26 +337,50 @@ def build_pymc_model(
     return model
 
 
-def _local_trend_potential(spec, p, s_l, s_g, sigma, t, t_ref, y, w) -> None:
-    """The local trend's likelihood: the weighted multivariate normal of the log values."""
+def _local_trend_likelihood(spec, priors, t, y, w, axis) -> None:
+    """The local trend's scales and their likelihood, the linear coefficients integrated out.
+
+    The log values are normal with mean ``X mu0`` and covariance ``K + X V X'``
+    (see :mod:`bayesgrowth.models.local_trend`); rows with weight 0 are decoupled
+    from the others (zero residual and covariances, unit variance), which drops
+    them exactly.
+    """
     import pymc as pm
     import pytensor.tensor as pt
 
+    t_ref = priors.t_ref
+    if np.min(t) != t_ref:
+        raise ValueError(
+            "the local-trend model anchors its level at the first observation; "
+            "leave the reference period unset"
+        )
+    sigma = pm.HalfNormal("sigma", sigma=priors.sigma_scale)
+    if priors.level_shock_scale > 0:
+        s_l = pm.Gamma("sigma_level", alpha=2.0, beta=2.0 / priors.level_shock_scale)
+    else:
+        s_l = pm.Deterministic("sigma_level", pm.math.constant(0.0))
+    s_g = pm.Gamma("sigma_growth", alpha=2.0, beta=2.0 / priors.growth_drift_scale)
+    rho = pm.Beta("rho", alpha=priors.rho_alpha, beta=priors.rho_beta) if (
+        spec.mean_reverting) else None
+    phi = pm.Beta("phi", alpha=priors.phi_alpha, beta=priors.phi_beta) if (
+        spec.errors == "ar1") else None
+
     idx = (t - t_ref).astype(int)
     n_grid = int(idx.max()) + 1
-    j = np.arange(n_grid, dtype=float)
-    log_a, g0 = p["log_a"], p["log1p_g"]
+    rows, m = local_trend._season_rows(spec, axis, t)
+    mu0, var0 = local_trend.linear_prior(spec, priors, m)
     if spec.mean_reverting:
-        rho, c = p["rho"], p["long_run"]
         a, _, b = local_trend.coefficients(rho, n_grid, xp=pt)
-        mean = log_a + j * c + (g0 - c) * rho * (1 - rho**j) / (1 - rho)
+        x = local_trend.design(spec, idx, rho, rows, xp=pt)
     else:
         a, _, b = local_trend.coefficients(None, n_grid)
-        mean = log_a + j * g0
+        x = local_trend.design(spec, idx, None, rows)
     a_o, b_o = a[idx], b[idx]
     cov = s_g**2 * pt.dot(a_o, a_o.T) + s_l**2 * (b_o @ b_o.T)
-    cov = cov + local_trend.error_covariance(sigma, p.get("phi"), t, xp=pt)
+    cov = cov + local_trend.error_covariance(sigma, phi, t, xp=pt)
+    cov = cov + pt.dot(x * var0, x.T)
     ww = pt.outer(w, w)
     cov = ww * cov + pt.diag(1.0 - w) + local_trend._JITTER * np.eye(t.size)
-    resid = w * (y - mean[idx])
+    resid = w * (y - pt.dot(x, mu0))
     pm.Potential("loglik", pm.logp(pm.MvNormal.dist(mu=pt.zeros(t.size), cov=cov), resid))
+

@@ -117,6 +117,74 @@ def test_local_trend_forecast_matches_statsmodels(rng):
     np.testing.assert_allclose(values.var(axis=0), var, rtol=5 * math.sqrt(2 / s))
 
 
+def _lt_series(y):
+    import pandas as pd
+
+    from bayesgrowth.data.series import read_series
+
+    labels = [f"{2015 + i // 4}Q{i % 4 + 1}" for i in range(len(y))]
+    return read_series(pd.DataFrame({"period": labels, "value": np.exp(y)}), name="simulated")
+
+
+def test_local_trend_marginal_likelihood_matches_statsmodels_with_a_random_start(rng):
+    # Source: statsmodels UnobservedComponents("local linear trend") whose start is known only
+    # in distribution. Our start (log a, b) ~ N(mu0, diag(v0)) becomes statsmodels' state 0:
+    # level_0 = log a, beta_0 = b + s_g u_1 ~ N(mu_b, v_b + s_g^2). Its Kalman-filter likelihood
+    # must equal the PyMC model's potential, where log a and b are integrated out in closed form.
+    from bayesgrowth.models.general import build_pymc_model
+    from bayesgrowth.priors import Priors
+
+    n, sigma, s_g = 18, 0.04, 0.012
+    y = 4.0 + 0.05 * np.arange(n) + np.cumsum(s_g * rng.standard_normal(n)).cumsum() \
+        + sigma * rng.standard_normal(n)
+    series = _lt_series(y)
+    spec = ModelSpec(model="local-trend")
+    pr = Priors().resolve(series)
+    model = build_pymc_model(spec, pr, series.t, series.log_values, axis=series.axis)
+    point = {"sigma_log__": math.log(sigma), "sigma_growth_log__": math.log(s_g)}
+    (pot,) = model.replace_rvs_by_values([model.potentials[0]])
+    ours = float(model.compile_fn(pot)(point))
+    sm = pytest.importorskip("statsmodels.api")
+    mod = sm.tsa.UnobservedComponents(y, level="local linear trend")
+    mod.ssm.initialize_known(np.array([pr.log_a_mu, pr.log1p_g_mu]),
+                             np.diag([pr.log_a_sd**2, pr.log1p_g_sd**2 + s_g**2]))
+    mod.ssm.loglikelihood_burn = 0
+    ref = mod.loglike(np.array([sigma**2, 0.0, s_g**2]))
+    assert ours == pytest.approx(ref, rel=1e-8)
+
+    # and the starting level drawn afterwards has statsmodels' smoothed mean and variance of
+    # state 0 (Monte Carlo: 5 standard errors on the mean, 5 on the variance)
+    s = 40_000
+    d = local_trend.draw_linear(spec, pr, _draws(s, sigma=sigma, sigma_level=0.0,
+                                                 sigma_growth=s_g),
+                                series.t, series.log_values, series.axis,
+                                np.random.default_rng(5))
+    sm_res = mod.smooth(np.array([sigma**2, 0.0, s_g**2]))
+    m0, v0 = sm_res.smoothed_state[0, 0], sm_res.smoothed_state_cov[0, 0, 0]
+    assert abs(d["log_a"].mean() - m0) <= 5 * math.sqrt(v0 / s)
+    assert d["log_a"].var() == pytest.approx(v0, rel=5 * math.sqrt(2 / s))
+
+
+def test_local_trend_design_reproduces_the_mean_path_and_seasons(rng):
+    # Textbook identities: X beta equals the mean path of mean_paths for mean-reverting drift,
+    # and the seasonal basis Q is orthonormal with columns summing to zero (Q'1 = 0, Q'Q = I), so
+    # Q eta with eta ~ N(0, s^2 I) has ZeroSumNormal's covariance s^2 (I - 11'/m).
+    spec = ModelSpec(model="local-trend", drift="mean-reverting")
+    idx = np.array([0, 1, 2, 4, 7])
+    rho = np.array([0.3, 0.85])
+    beta = np.array([2.0, 0.08, 0.02])
+    x = local_trend.design(spec, idx, rho)
+    d = {"log_a": np.full(2, beta[0]), "log1p_g": np.full(2, beta[1]),
+         "long_run": np.full(2, beta[2]), "rho": rho}
+    level, _ = local_trend.mean_paths(d, 8, mean_reverting=True)
+    np.testing.assert_allclose(x @ beta, level[:, idx], rtol=1e-12)
+    for m in (4, 12):
+        q = local_trend.season_basis(m)
+        np.testing.assert_allclose(q.T @ np.ones(m), 0.0, atol=1e-12)
+        np.testing.assert_allclose(q.T @ q, np.eye(m - 1), atol=1e-12)
+        np.testing.assert_allclose(q @ q.T, np.eye(m) - 1.0 / m, atol=1e-12)
+
+
 def test_season_index_follows_the_calendar():
     q = PeriodAxis(style="quarter", step=1, origin=2021 * 4 + 2)  # 2021Q3
     m, idx = season_index(q, np.arange(6))
