@@ -106,14 +106,21 @@ class GrowthSeries:
         return self.take(np.arange(n))
 
     def take(self, positions: np.ndarray) -> GrowthSeries:
-        """The observations at ``positions`` (sorted), on the same calendar."""
+        """The observations at ``positions`` (sorted), on the same calendar.
+
+        ``gaps`` lists the periods between the first and last kept observation
+        that are not kept.
+        """
         positions = np.sort(np.asarray(positions, dtype=int))
+        t = self.t[positions]
+        missing = sorted(set(range(int(t[0]), int(t[-1]) + 1)) - set(t.tolist())) if t.size else []
         return GrowthSeries(
             values=self.values[positions],
-            t=self.t[positions],
+            t=t,
             axis=self.axis,
             name=self.name,
             source=self.source,
+            gaps=tuple(self.axis.labels(missing)),
         )
 
     def fingerprint(self) -> str:

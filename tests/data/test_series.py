@@ -22,6 +22,10 @@ def test_reads_sorts_and_reports_gaps(tmp_path):
     np.testing.assert_array_equal(s.values, [10, 12, 15])
     assert s.gaps == ("2024Q2", "2024Q4")
     assert s.future_labels(2) == ["2025Q2", "2025Q3"]
+    # a subset keeps the gaps inside its own span, and a dropped row becomes one
+    assert s.take(np.array([0, 1])).gaps == ("2024Q2",)
+    assert s.take(np.array([1, 2])).gaps == ("2024Q4",)
+    assert s.take(np.array([0, 2])).gaps == ("2024Q2", "2024Q3", "2024Q4")
 
 
 def test_other_column_names(tmp_path):
