@@ -169,12 +169,9 @@ def _pymc_prior(spec: ModelSpec, priors: ResolvedPriors, series: GrowthSeries, d
         if v.shape[0] != draws:  # a fixed value kept as a scalar
             v = np.broadcast_to(v.reshape(-1)[:1], (draws,)).copy()
         out[name] = v
-    if spec.model == "local-trend":  # its linear coefficients are not in the PyMC model
-        from bayesgrowth.models import local_trend
-
-        out = local_trend.draw_linear(spec, priors, out, np.array([], dtype=int), np.array([]),
-                                      series.axis, np.random.default_rng([seed, 5]))
-    return out
+    # coefficients the PyMC model integrates out come from their prior here
+    return general.complete_draws(spec, priors, out, np.array([], dtype=int), np.array([]),
+                                  series.axis, np.random.default_rng([seed, 5]))
 
 
 def _numpy_prior(priors: ResolvedPriors, draws: int, seed: int) -> dict:

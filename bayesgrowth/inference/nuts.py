@@ -14,7 +14,7 @@ from bayesgrowth.models import exponential, general
 from bayesgrowth.models.spec import ModelSpec
 from bayesgrowth.priors import ResolvedPriors
 
-__all__ = ["fit_nuts", "default_target_accept"]
+__all__ = ["complete_posterior", "default_target_accept", "fit_nuts"]
 
 #: Series this short diverged at the default target_accept when measured; 0.95 was clean.
 SHORT_SERIES = 6
@@ -106,8 +106,7 @@ def fit_nuts(
     post = idata.posterior
     names = [k for k in spec.parameters() + spec.vector_parameters() if k in post]
     posterior = {k: np.asarray(post[k].values, dtype=float) for k in names}
-    if spec.model == "local-trend":
-        posterior = _complete_local_trend(spec, priors, series, posterior, seed)
+    posterior = complete_posterior(spec, priors, series, posterior, seed)
     for k in ("log_a", "long_run", "sigma_level"):  # fixed values are scalar Deterministics
         if k in posterior and posterior[k].shape != posterior["sigma"].shape:
             posterior[k] = np.broadcast_to(posterior[k], posterior["sigma"].shape).copy()
@@ -129,14 +128,13 @@ def fit_nuts(
     )
 
 
-def _complete_local_trend(spec, priors, series, posterior: dict, seed: int) -> dict:
-    """Add the local trend's linear coefficients, drawn given each draw of the scales."""
-    from bayesgrowth.models import local_trend
+def complete_posterior(spec, priors, series, posterior: dict, seed: int) -> dict:
+    """Add the linear coefficients the model integrated out, drawn given each draw.
 
+    Fixed values kept as scalars are broadcast to the draws' ``(chain, draw)`` shape.
+    """
     shape = posterior["sigma"].shape
     flat = {k: np.broadcast_to(v, shape).reshape(-1) for k, v in posterior.items()}
-    done = local_trend.draw_linear(
-        spec, priors, flat, series.t, series.log_values, series.axis,
-        np.random.default_rng([seed, 7]),
-    )
+    done = general.complete_draws(spec, priors, flat, series.t, series.log_values, series.axis,
+                                  np.random.default_rng([seed, 7]))
     return {k: np.asarray(v).reshape(*shape, *np.shape(v)[1:]) for k, v in done.items()}

@@ -41,7 +41,7 @@ import math
 import numpy as np
 from scipy.special import gammaln
 
-from bayesgrowth.models import local_trend
+from bayesgrowth.models import linear, local_trend
 from bayesgrowth.models.spec import ModelSpec, season_index
 
 __all__ = [
@@ -51,6 +51,7 @@ __all__ = [
     "simulate_log",
     "latest_growth",
     "build_pymc_model",
+    "complete_draws",
 ]
 
 LN2 = math.log(2.0)
@@ -285,6 +286,9 @@ def build_pymc_model(
         if spec.model == "local-trend":
             _local_trend_likelihood(spec, priors, t, y, w, axis)
             return model
+        if linear.integrates_linear(spec):
+            _integrated_curve_likelihood(spec, priors, t, dt, y, w, axis)
+            return model
         if priors.fixed_initial:
             log_a = pm.Deterministic("log_a", pm.math.constant(priors.log_a_mu))
         else:
@@ -337,6 +341,43 @@ def build_pymc_model(
     return model
 
 
+def _integrated_curve_likelihood(spec, priors, t, dt, y, w, axis) -> None:
+    """Exponential or damped curve, normal noise: scales sampled, linear coefficients integrated.
+
+    See :mod:`bayesgrowth.models.linear`.
+    """
+    import pymc as pm
+    import pytensor.tensor as pt
+
+    half_life = None
+    if spec.model == "damped":
+        log_h = pm.Normal("log_half_life", mu=priors.log_h_mu, sigma=priors.log_h_sd)
+        half_life = pm.Deterministic("half_life", pt.exp(log_h))
+    sigma = pm.HalfNormal("sigma", sigma=priors.sigma_scale)
+    phi = pm.Beta("phi", alpha=priors.phi_alpha, beta=priors.phi_beta) if (
+        spec.errors == "ar1") else None
+    lag = pm.Data("lag", np.concatenate([[1.0], np.diff(t)]))
+    rows, m = linear.season_rows(spec, axis, t)
+    pm.Potential("loglik", linear.marginal_loglik(
+        spec, priors, y, w, dt, lag, sigma, phi, half_life, rows, m))
+
+
+def complete_draws(spec: ModelSpec, priors, draws: dict, t, log_y, axis,
+                   rng: np.random.Generator) -> dict:
+    """Flat draws plus the linear coefficients a PyMC model of ``spec`` integrated out.
+
+    With no observations (``t`` empty) the coefficients come from their prior.
+    Specs that sample every parameter get their draws back unchanged.
+    """
+    if not linear.integrates_linear(spec):
+        return draws
+    if np.size(t) == 0:
+        return linear.prior_coefficients(spec, priors, draws, axis, rng)
+    if spec.model == "local-trend":
+        return local_trend.draw_linear(spec, priors, draws, t, log_y, axis, rng)
+    return linear.draw_curve_coefficients(spec, priors, draws, t, log_y, axis, rng)
+
+
 def _local_trend_likelihood(spec, priors, t, y, w, axis) -> None:
     """The local trend's scales and their likelihood, the linear coefficients integrated out.
 
@@ -367,8 +408,8 @@ def _local_trend_likelihood(spec, priors, t, y, w, axis) -> None:
 
     idx = (t - t_ref).astype(int)
     n_grid = int(idx.max()) + 1
-    rows, m = local_trend._season_rows(spec, axis, t)
-    mu0, var0 = local_trend.linear_prior(spec, priors, m)
+    rows, m = linear.season_rows(spec, axis, t)
+    mu0, var0 = linear.linear_prior(spec, priors, m)
     if spec.mean_reverting:
         a, _, b = local_trend.coefficients(rho, n_grid, xp=pt)
         x = local_trend.design(spec, idx, rho, rows, xp=pt)
@@ -382,5 +423,7 @@ def _local_trend_likelihood(spec, priors, t, y, w, axis) -> None:
     ww = pt.outer(w, w)
     cov = ww * cov + pt.diag(1.0 - w) + local_trend._JITTER * np.eye(t.size)
     resid = w * (y - pt.dot(x, mu0))
-    pm.Potential("loglik", pm.logp(pm.MvNormal.dist(mu=pt.zeros(t.size), cov=cov), resid))
+    dropped = 0.5 * math.log(2 * math.pi) * (1.0 - w).sum()  # each decoupled row's N(0, 1) at 0
+    pm.Potential("loglik",
+                 pm.logp(pm.MvNormal.dist(mu=pt.zeros(t.size), cov=cov), resid) + dropped)
 

@@ -22,9 +22,10 @@ linearly, and their priors are normal, so they too are integrated out while
 sampling: with ``beta`` those coefficients, ``X`` their design and ``beta ~
 N(mu0, diag(v0))``, the log values are normal with mean ``X mu0`` and covariance
 ``K + X diag(v0) X'``. NUTS then samples only the scales (and the persistences).
-Sampled jointly with the scales, the starting level made a funnel: without level
-shocks the first observation is the level plus noise, so ``log a`` tightens as
-the noise scale shrinks (16 divergent transitions on the demo series, 52 s).
+Sampled jointly with the scales, ``log a`` made a funnel: without level shocks
+the first observation is the level plus noise, so ``log a`` tightens as the
+noise scale shrinks (16 divergent transitions on the demo series, 52 s; none
+and 27 s once integrated out). See :mod:`bayesgrowth.models.linear`.
 Each draw's coefficients are drawn afterwards from their exact normal
 conditional (:func:`draw_linear`), so the posterior holds every parameter.
 
@@ -39,15 +40,15 @@ import math
 
 import numpy as np
 
+from bayesgrowth.models import linear
+
 __all__ = [
     "coefficients",
     "conditional_draws",
     "design",
     "draw_linear",
     "error_covariance",
-    "linear_prior",
     "log_likelihood",
-    "season_basis",
 ]
 
 _JITTER = 1e-10
@@ -235,33 +236,6 @@ def conditional_draws(
     return (np.concatenate(levels), np.concatenate(values), np.concatenate(growths))
 
 
-def season_basis(m: int) -> np.ndarray:
-    """Orthonormal ``(m, m - 1)`` basis of the vectors that sum to zero.
-
-    A ``ZeroSumNormal(sigma)`` vector is ``Q eta`` with ``eta ~ N(0, sigma^2 I)``:
-    both have covariance ``sigma^2 (I - 11'/m)``.
-    """
-    q, _ = np.linalg.qr(np.eye(m) - 1.0 / m)
-    return q[:, : m - 1]
-
-
-def linear_prior(spec, priors, n_seasons: int = 0) -> tuple[np.ndarray, np.ndarray]:
-    """Prior means and variances of the linear coefficients, in :func:`design`'s order.
-
-    ``log a`` and ``b``, then ``c`` for mean-reverting drift, then ``m - 1``
-    seasonal coordinates. A fixed value has variance 0.
-    """
-    mu = [priors.log_a_mu, priors.log1p_g_mu]
-    var = [priors.log_a_sd**2, priors.log1p_g_sd**2]
-    if spec.mean_reverting:
-        mu.append(priors.long_run_mu)
-        var.append(priors.long_run_sd**2)
-    if spec.seasonal:
-        mu += [0.0] * (n_seasons - 1)
-        var += [priors.seasonal_scale**2] * (n_seasons - 1)
-    return np.asarray(mu, dtype=float), np.asarray(var, dtype=float)
-
-
 def design(spec, idx: np.ndarray, rho=None, season_rows=None, xp=np):
     """Design of the linear coefficients at grid positions ``idx``.
 
@@ -293,16 +267,6 @@ def design(spec, idx: np.ndarray, rho=None, season_rows=None, xp=np):
     )
 
 
-def _season_rows(spec, axis, t):
-    """``D Q`` at times ``t`` and the season count (``None, 0`` without seasons)."""
-    if not spec.seasonal:
-        return None, 0
-    from bayesgrowth.models.spec import season_index
-
-    m, s_idx = season_index(axis, np.asarray(t))
-    return season_basis(m)[s_idx], m
-
-
 def draw_linear(spec, priors, draws: dict, t, log_y, axis, rng: np.random.Generator) -> dict:
     """Complete scale draws with ``log_a``, ``log1p_g`` (``long_run``, ``season``).
 
@@ -332,47 +296,32 @@ def draw_linear(spec, priors, draws: dict, t, log_y, axis, rng: np.random.Genera
     """
     t = np.asarray(t, dtype=int)
     n_draws = np.asarray(draws["sigma"]).size
-    m = _season_count(spec, axis)
-    mu0, var0 = linear_prior(spec, priors, m)
-    p = mu0.size
     if t.size == 0:
-        beta = mu0 + np.sqrt(var0) * rng.standard_normal((n_draws, p))
-    else:
-        idx = t - int(priors.t_ref)
-        n_grid = int(idx.max()) + 1
-        rows, _ = _season_rows(spec, axis, t)
-        y = np.asarray(log_y, dtype=float)
-        out = []
-        for d in _chunks(draws, n_draws):
-            s = np.asarray(d["sigma"]).size
-            x = design(spec, idx, d.get("rho"), rows)
-            x = np.broadcast_to(x, (s, *x.shape[-2:]))
-            k = _level_cov(d, spec, n_grid, idx, idx) + error_covariance(
-                d["sigma"], d.get("phi") if spec.errors == "ar1" else None, t
-            )
-            xv = x * var0
-            chol = np.linalg.cholesky(k + xv @ np.swapaxes(x, -1, -2) + _JITTER * np.eye(t.size))
-            a = np.linalg.solve(chol, xv)
-            r = np.linalg.solve(chol, (y - x @ mu0)[..., None])[..., 0]
-            mean = mu0 + (np.swapaxes(a, -1, -2) @ r[..., None])[..., 0]
-            cov = np.diag(var0) - np.swapaxes(a, -1, -2) @ a
-            evals, evecs = np.linalg.eigh(0.5 * (cov + np.swapaxes(cov, -1, -2)))
-            root = evecs * np.sqrt(np.clip(evals, 0, None))[:, None, :]
-            out.append(mean + (root @ rng.standard_normal((s, p, 1)))[..., 0])
-        beta = np.concatenate(out)
-    done = {**draws, "log_a": beta[:, 0], "log1p_g": beta[:, 1]}
-    if priors.fixed_initial:
-        done["log_a"] = np.full(n_draws, priors.log_a_mu)
-    if spec.mean_reverting:
-        done["long_run"] = beta[:, 2]
-    if spec.seasonal:
-        done["season"] = beta[:, p - (m - 1):] @ season_basis(m).T
-    return done
-
-
-def _season_count(spec, axis) -> int:
-    if not spec.seasonal:
-        return 0
-    from bayesgrowth.models.spec import season_index
-
-    return season_index(axis, np.arange(1))[0]
+        return linear.prior_coefficients(spec, priors, draws, axis, rng)
+    m = linear.season_count(spec, axis)
+    mu0, var0 = linear.linear_prior(spec, priors, m)
+    p = mu0.size
+    idx = t - int(priors.t_ref)
+    n_grid = int(idx.max()) + 1
+    rows, _ = linear.season_rows(spec, axis, t)
+    y = np.asarray(log_y, dtype=float)
+    out = []
+    for d in _chunks(draws, n_draws):
+        s = np.asarray(d["sigma"]).size
+        x = design(spec, idx, d.get("rho"), rows)
+        x = np.broadcast_to(x, (s, *x.shape[-2:]))
+        k = _level_cov(d, spec, n_grid, idx, idx) + error_covariance(
+            d["sigma"], d.get("phi") if spec.errors == "ar1" else None, t
+        )
+        xv = x * var0
+        chol = np.linalg.cholesky(k + xv @ np.swapaxes(x, -1, -2) + _JITTER * np.eye(t.size))
+        a = np.linalg.solve(chol, xv)
+        r = np.linalg.solve(chol, (y - x @ mu0)[..., None])[..., 0]
+        mean = mu0 + (np.swapaxes(a, -1, -2) @ r[..., None])[..., 0]
+        cov = np.diag(var0) - np.swapaxes(a, -1, -2) @ a
+        evals, evecs = np.linalg.eigh(0.5 * (cov + np.swapaxes(cov, -1, -2)))
+        root = evecs * np.sqrt(np.clip(evals, 0, None))[:, None, :]
+        out.append(mean + (root @ rng.standard_normal((s, p, 1)))[..., 0])
+    beta = np.concatenate(out)
+    return {**draws, **linear.split_coefficients(spec, beta, m, priors.fixed_initial,
+                                                 priors.log_a_mu)}

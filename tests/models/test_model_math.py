@@ -9,7 +9,7 @@ import pytest
 from scipy import stats
 
 from bayesgrowth.data.periods import PeriodAxis
-from bayesgrowth.models import general, local_trend
+from bayesgrowth.models import general, linear, local_trend
 from bayesgrowth.models.spec import ModelSpec, season_index
 
 
@@ -179,7 +179,7 @@ def test_local_trend_design_reproduces_the_mean_path_and_seasons(rng):
     level, _ = local_trend.mean_paths(d, 8, mean_reverting=True)
     np.testing.assert_allclose(x @ beta, level[:, idx], rtol=1e-12)
     for m in (4, 12):
-        q = local_trend.season_basis(m)
+        q = linear.season_basis(m)
         np.testing.assert_allclose(q.T @ np.ones(m), 0.0, atol=1e-12)
         np.testing.assert_allclose(q.T @ q, np.eye(m - 1), atol=1e-12)
         np.testing.assert_allclose(q @ q.T, np.eye(m) - 1.0 / m, atol=1e-12)

@@ -1,0 +1,243 @@
+"""Coefficients that enter the log mean linearly, integrated out while sampling.
+
+In the exponential and damped curves (given the half-life) and in the local
+trend, the starting level ``log a``, the growth ``b``, the long-run growth ``c``
+and the seasonal factors enter the log mean linearly: ``m = X beta``. Their priors
+are normal, ``beta ~ N(mu0, diag(v0))``, so with normal noise the log values are
+normal given the remaining parameters, with mean ``X mu0`` and covariance ``K +
+X diag(v0) X'`` (``K`` the error covariance). NUTS then samples only the scales
+and shape parameters, and each draw's ``beta`` is drawn afterwards from its exact
+normal conditional.
+
+Why: sampled jointly with the AR(1) persistence ``phi``, the starting level made
+a funnel. Its posterior sd grows like ``sigma / sqrt(1 - phi^2)`` as ``phi``
+nears 1, and NUTS diverged on US real GDP (14 divergent transitions on 20
+quarters; none once ``log a`` was fixed). Without level shocks, the local trend
+has the same funnel in the noise scale.
+
+For the curves with independent or AR(1) errors, ``K^-1 = T'T`` with ``T`` the
+innovation transform (each row turns an error into its standardised innovation),
+so the marginal density is computed in ``O(n p^2)``. With ``z = T (y - X mu0)``,
+``W = T X`` and ``M = diag(1/v0) + W'W``:
+
+``log p(y) = -n/2 log(2 pi) - log det T^-1 - z'z/2 + g' M^-1 g / 2 - log det(diag(v0) M) / 2``,
+
+with ``g = W'z`` (the Woodbury identity). Given the other parameters, ``beta - mu0 ~
+N(M^-1 g, M^-1)``. A coefficient with prior variance 0 is fixed at its mean and
+left out of ``X``.
+
+A ``ZeroSumNormal(s)`` vector of ``m`` seasonal factors is ``Q eta``, with ``eta ~ N(0,
+s^2 I)`` and ``Q`` an orthonormal basis of the zero-sum vectors.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from bayesgrowth.models.spec import ModelSpec, season_index
+
+__all__ = [
+    "COEFFICIENTS",
+    "curve_design",
+    "draw_curve_coefficients",
+    "integrates_linear",
+    "linear_prior",
+    "marginal_loglik",
+    "prior_coefficients",
+    "season_basis",
+    "season_rows",
+    "split_coefficients",
+]
+
+#: The linear coefficients, in design order (seasonal coordinates come last).
+COEFFICIENTS = ("log_a", "log1p_g", "long_run")
+
+
+def integrates_linear(spec: ModelSpec) -> bool:
+    """Whether the PyMC model of ``spec`` integrates its linear coefficients out.
+
+    The local trend always does; the exponential and damped curves do with normal
+    noise, except the plain exponential model (independent errors, no seasons),
+    whose level-at-the-centre parameterisation already samples well.
+    """
+    if spec.model == "local-trend":
+        return True
+    return (spec.model in ("exponential", "damped") and spec.noise == "normal"
+            and not spec.is_plain_exponential)
+
+
+def season_basis(m: int) -> np.ndarray:
+    """Orthonormal ``(m, m - 1)`` basis of the vectors that sum to zero."""
+    q, _ = np.linalg.qr(np.eye(m) - 1.0 / m)
+    return q[:, : m - 1]
+
+
+def season_count(spec: ModelSpec, axis) -> int:
+    """Seasons per year for a seasonal ``spec`` (0 without seasons)."""
+    return season_index(axis, np.arange(1))[0] if spec.seasonal else 0
+
+
+def season_rows(spec: ModelSpec, axis, t) -> tuple[np.ndarray | None, int]:
+    """``D Q`` at times ``t`` (``D`` the season indicators) and the season count."""
+    if not spec.seasonal:
+        return None, 0
+    m, s_idx = season_index(axis, np.asarray(t))
+    return season_basis(m)[s_idx], m
+
+
+def _uses_long_run(spec: ModelSpec) -> bool:
+    return spec.model == "damped" or spec.mean_reverting
+
+
+def linear_prior(spec: ModelSpec, priors, n_seasons: int = 0) -> tuple[np.ndarray, np.ndarray]:
+    """Prior means and variances of the linear coefficients, in design order.
+
+    ``log a`` and ``b``, then ``c`` (damped curve, mean-reverting local trend), then
+    ``m - 1`` seasonal coordinates. A fixed value has variance 0.
+    """
+    mu = [priors.log_a_mu, priors.log1p_g_mu]
+    var = [priors.log_a_sd**2, priors.log1p_g_sd**2]
+    if _uses_long_run(spec):
+        mu.append(priors.long_run_mu)
+        var.append(priors.long_run_sd**2)
+    if spec.seasonal:
+        mu += [0.0] * (n_seasons - 1)
+        var += [priors.seasonal_scale**2] * (n_seasons - 1)
+    return np.asarray(mu, dtype=float), np.asarray(var, dtype=float)
+
+
+def split_coefficients(spec: ModelSpec, beta: np.ndarray, n_seasons: int,
+                       fixed_initial: bool, log_a_mu: float) -> dict:
+    """Named draws from coefficient draws ``beta`` ``(S, p)`` in design order."""
+    out = {"log_a": beta[:, 0], "log1p_g": beta[:, 1]}
+    if fixed_initial:
+        out["log_a"] = np.full(beta.shape[0], log_a_mu)
+    if _uses_long_run(spec):
+        out["long_run"] = beta[:, 2]
+    if spec.seasonal:
+        out["season"] = beta[:, beta.shape[1] - (n_seasons - 1):] @ season_basis(n_seasons).T
+    return out
+
+
+def prior_coefficients(spec: ModelSpec, priors, draws: dict, axis,
+                       rng: np.random.Generator) -> dict:
+    """``draws`` plus prior draws of the linear coefficients."""
+    m = season_count(spec, axis)
+    mu0, var0 = linear_prior(spec, priors, m)
+    n = np.asarray(draws["sigma"]).size
+    beta = mu0 + np.sqrt(var0) * rng.standard_normal((n, mu0.size))
+    return {**draws, **split_coefficients(spec, beta, m, priors.fixed_initial, priors.log_a_mu)}
+
+
+def curve_design(spec: ModelSpec, dt, half_life=None, rows=None, xp=np):
+    """Design of the curve's linear coefficients at offsets ``dt``.
+
+    Columns ``1`` (log a), then ``dt`` (b) for the exponential curve, or ``f =
+    expm1(-lambda dt) / expm1(-lambda)`` (b) and ``dt - f`` (c) for the damped
+    curve with ``lambda = ln 2 / half_life``, then the seasonal rows. With NumPy
+    and ``half_life`` draws ``(S,)`` the result is ``(S, n, p)``.
+    """
+    if xp is np:
+        dt = np.asarray(dt, dtype=float)
+        ones = np.ones_like(dt)
+        if spec.model == "exponential":
+            cols = np.column_stack([ones, dt])
+        else:
+            lam = math.log(2.0) / np.asarray(half_life, dtype=float)[:, None]
+            f = np.expm1(-lam * dt) / np.expm1(-lam)
+            cols = np.stack([np.broadcast_to(ones, f.shape), f, dt - f], axis=-1)
+        if rows is None:
+            return cols
+        rows = np.broadcast_to(rows, (*cols.shape[:-1], rows.shape[-1]))
+        return np.concatenate([cols, rows], axis=-1)
+    ones = xp.ones_like(dt)
+    if spec.model == "exponential":
+        cols = [ones, dt]
+    else:
+        lam = math.log(2.0) / half_life
+        f = xp.expm1(-lam * dt) / xp.expm1(-lam)
+        cols = [ones, f, dt - f]
+    x = xp.stack(cols, axis=1)
+    return x if rows is None else xp.concatenate([x, xp.as_tensor(rows)], axis=1)
+
+
+def _whiten(spec: ModelSpec, v, sigma, phi, lag, xp, matrix: bool = False):
+    """Rows of ``v`` turned into standardised innovations, and each row's log scale.
+
+    ``v`` is ``(..., n)``, or ``(..., n, p)`` with ``matrix``; with NumPy, ``sigma``
+    and ``phi`` are draws ``(S,)`` and ``lag`` is ``(S, n)``. ``lag[i]`` is the gap
+    between rows ``i - 1`` and ``i`` (``lag[0]`` is unused). The log scales add up
+    to ``log det T^-1``.
+    """
+    if xp is np:
+        sigma = sigma[:, None]
+        phi = None if phi is None else phi[:, None]
+    if spec.errors == "independent":
+        scale = sigma * xp.ones_like(lag)
+        innov = v
+    else:
+        phik = phi ** lag[..., 1:]
+        ratio = xp.sqrt((1 - phik**2) / (1 - phi**2))
+        first = 1 / xp.sqrt(1 - phi**2)
+        first = first * xp.ones_like(lag[..., :1]) if xp is np else xp.stack([first])
+        scale = sigma * xp.concatenate([first, ratio], axis=-1)
+        if matrix:
+            p = phik[..., :, None]
+            innov = xp.concatenate([v[..., :1, :], v[..., 1:, :] - p * v[..., :-1, :]], axis=-2)
+        else:
+            innov = xp.concatenate([v[..., :1], v[..., 1:] - phik * v[..., :-1]], axis=-1)
+    out = innov / scale[..., :, None] if matrix else innov / scale
+    return out, xp.log(scale)
+
+
+def marginal_loglik(spec: ModelSpec, priors, y, w, dt, lag, sigma, phi, half_life, rows, m):
+    """The curve's log likelihood with its linear coefficients integrated out (PyTensor).
+
+    ``w`` weights rows 0/1 (switched-off rows must follow the rows that are on, as
+    the AR(1) innovations chain each row to the one before).
+    """
+    import pytensor.tensor as pt
+    from pytensor.tensor.slinalg import cholesky, solve_triangular
+
+    mu0, var0 = linear_prior(spec, priors, m)
+    x = curve_design(spec, dt, half_life, rows, xp=pt)
+    free = np.flatnonzero(var0 > 0)
+    r = y - pt.dot(x, mu0)
+    z, log_scale = _whiten(spec, r, sigma, phi, lag, pt)
+    wm, _ = _whiten(spec, x[:, free], sigma, phi, lag, pt, matrix=True)
+    z, wm = w * z, w[:, None] * wm
+    g = pt.dot(wm.T, z)
+    chol = cholesky(pt.diag(1.0 / var0[free]) + pt.dot(wm.T, wm))
+    u = solve_triangular(chol, g, lower=True)
+    return (
+        -0.5 * math.log(2 * math.pi) * w.sum() - (w * log_scale).sum() - 0.5 * pt.dot(z, z)
+        + 0.5 * pt.dot(u, u) - pt.log(pt.diag(chol)).sum() - 0.5 * np.log(var0[free]).sum()
+    )
+
+
+def draw_curve_coefficients(spec: ModelSpec, priors, draws: dict, t, log_y, axis,
+                            rng: np.random.Generator) -> dict:
+    """``draws`` plus each draw's linear coefficients from their normal conditional."""
+    t = np.asarray(t, dtype=float)
+    rows, m = season_rows(spec, axis, t)
+    mu0, var0 = linear_prior(spec, priors, m)
+    free = np.flatnonzero(var0 > 0)
+    sigma = np.asarray(draws["sigma"], dtype=float)
+    phi = np.asarray(draws["phi"], dtype=float) if spec.errors == "ar1" else None
+    half_life = draws.get("half_life")
+    lag = np.broadcast_to(np.concatenate([[1.0], np.diff(t)]), (sigma.size, t.size))
+    x = np.broadcast_to(curve_design(spec, t - priors.t_ref, half_life, rows),
+                        (sigma.size, t.size, mu0.size))
+    r = np.asarray(log_y, dtype=float) - x @ mu0
+    z, _ = _whiten(spec, r, sigma, phi, lag, np)
+    wm, _ = _whiten(spec, x[..., free], sigma, phi, lag, np, matrix=True)
+    g = (np.swapaxes(wm, -1, -2) @ z[..., None])[..., 0]
+    chol = np.linalg.cholesky(np.diag(1.0 / var0[free]) + np.swapaxes(wm, -1, -2) @ wm)
+    mean = np.linalg.solve(np.swapaxes(chol, -1, -2), np.linalg.solve(chol, g[..., None]))
+    eps = rng.standard_normal((sigma.size, free.size, 1))
+    delta = (mean + np.linalg.solve(np.swapaxes(chol, -1, -2), eps))[..., 0]
+    beta = np.broadcast_to(mu0, (sigma.size, mu0.size)).copy()
+    beta[:, free] += delta
+    return {**draws, **split_coefficients(spec, beta, m, priors.fixed_initial, priors.log_a_mu)}

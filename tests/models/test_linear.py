@@ -1,0 +1,150 @@
+"""Linear coefficients integrated out: densities against scipy, conditionals against formulas."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pandas as pd
+import pytest
+from scipy import stats
+
+from bayesgrowth.data.series import read_series
+from bayesgrowth.models import general, linear
+from bayesgrowth.models.spec import ModelSpec
+from bayesgrowth.priors import LongRunGrowthPrior, Priors
+
+
+def _series(values, drop=()):
+    labels = [f"{2016 + i // 4}Q{i % 4 + 1}" for i in range(len(values))]
+    keep = [i for i in range(len(values)) if i not in drop]
+    frame = pd.DataFrame({"period": [labels[i] for i in keep],
+                          "value": np.asarray(values)[keep]})
+    with pytest.warns(UserWarning) if drop else _nothing():
+        return read_series(frame, name="simulated")
+
+
+class _nothing:
+    def __enter__(self):
+        return self
+
+    def __exit__(self, *exc):
+        return False
+
+
+def _dense_parts(spec, pr, s, sigma, phi=None, half_life=None):
+    """Prior mean, covariance ``K + X V X'`` and design by plain dense algebra."""
+    rows, m = linear.season_rows(spec, s.axis, s.t)
+    mu0, var0 = linear.linear_prior(spec, pr, m)
+    dt = (s.t - pr.t_ref).astype(float)
+    hl = None if half_life is None else np.array([half_life])
+    x = linear.curve_design(spec, dt, hl, rows)
+    x = x[0] if x.ndim == 3 else x
+    gap = np.abs(s.t[:, None] - s.t[None, :]).astype(float)
+    k = sigma**2 * np.eye(s.n) if phi is None else sigma**2 / (1 - phi**2) * phi**gap
+    return mu0, var0, x, k
+
+
+CASES = [
+    # (spec, point of the sampled parameters, dropped rows)
+    (ModelSpec(errors="ar1", seasonal=True), {"sigma": 0.03, "phi": 0.8}, (5, 6)),
+    (ModelSpec(model="damped"), {"sigma": 0.05, "half_life": 5.0}, ()),
+    (ModelSpec(model="damped", errors="ar1"), {"sigma": 0.04, "phi": 0.6, "half_life": 3.0}, ()),
+]
+
+
+@pytest.mark.parametrize(("spec", "point", "drop"), CASES)
+def test_marginal_density_matches_scipy_multivariate_normal(spec, point, drop):
+    # Source: scipy.stats.multivariate_normal: with beta ~ N(mu0, V) integrated out, the log
+    # values are N(X mu0, K + X V X'), K the independent or stationary AR(1) covariance
+    # sigma^2 / (1 - phi^2) phi^|t_i - t_j| (Box & Jenkins); dropped rows test the gaps. The
+    # PyMC model's potential (the O(n p^2) Woodbury form) must equal that density.
+    rng = np.random.default_rng(4)
+    n = 16
+    y = np.exp(5 + 0.04 * np.arange(n) + 0.05 * rng.standard_normal(n))
+    s = _series(y, drop)
+    # the damped case also estimates its long-run growth (prior sd > 0)
+    stated = Priors(long_run=LongRunGrowthPrior(center_pct=1.0, give_or_take_pts=2.0))
+    pr = stated.resolve(s)
+    model = general.build_pymc_model(spec, pr, s.t, s.log_values, axis=s.axis)
+    values = {"sigma_log__": math.log(point["sigma"])}
+    if "phi" in point:
+        values["phi_logodds__"] = math.log(point["phi"] / (1 - point["phi"]))
+    if "half_life" in point:
+        values["log_half_life"] = math.log(point["half_life"])
+    (pot,) = model.replace_rvs_by_values([model.potentials[0]])
+    ours = float(model.compile_fn(pot)(values))
+    mu0, var0, x, k = _dense_parts(spec, pr, s, point["sigma"], point.get("phi"),
+                                   point.get("half_life"))
+    ref = stats.multivariate_normal(x @ mu0, k + (x * var0) @ x.T).logpdf(s.log_values)
+    assert ours == pytest.approx(ref, rel=1e-9)
+
+
+@pytest.mark.parametrize(("spec", "point", "drop"), CASES[:2])
+def test_coefficient_draws_follow_the_normal_conditional(spec, point, drop):
+    # Textbook conditional of a normal prior and normal data (e.g. Gelman et al., Bayesian
+    # Data Analysis, 3rd ed., section 14.8, from memory): beta | y ~ N(mu0 + V X' S^-1 r,
+    # V - V X' S^-1 X V), S = K + X V X', r = y - X mu0. Monte Carlo: 5 standard errors.
+    rng = np.random.default_rng(8)
+    n, draws = 14, 40_000
+    y = np.exp(3 + 0.06 * np.arange(n) + 0.04 * rng.standard_normal(n))
+    s = _series(y, drop)
+    pr = Priors().resolve(s)
+    flat = {k: np.full(draws, v) for k, v in point.items()}
+    done = general.complete_draws(spec, pr, flat, s.t, s.log_values, s.axis,
+                                  np.random.default_rng(2))
+    mu0, var0, x, k = _dense_parts(spec, pr, s, point["sigma"], point.get("phi"),
+                                   point.get("half_life"))
+    big_s = k + (x * var0) @ x.T
+    vx = x * var0
+    mean = mu0 + vx.T @ np.linalg.solve(big_s, s.log_values - x @ mu0)
+    cov = np.diag(var0) - vx.T @ np.linalg.solve(big_s, vx)
+    for i, name in enumerate(("log_a", "log1p_g")):
+        got = done[name]
+        assert abs(got.mean() - mean[i]) <= 5 * math.sqrt(cov[i, i] / draws), name
+        assert got.var() == pytest.approx(cov[i, i], rel=5 * math.sqrt(2 / draws)), name
+    if spec.seasonal:
+        season = done["season"]
+        np.testing.assert_allclose(season.sum(axis=1), 0.0, atol=1e-12)
+        q = linear.season_basis(4)
+        want = q @ mean[2:]
+        sd = np.sqrt(np.diag(q @ cov[2:, 2:] @ q.T))
+        assert np.all(np.abs(season.mean(axis=0) - want) <= 5 * sd / math.sqrt(draws))
+
+
+def test_which_models_integrate_their_coefficients():
+    assert linear.integrates_linear(ModelSpec(model="local-trend"))
+    assert linear.integrates_linear(ModelSpec(errors="ar1"))
+    assert linear.integrates_linear(ModelSpec(model="damped"))
+    assert not linear.integrates_linear(ModelSpec())  # sampled at the centre instead
+    assert not linear.integrates_linear(ModelSpec(errors="ar1", noise="student-t"))
+    assert not linear.integrates_linear(ModelSpec(model="logistic"))
+
+
+def _potential(model, values):
+    (pot,) = model.replace_rvs_by_values([model.potentials[0]])
+    return float(model.compile_fn(pot)(values))
+
+
+@pytest.mark.parametrize("spec", [ModelSpec(errors="ar1", seasonal=True),
+                                  ModelSpec(model="damped", errors="ar1"),
+                                  ModelSpec(model="local-trend")])
+def test_switched_off_rows_drop_out_exactly(spec):
+    # A refit compiled on the whole series with 0/1 row weights must give the same log density
+    # as the model built on the training rows alone (identity check, no outside reference).
+    rng = np.random.default_rng(6)
+    y = np.exp(4 + 0.05 * np.arange(14) + 0.04 * rng.standard_normal(14))
+    full = _series(y)
+    train = full.take(np.arange(10))
+    pr = Priors().resolve(train)
+    weight = (np.arange(14) < 10).astype(float)
+    values = {"sigma_log__": math.log(0.04)}
+    if spec.errors == "ar1":
+        values["phi_logodds__"] = math.log(0.7 / 0.3)
+    if spec.model == "damped":
+        values["log_half_life"] = math.log(4.0)
+    if spec.model == "local-trend":
+        values["sigma_growth_log__"] = math.log(0.01)
+    on_full = general.build_pymc_model(spec, pr, full.t, full.log_values, weight, axis=full.axis)
+    alone = general.build_pymc_model(spec, pr, train.t, train.log_values, axis=train.axis)
+    assert _potential(on_full, values) == pytest.approx(_potential(alone, values), rel=1e-10)
