@@ -208,14 +208,16 @@ def _bayesian_predictor(engine: str, series: GrowthSeries, priors, model_options
         from bayesgrowth.inference import refit as refit_module
 
         if refit_module.supports(options):
+            from bayesgrowth.models.spec import ModelSpec
+
             sampler = {k: options[k] for k in ("tune", "target_accept", "cores") if k in options}
+            spec = ModelSpec(**{k: options[k] for k in refit_module.SPEC_OPTIONS if k in options})
             refit = refit_module.NutsRefitter(
-                series, priors, draws=draws, chains=chains, **sampler
+                series, priors, draws=draws, chains=chains, spec=spec, **sampler
             )
         else:
             warnings.warn(
-                "the compiled-once NUTS refit needs nutpie and the exponential model with "
-                "independent normal errors; "
+                "the compiled-once NUTS refit needs nutpie and only model and sampler options; "
                 "refitting with fit_series at every origin instead (slower)",
                 stacklevel=4,
             )

@@ -55,7 +55,7 @@ from bayesgrowth.inference.fit import Fit
 from bayesgrowth.models import exponential
 from bayesgrowth.priors import Priors, ResolvedPriors
 
-__all__ = ["NutsRefitter", "TARGET_ACCEPT", "supports"]
+__all__ = ["NutsRefitter", "SPEC_OPTIONS", "TARGET_ACCEPT", "supports"]
 
 #: Step-size target: measured divergence-free on 4-19 point fits (see module docstring).
 TARGET_ACCEPT = 0.95
@@ -63,7 +63,7 @@ TARGET_ACCEPT = 0.95
 #: Sampler settings of ``fit_series`` this refitter understands.
 _SETTINGS = ("draws", "chains", "tune", "target_accept", "cores", "progressbar")
 #: ``fit_series`` options that choose the model (see :class:`~bayesgrowth.models.spec.ModelSpec`).
-_SPEC_OPTIONS = ("model", "errors", "noise", "seasonal", "drift")
+SPEC_OPTIONS = ("model", "errors", "noise", "seasonal", "drift")
 
 
 def supports(options: dict | None) -> bool:
@@ -77,26 +77,28 @@ def supports(options: dict | None) -> bool:
     Returns
     -------
     bool
-        True when nutpie is importable and the options choose the exponential
-        model with independent normal errors (the default) and otherwise only
-        sampler settings.
+        True when nutpie is importable and the options choose a valid model
+        (:class:`~bayesgrowth.models.spec.ModelSpec`) and otherwise only sampler
+        settings.
     """
-    from bayesgrowth.models.spec import ModelSpec
-
     options = dict(options or {})
-    spec = {k: options.pop(k) for k in _SPEC_OPTIONS if k in options}
     try:
-        if not ModelSpec(**spec).is_plain_exponential:
-            return False
+        _spec(options)
     except (TypeError, ValueError):
         return False
-    if any(k not in _SETTINGS for k in options):
+    if any(k not in _SETTINGS + SPEC_OPTIONS for k in options):
         return False
     try:
         import nutpie  # noqa: F401
     except ImportError:
         return False
     return True
+
+
+def _spec(options: dict):
+    from bayesgrowth.models.spec import ModelSpec
+
+    return ModelSpec(**{k: options[k] for k in SPEC_OPTIONS if k in options})
 
 
 def sample_compiled(
@@ -109,6 +111,7 @@ def sample_compiled(
     seed: int,
     target_accept: float,
     diagnose_names: list[str] | None = None,
+    names: tuple[str, ...] = exponential.PARAMETERS,
 ) -> tuple[dict[str, np.ndarray], object, dict]:
     """Sample a nutpie model compiled once (with its data already swapped in) and diagnose it.
 
@@ -120,11 +123,13 @@ def sample_compiled(
         Sampler settings.
     diagnose_names : list of str, optional
         Posterior variables to diagnose (default: all that ``diagnose`` checks).
+    names : tuple of str
+        Variables to return, those of them that the model has.
 
     Returns
     -------
     posterior : dict of str to numpy.ndarray
-        Draws of ``exponential.PARAMETERS``, shape ``(chain, draw)``.
+        Draws of ``names``, shape ``(chain, draw, ...)``.
     diagnostics : Diagnostics
     settings : dict
         The settings, for :attr:`Fit.settings`.
@@ -145,7 +150,7 @@ def sample_compiled(
         progress_bar=False,
     )
     post = idata.posterior
-    posterior = {k: np.asarray(post[k].values, dtype=float) for k in exponential.PARAMETERS}
+    posterior = {k: np.asarray(post[k].values, dtype=float) for k in names if k in post}
     divergences = int(idata.sample_stats["diverging"].sum())
     checked = post if diagnose_names is None else post[diagnose_names]
     diagnostics = dataclasses.replace(
@@ -157,7 +162,7 @@ def sample_compiled(
 
 
 class NutsRefitter:
-    """NUTS fits of the exponential model to subsets of one series, compiled once.
+    """NUTS fits of one model to subsets of one series, compiled once.
 
     Parameters
     ----------
@@ -171,6 +176,12 @@ class NutsRefitter:
         Default :data:`TARGET_ACCEPT`.
     cores : int, optional
         Chains run in parallel threads; default the CPUs available, at most ``chains``.
+    spec : ModelSpec, optional
+        The model; default the plain exponential. Other models are compiled on the
+        full series with 0/1 row weights too, and serve subsets that start at the
+        first row and have no holes (an expanding window); any other subset is
+        fitted by ``fit_series``. A change in the resolved priors (a ceiling set
+        as a multiple of the latest value moves with it) compiles another model.
 
     Examples
     --------
@@ -189,9 +200,13 @@ class NutsRefitter:
         chains: int = 4,
         target_accept: float | None = None,
         cores: int | None = None,
+        spec=None,
     ) -> None:
+        from bayesgrowth.models.spec import ModelSpec
+
         self.series = series
         self.priors = priors or Priors()
+        self.spec = spec or ModelSpec()
         self.draws = int(draws)
         self.tune = int(tune)
         self.chains = int(chains)
@@ -206,12 +221,19 @@ class NutsRefitter:
         return len(self._compiled)
 
     def _compiled_for(self, resolved: ResolvedPriors, weight: np.ndarray):
-        key = resolved.compile_key()
+        plain = self.spec.is_plain_exponential
+        key = resolved.compile_key() if plain else _full_key(self.spec, resolved)
         if key not in self._compiled:
             import nutpie
 
+            from bayesgrowth.models import general
+
             s = self.series
-            model = exponential.build_pymc_model(resolved, s.t, s.log_values, weight)
+            if plain:
+                model = exponential.build_pymc_model(resolved, s.t, s.log_values, weight)
+            else:
+                model = general.build_pymc_model(self.spec, resolved, s.t, s.log_values, weight,
+                                                 axis=s.axis)
             compiled = nutpie.compile_pymc_model(model, freeze_model=False)
             self._compiled[key] = (compiled, resolved)
         return self._compiled[key]
@@ -236,6 +258,8 @@ class NutsRefitter:
         positions = np.sort(np.asarray(positions, dtype=int))
         train = s.take(positions)
         resolved = self.priors.resolve(train)
+        if not self.spec.is_plain_exponential:
+            return self._fit_model(positions, train, resolved, seed)
         weight = np.zeros(s.n)
         weight[positions] = 1.0
         compiled, base = self._compiled_for(resolved, weight)
@@ -251,12 +275,43 @@ class NutsRefitter:
             posterior["log_a"] = np.full_like(posterior["sigma"], resolved.log_a_mu)
         else:
             posterior["log_a"] = posterior["log_a"] + shift
-        return Fit(
-            series=train,
-            priors=resolved,
-            engine="nuts",
-            seed=int(seed),
-            posterior=posterior,
-            diagnostics=diagnostics,
-            settings=settings,
+        return Fit(series=train, priors=resolved, engine="nuts", seed=int(seed),
+                   posterior=posterior, diagnostics=diagnostics, settings=settings)
+
+    def _fit_model(self, positions, train, resolved, seed) -> Fit:
+        """Any other model: an expanding window swaps the weights, other subsets refit."""
+        from bayesgrowth.inference.nuts import complete_posterior
+
+        spec = self.spec
+        if not np.array_equal(positions, np.arange(positions.size)):
+            from bayesgrowth.inference.run import fit_series
+
+            return fit_series(train, priors=self.priors, seed=int(seed), draws=self.draws,
+                              tune=self.tune, chains=self.chains,
+                              target_accept=self.target_accept, **spec.to_dict())
+        weight = np.zeros(self.series.n)
+        weight[positions] = 1.0
+        compiled, _ = self._compiled_for(resolved, weight)
+        names = spec.parameters() + spec.vector_parameters()
+        posterior, diagnostics, settings = sample_compiled(
+            compiled.with_data(weight=weight), draws=self.draws, tune=self.tune,
+            chains=self.chains, cores=self.cores, seed=seed, target_accept=self.target_accept,
+            names=names,
         )
+        posterior = complete_posterior(spec, resolved, train, posterior, int(seed))
+        return Fit(series=train, priors=resolved, engine="nuts", seed=int(seed),
+                   posterior=posterior, diagnostics=diagnostics, settings=settings,
+                   model=spec.model, spec=spec)
+
+
+def _full_key(spec, resolved: ResolvedPriors) -> tuple:
+    """The resolved prior settings that a compiled model of ``spec`` bakes in.
+
+    The ceiling's centre moves with the latest value when it is stated as a
+    multiple; it counts only for the curves that have a ceiling.
+    """
+    skip = {"stated", "reference_period"}
+    if spec.model not in ("logistic", "gompertz"):
+        skip |= {"log_k_mu", "log_k_sd"}
+    return tuple((f.name, getattr(resolved, f.name)) for f in dataclasses.fields(resolved)
+                 if f.name not in skip)
