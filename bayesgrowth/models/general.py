@@ -342,7 +342,9 @@ def build_pymc_model(
 
 
 def _integrated_curve_likelihood(spec, priors, t, dt, y, w, axis) -> None:
-    """Exponential or damped curve, normal noise: scales sampled, linear coefficients integrated.
+    """Exponential or damped curve, normal noise: log a, b (and c) integrated out.
+
+    The scales, the half-life and the seasonal factors are sampled.
 
     See :mod:`bayesgrowth.models.linear`.
     """
@@ -357,9 +359,12 @@ def _integrated_curve_likelihood(spec, priors, t, dt, y, w, axis) -> None:
     phi = pm.Beta("phi", alpha=priors.phi_alpha, beta=priors.phi_beta) if (
         spec.errors == "ar1") else None
     lag = pm.Data("lag", np.concatenate([[1.0], np.diff(t)]))
-    rows, m = linear.season_rows(spec, axis, t)
+    if spec.seasonal:
+        m, s_idx = season_index(axis, t)
+        season = pm.ZeroSumNormal("season", sigma=priors.seasonal_scale, shape=m)
+        y = y - season[pm.Data("season_index", s_idx.astype("int64"))]
     pm.Potential("loglik", linear.marginal_loglik(
-        spec, priors, y, w, dt, lag, sigma, phi, half_life, rows, m))
+        spec, priors, y, w, dt, lag, sigma, phi, half_life))
 
 
 def complete_draws(spec: ModelSpec, priors, draws: dict, t, log_y, axis,

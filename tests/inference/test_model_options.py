@@ -114,8 +114,9 @@ def test_persistent_errors_move_gdp_coverage_toward_nominal():
     # US real GDP (statsmodels macrodata, source FRED), last 60 quarters; rolling origins every 4
     # quarters from 20 training quarters, forecasts 1-4 quarters ahead: 40 outcomes per method.
     # Measured (seed 3): independent errors 42.5% inside the nominal 80% band, AR(1) errors
-    # 62.5%, local trend (random-walk growth) 77.5%; no divergences. Tests (margins our choice, well inside what was
-    # measured, and wider than the 6-point binomial sd of 40 outcomes): AR(1) errors beat
+    # 62.5%, local trend (random-walk growth) 77.5%; no divergences. Tests (margins our choice,
+    # well inside what was measured, and wider than the 6-point binomial sd of 40 outcomes):
+    # AR(1) errors beat
     # independent errors by at least 10 points, the local trend by at least 20; independent
     # errors stay below 60% (bands too narrow, as the issue measured: 44%); no divergent
     # transitions at any origin.
