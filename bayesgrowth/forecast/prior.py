@@ -27,7 +27,7 @@ import pandas as pd
 from bayesgrowth.config import DEFAULT_LEVELS, check_levels
 from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.forecast.forecast import band_columns
-from bayesgrowth.models import exponential, general
+from bayesgrowth.models import exponential, general, linear
 from bayesgrowth.models.spec import ModelSpec
 from bayesgrowth.priors import Priors, ResolvedPriors
 
@@ -163,7 +163,8 @@ def _pymc_prior(spec: ModelSpec, priors: ResolvedPriors, series: GrowthSeries, d
         logger.setLevel(level)
     prior = idata.prior
     out = {}
-    for name in [k for k in spec.parameters() + spec.vector_parameters() if k in prior]:
+    names = spec.parameters() + spec.vector_parameters() + linear.STAND_INS
+    for name in [k for k in names if k in prior]:
         v = np.asarray(prior[name].values, dtype=float)
         v = v.reshape(-1, *v.shape[2:]) if v.ndim >= 2 else v
         if v.shape[0] != draws:  # a fixed value kept as a scalar

@@ -52,7 +52,7 @@ import numpy as np
 
 from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.inference.fit import Fit
-from bayesgrowth.models import exponential
+from bayesgrowth.models import exponential, linear
 from bayesgrowth.priors import Priors, ResolvedPriors
 
 __all__ = ["NutsRefitter", "SPEC_OPTIONS", "TARGET_ACCEPT", "supports"]
@@ -292,7 +292,7 @@ class NutsRefitter:
         weight = np.zeros(self.series.n)
         weight[positions] = 1.0
         compiled, _ = self._compiled_for(resolved, weight)
-        names = spec.parameters() + spec.vector_parameters()
+        names = spec.parameters() + spec.vector_parameters() + linear.STAND_INS
         posterior, diagnostics, settings = sample_compiled(
             compiled.with_data(weight=weight), draws=self.draws, tune=self.tune,
             chains=self.chains, cores=self.cores, seed=seed, target_accept=self.target_accept,

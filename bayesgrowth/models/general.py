@@ -342,19 +342,22 @@ def build_pymc_model(
 
 
 def _integrated_curve_likelihood(spec, priors, t, dt, y, w, axis) -> None:
-    """Exponential or damped curve, normal noise: log a, b (and c) integrated out.
+    """A curve with normal noise: log a, b (and c) integrated out.
 
-    The scales, the half-life and the seasonal factors are sampled.
-
-    See :mod:`bayesgrowth.models.linear`.
+    The scales, the half-life, the seasonal factors and, for the logistic and
+    Gompertz curves, ``log_ceiling_ratio = log K - log a`` are sampled (see
+    :mod:`bayesgrowth.models.linear`).
     """
     import pymc as pm
     import pytensor.tensor as pt
 
-    half_life = None
-    if spec.model == "damped":
+    params = {}
+    if spec.model in ("logistic", "gompertz"):
+        mean, sd = linear.ceiling_ratio_prior(priors)
+        params["log_ceiling_ratio"] = pm.Normal("log_ceiling_ratio", mu=mean, sigma=sd)
+    if spec.model in ("damped", "logistic", "gompertz"):
         log_h = pm.Normal("log_half_life", mu=priors.log_h_mu, sigma=priors.log_h_sd)
-        half_life = pm.Deterministic("half_life", pt.exp(log_h))
+        params["half_life"] = pm.Deterministic("half_life", pt.exp(log_h))
     sigma = pm.HalfNormal("sigma", sigma=priors.sigma_scale)
     phi = pm.Beta("phi", alpha=priors.phi_alpha, beta=priors.phi_beta) if (
         spec.errors == "ar1") else None
@@ -363,24 +366,29 @@ def _integrated_curve_likelihood(spec, priors, t, dt, y, w, axis) -> None:
         m, s_idx = season_index(axis, t)
         season = pm.ZeroSumNormal("season", sigma=priors.seasonal_scale, shape=m)
         y = y - season[pm.Data("season_index", s_idx.astype("int64"))]
-    pm.Potential("loglik", linear.marginal_loglik(
-        spec, priors, y, w, dt, lag, sigma, phi, half_life))
+    offset, x, mu0, var0 = linear.curve_pieces(spec, priors, dt, params, xp=pt)
+    pm.Potential("loglik", linear.marginal_loglik(spec, y - offset, w, x, mu0, var0, lag,
+                                                  sigma, phi))
 
 
 def complete_draws(spec: ModelSpec, priors, draws: dict, t, log_y, axis,
                    rng: np.random.Generator) -> dict:
     """Flat draws plus the linear coefficients a PyMC model of ``spec`` integrated out.
 
+    ``draws`` holds what the model sampled, including its stand-ins (such as
+    ``log_ceiling_ratio``), which are replaced by the parameters they stand for.
     With no observations (``t`` empty) the coefficients come from their prior.
     Specs that sample every parameter get their draws back unchanged.
     """
     if not linear.integrates_linear(spec):
         return draws
     if np.size(t) == 0:
-        return linear.prior_coefficients(spec, priors, draws, axis, rng)
-    if spec.model == "local-trend":
-        return local_trend.draw_linear(spec, priors, draws, t, log_y, axis, rng)
-    return linear.draw_curve_coefficients(spec, priors, draws, t, log_y, axis, rng)
+        done = linear.prior_coefficients(spec, priors, draws, axis, rng)
+    elif spec.model == "local-trend":
+        done = local_trend.draw_linear(spec, priors, draws, t, log_y, axis, rng)
+    else:
+        done = linear.draw_curve_coefficients(spec, priors, draws, t, log_y, axis, rng)
+    return {k: v for k, v in done.items() if k not in linear.STAND_INS}
 
 
 def _local_trend_likelihood(spec, priors, t, y, w, axis) -> None:

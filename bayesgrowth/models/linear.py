@@ -44,6 +44,7 @@ from bayesgrowth.models.spec import ModelSpec, season_index
 
 __all__ = [
     "COEFFICIENTS",
+    "STAND_INS",
     "curve_design",
     "draw_curve_coefficients",
     "integrates_linear",
@@ -57,19 +58,20 @@ __all__ = [
 
 #: The linear coefficients, in design order (seasonal coordinates come last).
 COEFFICIENTS = ("log_a", "log1p_g", "long_run")
+#: Variables sampled in place of a model parameter; dropped once the draws are complete.
+STAND_INS = ("log_ceiling_ratio",)
 
 
 def integrates_linear(spec: ModelSpec) -> bool:
     """Whether the PyMC model of ``spec`` integrates its linear coefficients out.
 
-    The local trend always does; the exponential and damped curves do with normal
-    noise, except the plain exponential model (independent errors, no seasons),
-    whose level-at-the-centre parameterisation already samples well.
+    The local trend always does; the curves do with normal noise, except the
+    plain exponential model (independent errors, no seasons), whose
+    level-at-the-centre parameterisation already samples well.
     """
     if spec.model == "local-trend":
         return True
-    return (spec.model in ("exponential", "damped") and spec.noise == "normal"
-            and not spec.is_plain_exponential)
+    return spec.noise == "normal" and not spec.is_plain_exponential
 
 
 def season_basis(m: int) -> np.ndarray:
@@ -137,10 +139,15 @@ def prior_coefficients(spec: ModelSpec, priors, draws: dict, axis,
     The local trend integrates its seasonal factors out too; the curves sample
     theirs, so their prior draws are already in ``draws``.
     """
+    n = np.asarray(draws["sigma"]).size
+    if spec.model in ("logistic", "gompertz"):
+        kappa = np.asarray(draws["log_ceiling_ratio"], dtype=float)
+        mean, var = level_given_ratio(priors, kappa)
+        log_a = mean + math.sqrt(var) * rng.standard_normal(n)
+        return {**draws, "log_a": log_a, "log_k": log_a + kappa}
     seasons = spec.model == "local-trend"
     m = season_count(spec, axis) if seasons else 0
     mu0, var0 = linear_prior(spec, priors, m, seasons=seasons)
-    n = np.asarray(draws["sigma"]).size
     beta = mu0 + np.sqrt(var0) * rng.standard_normal((n, mu0.size))
     return {**draws, **split_coefficients(spec, beta, m, priors.fixed_initial, priors.log_a_mu)}
 
@@ -232,30 +239,85 @@ def _small_solve(m, g, xp):
     return xp.log(det), quad / det
 
 
-def marginal_loglik(spec: ModelSpec, priors, y, w, dt, lag, sigma, phi, half_life):
-    """The curve's log likelihood with its linear coefficients integrated out (PyTensor).
+def ceiling_ratio_prior(priors) -> tuple[float, float]:
+    """Prior mean and sd of ``kappa = log K - log a`` for the logistic and Gompertz curves.
 
-    ``y`` is the log values less any seasonal factors (those are sampled). ``w``
+    With ``log a ~ N(mu_a, s_a^2)`` and ``log K ~ N(mu_k, s_k^2)`` independent,
+    ``kappa ~ N(mu_k - mu_a, s_a^2 + s_k^2)`` and, given ``kappa``, ``log a`` is
+    normal (see :func:`level_given_ratio`); the change of variables has Jacobian 1.
+    """
+    return (priors.log_k_mu - priors.log_a_mu,
+            math.sqrt(priors.log_a_sd**2 + priors.log_k_sd**2))
+
+
+def level_given_ratio(priors, kappa):
+    """Mean and variance of the prior of ``log a`` given ``kappa`` (product of two normals)."""
+    if priors.fixed_initial:
+        return priors.log_a_mu + 0.0 * kappa, 0.0
+    pa, pk = 1.0 / priors.log_a_sd**2, 1.0 / priors.log_k_sd**2
+    var = 1.0 / (pa + pk)
+    return var * (pa * priors.log_a_mu + pk * (priors.log_k_mu - kappa)), var
+
+
+def curve_pieces(spec: ModelSpec, priors, dt, params: dict, xp=np):
+    """Offset, design, prior means and variances of a curve's linear coefficients.
+
+    The log mean is ``offset + X beta``. For the exponential and damped curves
+    ``offset = 0`` and ``beta = (log a, b[, c])``; for the logistic and Gompertz
+    curves ``beta = (log a)`` and the offset is the curve's shape given
+    ``kappa = log K - log a`` and the half-life: ``kappa - log1p(expm1(kappa)
+    exp(-lambda dt))`` and ``kappa (1 - exp(-lambda dt))``. With NumPy, ``params``
+    hold draws ``(S,)`` and the results carry a leading draw axis.
+
+    Returns
+    -------
+    offset, x, mu0, var0
+        ``var0`` is a NumPy vector; ``mu0`` is one too except for the ceiling
+        curves, where it depends on ``kappa``.
+    """
+    if spec.model in ("exponential", "damped"):
+        mu0, var0 = linear_prior(spec, priors, seasons=False)
+        x = curve_design(spec, dt, params.get("half_life"), None, xp=xp)
+        return 0.0, x, mu0, var0
+    kappa = params["log_ceiling_ratio"]
+    lam = math.log(2.0) / params["half_life"]
+    if xp is np:
+        kappa, lam = np.asarray(kappa, dtype=float)[:, None], np.asarray(lam)[:, None]
+        dt = np.asarray(dt, dtype=float)[None, :]
+    decay = xp.exp(-lam * dt)
+    if spec.model == "logistic":
+        offset = kappa - xp.log1p(xp.expm1(kappa) * decay)
+    else:
+        offset = kappa * (1 - decay)
+    mean, var = level_given_ratio(priors, kappa[..., 0] if xp is np else kappa)
+    ones = xp.ones_like(offset)[..., None]
+    mu0 = mean[:, None] if xp is np else xp.stack([mean])
+    return offset, ones, mu0, np.array([var])
+
+
+def marginal_loglik(spec: ModelSpec, y, w, x, mu0, var0, lag, sigma, phi):
+    """A curve's log likelihood with its linear coefficients integrated out (PyTensor).
+
+    ``y`` is the log values less the offset and any seasonal factors (those are
+    sampled), ``x``, ``mu0`` and ``var0`` come from :func:`curve_pieces`. ``w``
     weights rows 0/1 (switched-off rows must follow the rows that are on, as the
     AR(1) innovations chain each row to the one before).
     """
     import pytensor.tensor as pt
 
-    mu0, var0 = linear_prior(spec, priors, seasons=False)
-    x = curve_design(spec, dt, half_life, None, xp=pt)
-    free = np.flatnonzero(var0 > 0)
+    free = np.flatnonzero(np.asarray(var0) > 0)
     r = y - pt.dot(x, mu0)
     z, log_scale = _whiten(spec, r, sigma, phi, lag, pt)
     z = w * z
+    out = -0.5 * math.log(2 * math.pi) * w.sum() - (w * log_scale).sum() - 0.5 * pt.dot(z, z)
+    if free.size == 0:
+        return out
     cols = [w * _whiten(spec, x[:, i], sigma, phi, lag, pt)[0] for i in free]
     g = [pt.dot(c, z) for c in cols]
     m = [[pt.dot(ci, cj) + (1.0 / var0[free[i]] if i == j else 0.0)
           for j, cj in enumerate(cols)] for i, ci in enumerate(cols)]
     logdet, quad = _small_solve(m, g, pt)
-    return (
-        -0.5 * math.log(2 * math.pi) * w.sum() - (w * log_scale).sum() - 0.5 * pt.dot(z, z)
-        + 0.5 * quad - 0.5 * logdet - 0.5 * np.log(var0[free]).sum()
-    )
+    return out + 0.5 * quad - 0.5 * logdet - 0.5 * np.log(var0[free]).sum()
 
 
 def draw_curve_coefficients(spec: ModelSpec, priors, draws: dict, t, log_y, axis,
@@ -263,28 +325,34 @@ def draw_curve_coefficients(spec: ModelSpec, priors, draws: dict, t, log_y, axis
     """``draws`` plus each draw's linear coefficients from their normal conditional.
 
     Seasonal factors, when the model has them, are among ``draws`` (they are
-    sampled) and are taken off the log values first.
+    sampled) and are taken off the log values first. The ceiling curves also get
+    ``log_k = log a + kappa``.
     """
     t = np.asarray(t, dtype=float)
-    mu0, var0 = linear_prior(spec, priors, seasons=False)
-    free = np.flatnonzero(var0 > 0)
     sigma = np.asarray(draws["sigma"], dtype=float)
+    n_draws = sigma.size
     phi = np.asarray(draws["phi"], dtype=float) if spec.errors == "ar1" else None
-    half_life = draws.get("half_life")
-    lag = np.broadcast_to(np.concatenate([[1.0], np.diff(t)]), (sigma.size, t.size))
-    x = np.broadcast_to(curve_design(spec, t - priors.t_ref, half_life),
-                        (sigma.size, t.size, mu0.size))
-    y = np.asarray(log_y, dtype=float)[None, :]
+    offset, x, mu0, var0 = curve_pieces(spec, priors, t - priors.t_ref, draws)
+    p = var0.size
+    x = np.broadcast_to(x, (n_draws, t.size, p))
+    mu0 = np.broadcast_to(mu0, (n_draws, p))
+    y = np.asarray(log_y, dtype=float)[None, :] - offset
     if spec.seasonal:
         y = y - np.asarray(draws["season"])[:, season_index(axis, t)[1]]
-    r = y - x @ mu0
-    z, _ = _whiten(spec, r, sigma, phi, lag, np)
-    wm, _ = _whiten(spec, x[..., free], sigma, phi, lag, np, matrix=True)
-    g = (np.swapaxes(wm, -1, -2) @ z[..., None])[..., 0]
-    chol = np.linalg.cholesky(np.diag(1.0 / var0[free]) + np.swapaxes(wm, -1, -2) @ wm)
-    mean = np.linalg.solve(np.swapaxes(chol, -1, -2), np.linalg.solve(chol, g[..., None]))
-    eps = rng.standard_normal((sigma.size, free.size, 1))
-    delta = (mean + np.linalg.solve(np.swapaxes(chol, -1, -2), eps))[..., 0]
-    beta = np.broadcast_to(mu0, (sigma.size, mu0.size)).copy()
-    beta[:, free] += delta
+    beta = mu0.copy()
+    free = np.flatnonzero(var0 > 0)
+    if free.size:
+        lag = np.broadcast_to(np.concatenate([[1.0], np.diff(t)]), (n_draws, t.size))
+        r = y - (x @ mu0[..., None])[..., 0]
+        z, _ = _whiten(spec, r, sigma, phi, lag, np)
+        wm, _ = _whiten(spec, x[..., free], sigma, phi, lag, np, matrix=True)
+        g = (np.swapaxes(wm, -1, -2) @ z[..., None])[..., 0]
+        chol = np.linalg.cholesky(np.diag(1.0 / var0[free]) + np.swapaxes(wm, -1, -2) @ wm)
+        mean = np.linalg.solve(np.swapaxes(chol, -1, -2), np.linalg.solve(chol, g[..., None]))
+        eps = rng.standard_normal((n_draws, free.size, 1))
+        beta[:, free] += (mean + np.linalg.solve(np.swapaxes(chol, -1, -2), eps))[..., 0]
+    if spec.model in ("logistic", "gompertz"):
+        log_a = np.full(n_draws, priors.log_a_mu) if priors.fixed_initial else beta[:, 0]
+        kappa = np.asarray(draws["log_ceiling_ratio"], dtype=float)
+        return {**draws, "log_a": log_a, "log_k": log_a + kappa}
     return {**draws, **split_coefficients(spec, beta, 0, priors.fixed_initial, priors.log_a_mu)}

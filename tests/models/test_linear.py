@@ -157,3 +157,42 @@ def test_switched_off_rows_drop_out_exactly(spec):
     on_full = general.build_pymc_model(spec, pr, full.t, full.log_values, weight, axis=full.axis)
     alone = general.build_pymc_model(spec, pr, train.t, train.log_values, axis=train.axis)
     assert _potential(on_full, values) == pytest.approx(_potential(alone, values), rel=1e-10)
+
+
+@pytest.mark.parametrize("spec", [ModelSpec(model="logistic", errors="ar1"),
+                                  ModelSpec(model="gompertz")])
+def test_ceiling_curves_integrate_the_level_exactly(spec):
+    # The logistic and Gompertz curves sample kappa = log K - log a and integrate log a out.
+    # Reference: scipy.integrate.quad of the original model, log a ~ N(mu_a, s_a) and log K ~
+    # N(mu_k, s_k) independent, over log a with log K = log a + kappa (Jacobian 1):
+    #   p(kappa) p(y | kappa, ...) = int p(y | log a, log a + kappa, ...) p(log a) p(log K) dlog a.
+    from scipy import integrate
+
+    rng = np.random.default_rng(9)
+    n = 12
+    t = np.arange(n)
+    y = np.exp(np.log(100 * 8 / (1 + 7 * np.exp(-0.3 * t))) + 0.03 * rng.standard_normal(n))
+    s = _series(y)
+    pr = Priors().resolve(s)
+    kappa, half_life, sigma, phi = 2.2, 3.0, 0.03, 0.5
+    model = general.build_pymc_model(spec, pr, s.t, s.log_values, axis=s.axis)
+    values = {"log_ceiling_ratio": kappa, "log_half_life": math.log(half_life),
+              "sigma_log__": math.log(sigma)}
+    if spec.errors == "ar1":
+        values["phi_logodds__"] = math.log(phi / (1 - phi))
+    mean_k, sd_k = linear.ceiling_ratio_prior(pr)
+    ours = _potential(model, values) + stats.norm(mean_k, sd_k).logpdf(kappa)
+
+    def integrand(log_a):
+        d = {"log_a": np.array([log_a]), "log_k": np.array([log_a + kappa]),
+             "half_life": np.array([half_life]), "sigma": np.array([sigma]),
+             "phi": np.array([phi])}
+        ll = general.log_likelihood(spec, d, s.t, s.values, pr.t_ref).sum() + s.log_values.sum()
+        prior = (stats.norm(pr.log_a_mu, pr.log_a_sd).logpdf(log_a)
+                 + stats.norm(pr.log_k_mu, pr.log_k_sd).logpdf(log_a + kappa))
+        return math.exp(ll + prior - ours)  # scaled by the expected answer: close to 1
+
+    centre = pr.log_a_mu
+    ref, _ = integrate.quad(integrand, centre - 1.0, centre + 1.0, points=[centre],
+                            epsabs=1e-12, epsrel=1e-10, limit=200)
+    assert math.log(ref) == pytest.approx(0.0, abs=1e-7)
