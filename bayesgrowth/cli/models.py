@@ -30,8 +30,9 @@ CURVE_CAUTION = (
 )
 
 
-#: Curves left out unless named: the local trend's NUTS fit took minutes where the others
-#: took seconds (measured on the demo series, 4 x 1000 draws).
+#: Curves left out unless named. The local trend's NUTS fit is the slowest; it took minutes
+#: until its coefficients were integrated out, and takes about 10-25 s on the demo now.
+#: Whether to include it by default is an open question (see docs/choosing-models.md).
 SLOW_BY_DEFAULT = ("local-trend",)
 
 

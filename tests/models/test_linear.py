@@ -125,7 +125,7 @@ def test_which_models_integrate_their_coefficients():
     assert linear.integrates_linear(ModelSpec(model="damped"))
     assert not linear.integrates_linear(ModelSpec())  # sampled at the centre instead
     assert not linear.integrates_linear(ModelSpec(errors="ar1", noise="student-t"))
-    assert not linear.integrates_linear(ModelSpec(model="logistic"))
+    assert linear.integrates_linear(ModelSpec(model="logistic", errors="ar1"))
 
 
 def _potential(model, values):
