@@ -12,6 +12,7 @@ from bayesgrowth.cli.common import (
     add_input,
     add_model_options,
     checked_model_options,
+    model_options_from_args,
     priors_from_args,
     read_input,
     say,
@@ -73,9 +74,10 @@ def add_parser(subparsers) -> argparse.ArgumentParser:
     p.add_argument("--out", type=Path, required=True, help="output folder")
     p.add_argument(
         "--methods",
-        default=DEFAULT_METHODS,
+        default=None,
         help=f"comma-separated methods from {', '.join(METHODS)} "
-        f"(write log-linear-anchored for 'log-linear, anchored') [{DEFAULT_METHODS}]",
+        f"(write log-linear-anchored for 'log-linear, anchored') [{DEFAULT_METHODS}; "
+        "nuts in place of exact when a model option needs more than the exact engine covers]",
     )
     p.add_argument("--stride", type=int, default=1, help="points between origins [1]")
     p.add_argument("--window", type=int, default=None, metavar="W",
@@ -113,14 +115,26 @@ def _check_settings(args, n: int) -> None:
     RollingOrigin(args.horizon, args.min_train, stride=args.stride, window=args.window)
 
 
+def _default_methods(args) -> tuple[str, ...]:
+    """The default methods, with ``nuts`` for ``exact`` when the model options need NUTS."""
+    from bayesgrowth.models.spec import ModelSpec
+
+    methods = _methods(DEFAULT_METHODS)
+    try:
+        plain = ModelSpec(**model_options_from_args(args)).is_plain_exponential
+    except ValueError:
+        return methods  # checked_model_options reports the bad option
+    return methods if plain else tuple("nuts" if m == "exact" else m for m in methods)
+
+
 def run(args) -> int:
     """Run the backtest subcommand; returns the exit code."""
-    methods = _methods(args.methods)
+    methods = _default_methods(args) if args.methods is None else _methods(args.methods)
     series = read_input(args)
     _check_settings(args, series.n)
     priors = priors_from_args(args)
     priors.resolve(series.head(args.min_train))  # a bad --reference-period fails here, early
-    spec_options = checked_model_options(args, methods)
+    spec_options = checked_model_options(args, methods, option="--methods")
     from bayesgrowth.backtest.runner import BACKTEST_CAUTION, backtest
 
     say(args, f"backtesting {', '.join(methods)} on {series.name} ({series.n} points) ...")

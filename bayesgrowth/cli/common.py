@@ -239,7 +239,7 @@ def model_options_from_args(args) -> dict:
     }
 
 
-def checked_model_options(args, engines) -> dict:
+def checked_model_options(args, engines, option: str = "--engine") -> dict:
     """The curve and error options, refused early where an engine in ``engines`` cannot fit them.
 
     Returns an empty dict for the plain exponential model (the default), else the options.
@@ -253,8 +253,8 @@ def checked_model_options(args, engines) -> dict:
         raise UsageError(f"model options: {exc}") from None
     if "exact" in engines and not spec.is_plain_exponential:
         raise UsageError(
-            f"the exact engine covers only the exponential model with independent normal "
-            f"errors, not {spec.label()}; use nuts"
+            f"{option}: the exact engine covers only the exponential model with independent "
+            f"normal errors, not {spec.label()}; choose nuts instead of exact"
         )
     return {} if spec.is_plain_exponential else options
 

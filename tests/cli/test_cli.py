@@ -190,3 +190,17 @@ def test_exact_engine_refuses_other_curves(tmp_path, command):
     assert len(proc.stderr.strip().splitlines()) == 1
     assert "exact engine covers only the exponential" in proc.stderr
     assert not out.exists()
+
+
+def test_backtest_defaults_to_nuts_when_a_model_option_needs_it(tmp_path, monkeypatch):
+    # With --errors ar1 and no --methods, the default methods put nuts in place of exact rather
+    # than refusing the run (the options are parsed, the run itself is not started here).
+    from bayesgrowth.cli import backtest as cli_backtest
+    from bayesgrowth.cli.main import build_parser
+
+    args = build_parser().parse_args(["backtest", str(demo_path()), "-H", "2", "--min-train",
+                                      "16", "--out", str(tmp_path / "o"), "--errors", "ar1"])
+    assert cli_backtest._default_methods(args) == ("nuts", "log-linear", "naive")
+    plain = build_parser().parse_args(["backtest", str(demo_path()), "-H", "2", "--min-train",
+                                       "16", "--out", str(tmp_path / "o")])
+    assert cli_backtest._default_methods(plain) == ("exact", "log-linear", "naive")
