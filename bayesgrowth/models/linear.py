@@ -43,7 +43,6 @@ import numpy as np
 from bayesgrowth.models.spec import ModelSpec, season_index
 
 __all__ = [
-    "COEFFICIENTS",
     "STAND_INS",
     "curve_design",
     "draw_curve_coefficients",
@@ -56,8 +55,6 @@ __all__ = [
     "split_coefficients",
 ]
 
-#: The linear coefficients, in design order (seasonal coordinates come last).
-COEFFICIENTS = ("log_a", "log1p_g", "long_run")
 #: Variables sampled in place of a model parameter; dropped once the draws are complete.
 STAND_INS = ("log_ceiling_ratio",)
 
@@ -152,36 +149,28 @@ def prior_coefficients(spec: ModelSpec, priors, draws: dict, axis,
     return {**draws, **split_coefficients(spec, beta, m, priors.fixed_initial, priors.log_a_mu)}
 
 
-def curve_design(spec: ModelSpec, dt, half_life=None, rows=None, xp=np):
-    """Design of the curve's linear coefficients at offsets ``dt``.
+def curve_design(spec: ModelSpec, dt, half_life=None, xp=np):
+    """Design of the exponential or damped curve's linear coefficients at offsets ``dt``.
 
     Columns ``1`` (log a), then ``dt`` (b) for the exponential curve, or ``f =
     expm1(-lambda dt) / expm1(-lambda)`` (b) and ``dt - f`` (c) for the damped
-    curve with ``lambda = ln 2 / half_life``, then the seasonal rows. With NumPy
-    and ``half_life`` draws ``(S,)`` the result is ``(S, n, p)``.
+    curve with ``lambda = ln 2 / half_life``. With NumPy and ``half_life`` draws
+    ``(S,)`` the damped design is ``(S, n, 3)``.
     """
     if xp is np:
         dt = np.asarray(dt, dtype=float)
         ones = np.ones_like(dt)
         if spec.model == "exponential":
-            cols = np.column_stack([ones, dt])
-        else:
-            lam = math.log(2.0) / np.asarray(half_life, dtype=float)[:, None]
-            f = np.expm1(-lam * dt) / np.expm1(-lam)
-            cols = np.stack([np.broadcast_to(ones, f.shape), f, dt - f], axis=-1)
-        if rows is None:
-            return cols
-        rows = np.broadcast_to(rows, (*cols.shape[:-1], rows.shape[-1]))
-        return np.concatenate([cols, rows], axis=-1)
+            return np.column_stack([ones, dt])
+        lam = math.log(2.0) / np.asarray(half_life, dtype=float)[:, None]
+        f = np.expm1(-lam * dt) / np.expm1(-lam)
+        return np.stack([np.broadcast_to(ones, f.shape), f, dt - f], axis=-1)
     ones = xp.ones_like(dt)
     if spec.model == "exponential":
-        cols = [ones, dt]
-    else:
-        lam = math.log(2.0) / half_life
-        f = xp.expm1(-lam * dt) / xp.expm1(-lam)
-        cols = [ones, f, dt - f]
-    x = xp.stack(cols, axis=1)
-    return x if rows is None else xp.concatenate([x, xp.as_tensor(rows)], axis=1)
+        return xp.stack([ones, dt], axis=1)
+    lam = math.log(2.0) / half_life
+    f = xp.expm1(-lam * dt) / xp.expm1(-lam)
+    return xp.stack([ones, f, dt - f], axis=1)
 
 
 def _whiten(spec: ModelSpec, v, sigma, phi, lag, xp, matrix: bool = False):
@@ -277,7 +266,7 @@ def curve_pieces(spec: ModelSpec, priors, dt, params: dict, xp=np):
     """
     if spec.model in ("exponential", "damped"):
         mu0, var0 = linear_prior(spec, priors, seasons=False)
-        x = curve_design(spec, dt, params.get("half_life"), None, xp=xp)
+        x = curve_design(spec, dt, params.get("half_life"), xp=xp)
         return 0.0, x, mu0, var0
     kappa = params["log_ceiling_ratio"]
     lam = math.log(2.0) / params["half_life"]

@@ -24,10 +24,11 @@ N(mu0, diag(v0))``, the log values are normal with mean ``X mu0`` and covariance
 ``K + X diag(v0) X'``. NUTS then samples only the scales (and the persistences).
 Sampled jointly with the scales, ``log a`` made a funnel: without level shocks
 the first observation is the level plus noise, so ``log a`` tightens as the
-noise scale shrinks (16 divergent transitions on the demo series, 52 s; none
-and 27 s once integrated out). See :mod:`bayesgrowth.models.linear`.
-Each draw's coefficients are drawn afterwards from their exact normal
-conditional (:func:`draw_linear`), so the posterior holds every parameter.
+noise scale shrinks (16 divergent transitions on the demo series, 52 s; none,
+and 10-27 s depending on the machine's load, once integrated out). See
+:mod:`bayesgrowth.models.linear`. Each draw's coefficients are drawn
+afterwards from their exact normal conditional (:func:`draw_linear`), so the
+posterior holds every parameter.
 
 Pointwise log likelihoods are the one-step conditional densities
 ``p(y_i | y_1..y_{i-1})`` (from the Cholesky factor of the covariance), and
@@ -273,8 +274,8 @@ def draw_linear(spec, priors, draws: dict, t, log_y, axis, rng: np.random.Genera
     Each draw of the scales gets one draw of the linear coefficients from their
     normal conditional given the scales and the observed log values: with ``S =
     K + X V X'``, mean ``mu0 + V X' S^-1 (y - X mu0)`` and covariance ``V - V X'
-    S^-1 X V`` (a fixed coefficient, variance 0, keeps its value). With no
-    observations (``t`` empty) the draws come from the prior.
+    S^-1 X V`` (a fixed coefficient, variance 0, keeps its value). Prior draws
+    (no observations) come from :func:`bayesgrowth.models.linear.prior_coefficients`.
 
     Parameters
     ----------
@@ -296,8 +297,6 @@ def draw_linear(spec, priors, draws: dict, t, log_y, axis, rng: np.random.Genera
     """
     t = np.asarray(t, dtype=int)
     n_draws = np.asarray(draws["sigma"]).size
-    if t.size == 0:
-        return linear.prior_coefficients(spec, priors, draws, axis, rng)
     m = linear.season_count(spec, axis)
     mu0, var0 = linear.linear_prior(spec, priors, m)
     p = mu0.size
