@@ -8,6 +8,10 @@ Layout of the output folder::
     .bayesgrowth-batch/parts/<chunk>.*.csv        results of each finished chunk
     .bayesgrowth-batch/parts/<chunk>.done.json    names and input fingerprints of the chunk
 
+The merged results are written with their text cells neutralised against
+spreadsheet formulas (:mod:`bayesgrowth.data.export`); the chunk files keep the
+names as they are, since merging matches them, and live in the hidden state folder.
+
 Every file is written to a temporary name in its own folder and renamed into
 place, so no file is ever half-written. A chunk counts as finished only once its
 ``done.json`` exists, and that is renamed into place last. A later run into the
@@ -29,6 +33,7 @@ from pathlib import Path
 import pandas as pd
 
 from bayesgrowth.batch.work import SUMMARY_COLUMNS, SeriesOutcome
+from bayesgrowth.data.export import write_csv
 from bayesgrowth.data.series import InputError
 
 __all__ = ["RunStore", "OUTPUTS", "STATE_DIR", "atomic_write"]
@@ -58,7 +63,13 @@ def atomic_write(path: Path, write: Callable[[Path], None]) -> None:
 
 
 def _write_csv(frame: pd.DataFrame, path: Path, float_format: str | None = None) -> None:
+    """A chunk's table as computed (names unchanged, so that merging can match them)."""
     atomic_write(path, lambda tmp: frame.to_csv(tmp, index=False, float_format=float_format))
+
+
+def _write_result(frame: pd.DataFrame, path: Path) -> None:
+    """A merged result for people: text cells neutralised against spreadsheet formulas."""
+    atomic_write(path, lambda tmp: write_csv(frame, tmp, FLOAT_FORMAT))
 
 
 def _first_difference(old: dict, new: dict) -> str:
@@ -229,5 +240,5 @@ class RunStore:
                      .drop(columns="_rank").reset_index(drop=True))
             out[kind] = frame
         for kind, frame in out.items():
-            _write_csv(frame, self.out / f"{kind}.csv", FLOAT_FORMAT)
+            _write_result(frame, self.out / f"{kind}.csv")
         return out["forecast"], out["summary"], out["failures"]

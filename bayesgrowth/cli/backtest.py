@@ -18,6 +18,7 @@ from bayesgrowth.cli.common import (
     say,
 )
 from bayesgrowth.cli.output import staged_output
+from bayesgrowth.data.export import write_csv
 
 __all__ = ["OUTPUT_FILES", "add_parser"]
 
@@ -158,11 +159,9 @@ def run(args) -> int:
         if issubclass(w.category, UserWarning) and "BLAS" not in str(w.message):
             print(f"WARNING: {w.message}", file=sys.stderr)
     with staged_output(args.out, OUTPUT_FILES, [args.file]) as stage:
-        result.forecasts.to_csv(stage / "backtest_forecasts.csv", index=False,
-                                float_format="%.6g")
-        result.scores.to_csv(stage / "backtest_scores.csv", index=False, float_format="%.6g")
-        result.diagnostics.to_csv(stage / "backtest_diagnostics.csv", index=False,
-                                  float_format="%.6g")
+        write_csv(result.forecasts, stage / "backtest_forecasts.csv")
+        write_csv(result.scores, stage / "backtest_scores.csv")
+        write_csv(result.diagnostics, stage / "backtest_diagnostics.csv")
         _save_figures(result, stage)
     print(f"{series.name}: {result.settings['n_origins']} origins, horizon {args.horizon}")
     for line in result.verdict_lines():

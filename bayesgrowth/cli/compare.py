@@ -12,6 +12,7 @@ from bayesgrowth.cli.common import (
     read_input,
 )
 from bayesgrowth.cli.output import staged_output
+from bayesgrowth.data.export import write_csv
 
 __all__ = ["add_parser"]
 
@@ -56,7 +57,7 @@ def run(args) -> int:
             comp = compare_to_forecast(fc, max_drop=args.max_drop)
         except LeastSquaresError as exc:
             raise UsageError(f"{args.file}: least-squares fit failed: {exc}") from None
-        comp.table.to_csv(stage / "comparison.csv", index=False, float_format="%.6g")
+        write_csv(comp.table, stage / "comparison.csv")
         _save_plot(comp, stage / "comparison.png")
     sp = comp.spread
     top = max(fc.levels)

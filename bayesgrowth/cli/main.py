@@ -26,6 +26,7 @@ from bayesgrowth.cli.common import (
     say,
 )
 from bayesgrowth.cli.output import staged_output
+from bayesgrowth.data.export import write_csv
 from bayesgrowth.data.series import GrowthSeries, InputError
 
 __all__ = ["main", "build_parser"]
@@ -135,7 +136,7 @@ def _run_forecast(args, series: GrowthSeries | None = None) -> int:
         fit = fit_from_args(args, series)
         fc = forecast(fit, args.horizon, levels=args.levels)
         summary = fc.summary(args.target, args.target_probability)
-        fc.table.to_csv(stage / "forecast.csv", index=False, float_format="%.6g")
+        write_csv(fc.table, stage / "forecast.csv")
         (stage / "summary.json").write_text(json.dumps(summary, indent=2) + "\n")
         _save_fan(fc, stage / "fan_chart.png")
         fit.to_netcdf(stage / "posterior.nc", fc.predictive_groups())

@@ -16,6 +16,7 @@ from bayesgrowth.cli.common import (
     say,
 )
 from bayesgrowth.cli.output import staged_output
+from bayesgrowth.data.export import write_csv
 
 __all__ = ["add_parser", "run"]
 
@@ -162,9 +163,8 @@ def run(args) -> int:
                           on_fit=progress, **spec_options, **settings)
         ma = model_average(fits, args.horizon, levels=args.levels, seed=args.seed)
         table = ma.comparison.table
-        table.to_csv(stage / "model_comparison.csv", index=False, float_format="%.6g")
-        ma.averaged.table.to_csv(stage / "averaged_forecast.csv", index=False,
-                                 float_format="%.6g")
+        write_csv(table, stage / "model_comparison.csv")
+        write_csv(ma.averaged.table, stage / "averaged_forecast.csv")
         _save_plot(ma, stage / "models.png", level=_plot_level(args.levels))
     comp, avg = ma.comparison, ma.averaged
     print(f"{series.name}: {len(names)} model(s) compared by PSIS-LOO "

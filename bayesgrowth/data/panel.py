@@ -42,6 +42,37 @@ def _read_csv(path: Path) -> pd.DataFrame:
     return frame
 
 
+def _names_as_written(path: Path, frame: pd.DataFrame, series_col: str) -> list[str]:
+    """Series names with the leading spaces of unquoted cells, which the reader skips.
+
+    The file is read again without skipping spaces; where that reading parses
+    differently (a quoted cell after a space), the names as first read are kept.
+    """
+    names = frame[series_col].astype(str).tolist()
+    try:
+        raw = pd.read_csv(path, dtype=str, keep_default_na=False)
+    except (ValueError, OSError):
+        return names
+    if raw.shape != frame.shape:
+        return names
+    cells = raw.iloc[:, list(frame.columns).index(series_col)].astype(str).tolist()
+    return [c if c != n and c.lstrip(" ") == n else n for c, n in zip(cells, names, strict=True)]
+
+
+def _check_spellings(raw: list[str], source: str, series_col: str, offset: int) -> None:
+    """Refuse names that differ only in surrounding blanks: one series or two is unclear."""
+    first: dict[str, tuple[str, int]] = {}
+    for i, name in enumerate(raw):
+        key = name.strip()
+        seen = first.setdefault(key, (name, i))
+        if seen[0] != name:
+            raise InputError(
+                f"{source}, row {i + offset}, column {series_col!r}: series name {name!r} "
+                f"differs from {seen[0]!r} (row {seen[1] + offset}) only in spaces or tabs "
+                "around it; write it the same way in every row, or give it its own name"
+            )
+
+
 def read_panel(
     data: str | Path | pd.DataFrame,
     series_col: str = "series",
@@ -70,7 +101,8 @@ def read_panel(
     ------
     InputError
         If the file cannot be read, a column is missing, a row has no series
-        name, or the table has no rows. Rows are counted as a spreadsheet shows
+        name, two names differ only in surrounding spaces or tabs, or the table
+        has no rows. Rows are counted as a spreadsheet shows
         them (the header is row 1); DataFrame rows from 0.
 
     Examples
@@ -83,6 +115,7 @@ def read_panel(
     >>> list(good), bad[0][0]
     (['a'], 'b')
     """
+    path = None
     if isinstance(data, pd.DataFrame):
         frame, source, offset = data, "DataFrame", 0
     else:
@@ -100,7 +133,9 @@ def read_panel(
             )
     if len(frame) == 0:
         raise InputError(f"{source}: no rows below the header; add one row per series and period")
-    names = frame[series_col].astype(str).str.strip()
+    raw_names = (frame[series_col].astype(str).tolist() if path is None
+                 else _names_as_written(path, frame, series_col))
+    names = pd.Series(raw_names, dtype=object).str.strip()
     blank = (names == "") | names.str.lower().isin(("nan", "none", "null"))
     if blank.any():
         row = int(blank.to_numpy().nonzero()[0][0]) + offset
@@ -108,6 +143,7 @@ def read_panel(
             f"{source}, row {row}, column {series_col!r}: series name is missing; "
             "fill it in or delete the row"
         )
+    _check_spellings(raw_names, source, series_col, offset)
     periods = frame[period_col].astype(str).tolist()
     values = frame[value_col].tolist()
     groups: dict[str, list[int]] = {}
