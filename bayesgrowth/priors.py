@@ -50,13 +50,19 @@ persistence of deviations (AR(1) errors)
     deviations that almost never fade. Negative autocorrelation of levels is rare
     in business series and is excluded.
 local trend
-    Drift of the growth rate: a Gamma(2, 2/s) prior on its per-period sd with mean
-    ``s`` = 1 point per period. The Gamma(2) shape avoids the boundary at zero, where
-    a half-normal prior gave divergent transitions when measured. No separate level
-    shocks by default (``level_shock_pct=0``): on short series they cannot be told
-    apart from the noise. When they are switched on they get the same Gamma(2) form.
-    For mean reversion, a Beta(4, 1) prior on the growth rate's persistence (mean
-    0.8: drifts fade slowly).
+    Level shocks and drift of the growth rate, each with a Gamma(2, 2/s) prior on
+    its per-period sd (mean ``s``). The Gamma(2) shape keeps the sd off the boundary
+    at zero, where a half-normal prior gave divergent transitions under NUTS. The
+    means are stated per year and scaled to the calendar, because independent shocks
+    add up in variance: level shocks of about 10% a year (``10 / sqrt(p)`` percent
+    per period with ``p`` periods a year: 5% a quarter, 2.9% a month) and a growth
+    rate that drifts by about 4 points of yearly growth a year (``4 / p^1.5``
+    points of per-period growth per period: 0.5 a quarter, 0.1 a month). Real
+    business series change level and growth rate by such amounts from year to year;
+    without level shocks, or with a drift fixed per period whatever the calendar, the
+    bands of real competition series were far too narrow (see docs/benchmark.md).
+    When growth fades (mean-reverting or adaptive drift), its half-life has the same
+    prior as the damped curve's.
 seasonal factors
     Normal factors on the log scale constrained to sum to zero, sd ``log 1.1``
     ("seasons differ from the average by about 10%").
@@ -297,31 +303,37 @@ class LocalTrendPrior:
 
     Parameters
     ----------
-    level_shock_pct : float
+    level_shock_pct : float, optional
         Prior mean of the sd of per-period shocks to the level, in percent; ``0``
-        (the default) means no level shocks.
-    growth_drift_pts : float
+        means no level shocks. Default: 10% a year scaled to the calendar
+        (``10 / sqrt(periods per year)``).
+    growth_drift_pts : float, optional
         Prior mean of the sd of the per-period change of the growth rate, in points.
-    persistence_mean, persistence_concentration : float
-        Beta prior of the growth rate's persistence when it reverts to a long-run
-        rate (``drift="mean-reverting"``); mean 0.8 by default.
+        Default: 4 points of yearly growth a year scaled to the calendar
+        (``4 / periods_per_year ** 1.5``).
     """
 
-    level_shock_pct: float = 0.0
-    growth_drift_pts: float = 1.0
-    persistence_mean: float = 0.8
-    persistence_concentration: float = 5.0
+    level_shock_pct: float | None = None
+    growth_drift_pts: float | None = None
 
     def __post_init__(self) -> None:
         _check(
-            math.isfinite(self.level_shock_pct) and self.level_shock_pct >= 0,
+            self.level_shock_pct is None
+            or (math.isfinite(self.level_shock_pct) and self.level_shock_pct >= 0),
             f"level shock must be >= 0 percent (0: no level shocks), got {self.level_shock_pct}",
         )
         _check(
-            math.isfinite(self.growth_drift_pts) and self.growth_drift_pts > 0,
+            self.growth_drift_pts is None
+            or (math.isfinite(self.growth_drift_pts) and self.growth_drift_pts > 0),
             f"growth drift must be > 0 points per period, got {self.growth_drift_pts}",
         )
-        _check_beta(self.persistence_mean, self.persistence_concentration, "growth persistence")
+
+    def scales(self, periods_per_year: float | None) -> tuple[float, float]:
+        """Per-period level-shock and growth-drift prior means as fractions."""
+        ppy = periods_per_year or 1.0
+        level = 10.0 / math.sqrt(ppy) if self.level_shock_pct is None else self.level_shock_pct
+        drift = 4.0 / ppy**1.5 if self.growth_drift_pts is None else self.growth_drift_pts
+        return math.log1p(level / 100), drift / 100
 
 
 @dataclass(frozen=True)
@@ -354,8 +366,8 @@ class ResolvedPriors:
     ``log_k ~ Normal(log_k_mu, log_k_sd)`` (ceiling), ``log half_life ~
     Normal(log_h_mu, log_h_sd)``, long-run log growth ``~ Normal(long_run_mu,
     long_run_sd)`` (fixed when the sd is 0), ``phi ~ Beta(phi_alpha, phi_beta)``,
-    level-shock and growth-drift half-normal scales, ``rho ~ Beta(rho_alpha,
-    rho_beta)``, the seasonal sd and ``nu ~ Gamma(nu_alpha, nu_beta)``.
+    level-shock and growth-drift Gamma(2) means, the seasonal sd and
+    ``nu ~ Gamma(nu_alpha, nu_beta)``.
     """
 
     log_a_mu: float
@@ -376,8 +388,6 @@ class ResolvedPriors:
     phi_beta: float = 1.0
     level_shock_scale: float = 0.0
     growth_drift_scale: float = 0.01
-    rho_alpha: float = 4.0
-    rho_beta: float = 1.0
     seasonal_scale: float = math.log1p(0.10)
     nu_alpha: float = NU_ALPHA
     nu_beta: float = NU_BETA
@@ -437,8 +447,7 @@ class ResolvedPriors:
                 f"half-life of growth: about {math.exp(self.log_h_mu):.3g} periods, within a "
                 f"factor of {math.exp(self.log_h_sd):.3g}"
             )
-        mean_reverting = spec.model == "local-trend" and spec.drift == "mean-reverting"
-        if spec.model == "damped" or mean_reverting:
+        if spec.model == "damped" or spec.growth_fades:
             lr = 100 * math.expm1(self.long_run_mu)
             lines.append(
                 f"long-run growth: fixed at {lr:.3g}% per period" if self.long_run_sd == 0
@@ -451,10 +460,10 @@ class ResolvedPriors:
                 f" per period, growth drifts about {100 * self.growth_drift_scale:.3g} points "
                 f"per period ({spec.drift.replace('-', ' ')})"
             )
-            if mean_reverting:
+            if spec.growth_fades:
                 lines.append(
-                    f"growth persistence: Beta({self.rho_alpha:g}, {self.rho_beta:g}), mean "
-                    f"{self.rho_alpha / (self.rho_alpha + self.rho_beta):.2g}"
+                    f"half-life of growth when it fades: about {math.exp(self.log_h_mu):.3g} "
+                    f"periods, within a factor of {math.exp(self.log_h_sd):.3g}"
                 )
         if spec.errors == "ar1":
             lines.append(
@@ -573,9 +582,7 @@ class Priors:
             long_run_sd=float(self.long_run.give_or_take_pts / 100 / (1 + lr0)),
             phi_alpha=float(pm_ * pc),
             phi_beta=float((1 - pm_) * pc),
-            level_shock_scale=float(math.log1p(lt.level_shock_pct / 100)),
-            growth_drift_scale=float(lt.growth_drift_pts / 100),
-            rho_alpha=float(lt.persistence_mean * lt.persistence_concentration),
-            rho_beta=float((1 - lt.persistence_mean) * lt.persistence_concentration),
+            level_shock_scale=float(lt.scales(ppy)[0]),
+            growth_drift_scale=float(lt.scales(ppy)[1]),
             seasonal_scale=float(math.log1p(self.seasonal.typical_pct / 100)),
         )

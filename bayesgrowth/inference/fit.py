@@ -46,6 +46,12 @@ class Fit:
     spec : ModelSpec, optional
         The full model choice (curve, errors, noise, seasonal factors); default the
         exponential model with independent normal errors, or ``model`` if given.
+    state_space : StateSpacePosterior, optional
+        For a local trend fitted by the exact engine: the grid posterior that gives
+        exact bands (:mod:`bayesgrowth.inference.statespace`).
+    extra : dict
+        Per-draw quantities that are not parameters (the exact engine's grid node of
+        each draw, ``nodes``, and the latest growth, ``latest_log_growth``).
     """
 
     series: GrowthSeries
@@ -57,6 +63,8 @@ class Fit:
     settings: dict = field(default_factory=dict)
     model: str = "exponential"
     spec: ModelSpec | None = None
+    state_space: object | None = None
+    extra: dict = field(default_factory=dict)
 
     def __post_init__(self) -> None:
         if self.spec is None:
@@ -90,6 +98,8 @@ class Fit:
         d = self.flat()
         if self.spec.model == "exponential":
             g = np.expm1(d["log1p_g"])
+        elif "latest_log_growth" in self.extra:
+            g = np.expm1(self.extra["latest_log_growth"].reshape(-1))
         else:
             g = np.expm1(general.latest_growth(
                 self.spec, d, self.series.t_last, self.priors.t_ref, self.series, self.seed
@@ -106,7 +116,12 @@ class Fit:
         before it (see :func:`bayesgrowth.models.general.log_likelihood`).
         """
         s = self.series
-        if self.spec.is_plain_exponential:
+        if self.state_space is not None:
+            post = self.state_space
+            nodes = self.extra["nodes"].reshape(-1)
+            flat = post.pointwise_loglik(nodes, post.beta_of(self.flat()))
+            flat = flat - np.log(s.values)[None, :]
+        elif self.spec.is_plain_exponential:
             flat = exponential.log_likelihood(self.flat(), s.t, s.values, self.priors.t_ref)
         else:
             flat = general.log_likelihood(

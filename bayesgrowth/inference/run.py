@@ -62,10 +62,17 @@ def fit_series(
     if engine not in ENGINES:
         raise ValueError(f"engine must be one of {', '.join(ENGINES)}, got {engine!r}")
     spec = ModelSpec(model=model, errors=errors, noise=noise, seasonal=seasonal, drift=drift)
-    if engine == "exact" and not spec.is_plain_exponential:
+    if engine == "exact" and not (spec.is_plain_exponential or spec.is_state_space):
         raise ValueError(
-            f"engine='exact' covers only the exponential model with independent normal errors "
-            f"and no seasonal factors, not {spec.label()}; use engine='nuts'"
+            f"engine='exact' covers the local trend (normal noise, independent errors) and the "
+            f"exponential model with independent normal errors and no seasonal factors, not "
+            f"{spec.label()}; use engine='nuts'"
+        )
+    if engine == "nuts" and spec.drift == "adaptive" and spec.model == "local-trend":
+        raise ValueError(
+            "drift='adaptive' averages drifting and fading growth by their exact evidence, "
+            "which only the exact engine computes; use engine='exact', or drift='random-walk' "
+            "or 'mean-reverting' with engine='nuts'"
         )
     if spec.seasonal:
         from bayesgrowth.models.spec import season_index
@@ -80,7 +87,12 @@ def fit_series(
         )
     if engine == "exact":
         settings = {k: v for k, v in settings.items() if k in ("draws", "chains")}
-        fit = fit_exact(series, resolved, seed=seed, **settings)
+        if spec.is_state_space:
+            from bayesgrowth.inference.statespace import fit_state_space
+
+            fit = fit_state_space(series, resolved, spec, seed=seed, **settings)
+        else:
+            fit = fit_exact(series, resolved, seed=seed, **settings)
     else:
         from bayesgrowth.inference.nuts import fit_nuts
 

@@ -414,8 +414,11 @@ def _local_trend_likelihood(spec, priors, t, y, w, axis) -> None:
     else:
         s_l = pm.Deterministic("sigma_level", pm.math.constant(0.0))
     s_g = pm.Gamma("sigma_growth", alpha=2.0, beta=2.0 / priors.growth_drift_scale)
-    rho = pm.Beta("rho", alpha=priors.rho_alpha, beta=priors.rho_beta) if (
-        spec.mean_reverting) else None
+    rho = None
+    if spec.mean_reverting:  # same prior as the exact engine (bayesgrowth.inference.theta)
+        log_h = pm.Normal("log_half_life", mu=priors.log_h_mu, sigma=priors.log_h_sd)
+        pm.Deterministic("half_life", pt.exp(log_h))
+        rho = pm.Deterministic("rho", pt.exp(-math.log(2.0) * pt.exp(-log_h)))
     phi = pm.Beta("phi", alpha=priors.phi_alpha, beta=priors.phi_beta) if (
         spec.errors == "ar1") else None
 

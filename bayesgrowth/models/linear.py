@@ -51,6 +51,7 @@ __all__ = [
     "marginal_loglik",
     "prior_coefficients",
     "season_basis",
+    "uses_long_run",
     "season_rows",
     "split_coefficients",
 ]
@@ -90,8 +91,9 @@ def season_rows(spec: ModelSpec, axis, t) -> tuple[np.ndarray | None, int]:
     return season_basis(m)[s_idx], m
 
 
-def _uses_long_run(spec: ModelSpec) -> bool:
-    return spec.model == "damped" or spec.mean_reverting
+def uses_long_run(spec: ModelSpec) -> bool:
+    """Whether the mean path has a long-run growth coefficient (growth that fades)."""
+    return spec.model == "damped" or spec.growth_fades
 
 
 def linear_prior(spec: ModelSpec, priors, n_seasons: int = 0, *,
@@ -104,7 +106,7 @@ def linear_prior(spec: ModelSpec, priors, n_seasons: int = 0, *,
     """
     mu = [priors.log_a_mu, priors.log1p_g_mu]
     var = [priors.log_a_sd**2, priors.log1p_g_sd**2]
-    if _uses_long_run(spec):
+    if uses_long_run(spec):
         mu.append(priors.long_run_mu)
         var.append(priors.long_run_sd**2)
     if spec.seasonal and seasons:
@@ -122,7 +124,7 @@ def split_coefficients(spec: ModelSpec, beta: np.ndarray, n_seasons: int,
     out = {"log_a": beta[:, 0], "log1p_g": beta[:, 1]}
     if fixed_initial:
         out["log_a"] = np.full(beta.shape[0], log_a_mu)
-    if _uses_long_run(spec):
+    if uses_long_run(spec):
         out["long_run"] = beta[:, 2]
     if n_seasons:
         out["season"] = beta[:, beta.shape[1] - (n_seasons - 1):] @ season_basis(n_seasons).T

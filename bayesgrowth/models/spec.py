@@ -33,7 +33,7 @@ ERRORS = ("independent", "ar1")
 #: Noise distributions.
 NOISES = ("normal", "student-t")
 #: How the local trend's growth rate drifts.
-DRIFTS = ("random-walk", "mean-reverting")
+DRIFTS = ("random-walk", "mean-reverting", "adaptive")
 
 _ALIASES = {
     "local_trend": "local-trend",
@@ -65,9 +65,10 @@ class ModelSpec:
     noise : {"normal", "student-t"}
     seasonal : bool
         Seasonal factors (quarterly or monthly data only).
-    drift : {"random-walk", "mean-reverting"}
-        For ``local-trend`` only: whether the growth rate wanders freely or
-        reverts to a long-run rate.
+    drift : {"random-walk", "mean-reverting", "adaptive"}
+        For ``local-trend`` only: whether the growth rate wanders freely, reverts
+        to a long-run rate (growth fades with a half-life), or either, weighted by
+        the evidence (``adaptive``, exact engine only).
     """
 
     model: str = "exponential"
@@ -100,6 +101,16 @@ class ModelSpec:
         """A local trend whose growth rate reverts to a long-run rate."""
         return self.model == "local-trend" and self.drift == "mean-reverting"
 
+    @property
+    def growth_fades(self) -> bool:
+        """A local trend whose growth may revert to a long-run rate (fading or adaptive)."""
+        return self.model == "local-trend" and self.drift in ("mean-reverting", "adaptive")
+
+    @property
+    def is_state_space(self) -> bool:
+        """A linear-Gaussian state-space model the exact engine integrates (Kalman filter)."""
+        return (self.model, self.errors, self.noise) == ("local-trend", "independent", "normal")
+
     def parameters(self) -> tuple[str, ...]:
         """Names of the scalar parameters in the posterior."""
         names = ["log_a"]
@@ -109,12 +120,12 @@ class ModelSpec:
             names.append("log_k")
         if self.model in ("damped", "logistic", "gompertz"):
             names.append("half_life")
-        if self.model == "damped" or self.mean_reverting:
+        if self.model == "damped" or self.growth_fades:
             names.append("long_run")
         if self.model == "local-trend":
             names += ["sigma_level", "sigma_growth"]
-            if self.mean_reverting:
-                names.append("rho")
+            if self.growth_fades:
+                names += ["rho", "half_life"]
         names.append("sigma")
         if self.errors == "ar1":
             names.append("phi")
@@ -128,7 +139,8 @@ class ModelSpec:
 
     def label(self) -> str:
         """A short description, e.g. ``"logistic, AR(1) errors, Student-t noise"``."""
-        parts = [self.model if not self.mean_reverting else "local-trend (mean-reverting)"]
+        parts = [self.model if self.model != "local-trend" or self.drift == "random-walk"
+                 else f"local-trend ({self.drift})"]
         parts.append("AR(1) errors" if self.errors == "ar1" else "independent errors")
         parts.append("Student-t noise" if self.noise == "student-t" else "normal noise")
         if self.seasonal:

@@ -1,0 +1,487 @@
+"""The exact engine for the local trend: Kalman filter likelihood, ``theta`` on a grid.
+
+Given the scale and persistence parameters ``theta`` (noise, level shocks,
+growth drift, and for fading growth its half-life), the local trend is a
+linear-Gaussian state-space model on the log scale. The augmented Kalman filter
+(:mod:`bayesgrowth.inference.kalman`) gives, per value of ``theta``:
+
+* the marginal likelihood with the starting level, starting growth, long-run
+  growth and seasonal factors ``beta`` integrated out against their normal
+  priors (the user's priors on the initial value and growth);
+* the normal posterior of ``beta``, and the filtered state at the last
+  observation, hence a normal forecast of every future log value.
+
+``theta`` is then integrated out deterministically, as in the nested-Laplace
+approach of Rue, Martino & Chopin (2009, *JRSS-B* 71(2)) but with a plain grid:
+a coarse grid over the prior's range locates the posterior mass, a finer grid
+over that box carries the weights (prior times likelihood, midpoint rule in
+transformed coordinates), and the grid is refined until the forecast's
+quantiles stop moving. The posterior predictive is a finite mixture of
+log-normals, so quantiles and exceedance probabilities are exact up to the grid
+(:mod:`bayesgrowth.forecast.mixture`); draws are made only where a consumer
+needs them.
+
+With ``drift="adaptive"`` the growth rate either drifts freely (``rho = 1``) or
+fades towards the long-run rate; each branch gets half the prior mass and the
+data weight them by their exact evidence (Bayesian model averaging).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from bayesgrowth.inference.kalman import augmented_filter
+from bayesgrowth.inference.theta import ThetaDim, rho_of, theta_dims
+from bayesgrowth.models import linear
+
+__all__ = ["StateSpacePosterior", "state_space_posterior"]
+
+_CHUNK = 2048
+_COARSE = {False: 6, True: 5}  # points per dimension of the locating grid (3-D, 4-D)
+_FINE = {False: 8, True: 6}  # and of the weighting grid
+_KEEP = 15.0  # coarse-grid cells within e^-15 of the best bound the fine box
+_PRUNE = 1e-10  # nodes below this weight are dropped after normalising
+_MASS = 1e-4  # a fine-grid cell row with less marginal mass than this leaves the box
+_SETTLE = 0.02  # quantiles settled when they move less than 2% of the 10-90 width
+_PROBE = np.array([0.1, 0.5, 0.9])
+
+
+@dataclass
+class _Context:
+    """What the filter needs about the series, fixed across nodes."""
+
+    idx: np.ndarray  # calendar positions of the observations, from 0
+    y: np.ndarray  # log values
+    season: np.ndarray | None  # seasonal design rows at the observations
+    mu0: np.ndarray
+    var0: np.ndarray
+    long_run: bool  # the design has a long-run growth column
+    n_seasons: int
+
+
+def _w(rho: np.ndarray, j: np.ndarray) -> np.ndarray:
+    """``sum_{i=1..j} rho^i``, the growth mean's loading on the level (``j`` at ``rho = 1``)."""
+    r = rho[:, None]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        w = r * (1 - r ** j[None, :]) / (1 - r)
+    return np.where(r == 1.0, j[None, :].astype(float), w)
+
+
+def _design(ctx: _Context, rho: np.ndarray, j: np.ndarray, season) -> np.ndarray:
+    """Mean-path design ``(G, len(j), p)``: level, starting growth, long run, seasons."""
+    jf = np.asarray(j, dtype=float)
+    w = _w(rho, jf)
+    cols = [np.ones_like(w), w]
+    if ctx.long_run:
+        cols.append(jf[None, :] - w)
+    x = np.stack(cols, axis=-1)
+    if season is not None:
+        x = np.concatenate([x, np.broadcast_to(season, (rho.size, *season.shape))], axis=-1)
+    return x
+
+
+def _integrate(res, ctx: _Context):
+    """Marginal log likelihood and the normal posterior of ``beta`` per node."""
+    v, f = res.innovations, res.variance
+    r = v[..., 0] - v[..., 1:] @ ctx.mu0
+    xt = v[..., 1:]
+    xw = xt / f[..., None]
+    a = np.swapaxes(xt, 1, 2) @ xw
+    b = np.einsum("gnp,gn->gp", xw, r)
+    s = np.sqrt(ctx.var0)
+    m = np.eye(s.size) + s[:, None] * a * s[None, :]
+    chol = np.linalg.cholesky(m)
+    sb = s * b
+    z = np.linalg.solve(m, sb[..., None])[..., 0]
+    logdet = 2 * np.log(np.diagonal(chol, axis1=1, axis2=2)).sum(axis=1)
+    quad = (r**2 / f).sum(axis=1) - (sb * z).sum(axis=1)
+    n = f.shape[1]
+    loglik = -0.5 * (n * math.log(2 * math.pi) + np.log(f).sum(axis=1) + logdet + quad)
+    minv = np.linalg.inv(m)
+    return loglik, ctx.mu0 + s * z, s[:, None] * minv * s[None, :]
+
+
+def _evaluate(ctx: _Context, params: dict) -> dict:
+    """Filter every node (in chunks) and integrate ``beta`` out."""
+    g = params["sigma"].size
+    parts = []
+    for lo in range(0, g, _CHUNK):
+        sl = slice(lo, lo + _CHUNK)
+        rho = params["rho"][sl]
+        x = _design(ctx, rho, ctx.idx, ctx.season)
+        data = np.concatenate([np.broadcast_to(ctx.y, (rho.size, ctx.y.size))[..., None], x],
+                              axis=-1)
+        res = augmented_filter(data, ctx.idx, rho, params["sigma_level"][sl],
+                               params["sigma_growth"][sl], params["sigma"][sl])
+        loglik, bm, bc = _integrate(res, ctx)
+        parts.append({"loglik": loglik, "beta_mean": bm, "beta_cov": bc, "state": res.state,
+                      "state_cov": res.state_cov, "innovations": res.innovations,
+                      "variance": res.variance})
+    return {k: np.concatenate([p[k] for p in parts]) for k in parts[0]}
+
+
+@dataclass
+class _Branch:
+    """One family of nodes: random-walk growth or fading growth."""
+
+    dims: list[ThetaDim]
+    fades: bool
+    prior_mass: float
+    box: list[tuple[float, float]] = field(default_factory=list)
+    log: list[bool] = field(default_factory=list)
+
+    def __post_init__(self) -> None:
+        self.log = [True] * len(self.dims)
+
+    def nodes(self, k: int, box=None) -> tuple[np.ndarray, float]:
+        """Cell midpoints ``(G, D)`` of a ``k``-per-dimension grid, and the cell volume."""
+        box = box or [d.span(lg) for d, lg in zip(self.dims, self.log, strict=True)]
+        axes = [lo + (np.arange(k) + 0.5) * (hi - lo) / k for lo, hi in box]
+        mesh = np.meshgrid(*axes, indexing="ij")
+        vol = float(np.prod([(hi - lo) / k for lo, hi in box]))
+        return np.stack([m.ravel() for m in mesh], axis=1), vol
+
+    def params(self, u: np.ndarray) -> dict:
+        """Natural-scale parameters of the nodes (and their log prior)."""
+        out = {"sigma_level": np.zeros(u.shape[0])}
+        log_prior = np.zeros(u.shape[0])
+        for i, (d, lg) in enumerate(zip(self.dims, self.log, strict=True)):
+            out[d.name] = d.value(u[:, i], lg)
+            log_prior += d.log_prior(u[:, i], lg)
+        out["rho"] = rho_of(out["half_life"]) if self.fades else np.ones(u.shape[0])
+        if not self.fades:
+            out["half_life"] = np.full(u.shape[0], np.inf)
+        out["log_prior"] = log_prior
+        return out
+
+    def to_fine(self) -> None:
+        """Switch the standard deviations' box from ``log x`` to ``x``."""
+        span = [d.span() for d in self.dims]
+        for i, d in enumerate(self.dims):
+            if d.linear_fine:
+                lo, hi = self.box[i]
+                self.box[i] = (0.0 if lo <= span[i][0] else math.exp(lo), math.exp(hi))
+                self.log[i] = False
+
+
+def _locate(branch: _Branch, ctx: _Context, k: int) -> list[tuple[float, float]]:
+    """The box of ``u`` holding the posterior mass, from a coarse grid over the prior range."""
+    u, _ = branch.nodes(k)
+    p = branch.params(u)
+    lp = _evaluate(ctx, p)["loglik"] + p["log_prior"]
+    lp = lp.reshape((k,) * len(branch.dims))
+    best = lp.max()
+    box = []
+    for d, dim in enumerate(branch.dims):
+        lo, hi = dim.span()
+        step = (hi - lo) / k
+        profile = lp.max(axis=tuple(i for i in range(lp.ndim) if i != d))
+        kept = np.flatnonzero(profile >= best - _KEEP)
+        box.append((max(lo, lo + (kept[0] - 0.5) * step),
+                    min(hi, lo + (kept[-1] + 1.5) * step)))
+    return box
+
+
+def _shrink(branch: _Branch, weight: np.ndarray, k: int) -> list[tuple[float, float]]:
+    """A tighter box from a fine grid's weights: the cells whose marginal mass counts."""
+    w = weight.reshape((k,) * len(branch.dims))
+    total = w.sum()
+    box = []
+    for d, (lo, hi) in enumerate(branch.box):
+        step = (hi - lo) / k
+        marginal = w.sum(axis=tuple(i for i in range(w.ndim) if i != d)) / total
+        kept = np.flatnonzero(marginal >= _MASS)
+        span_lo, span_hi = branch.dims[d].span(branch.log[d])
+        box.append((max(span_lo, lo + (kept[0] - 1.0) * step),
+                    min(span_hi, lo + (kept[-1] + 2.0) * step)))
+    return box
+
+
+class StateSpacePosterior:
+    """The posterior of a local trend as weighted nodes of ``theta``.
+
+    Attributes
+    ----------
+    params : dict of numpy.ndarray
+        Per node: ``sigma``, ``sigma_level``, ``sigma_growth``, ``rho``, ``half_life``
+        (``inf`` where growth drifts freely).
+    weight : numpy.ndarray
+        Posterior probability of each node (sums to 1).
+    beta_mean, beta_cov : numpy.ndarray
+        Normal posterior of the linear coefficients per node.
+    branch_weight : dict
+        Posterior probability of drifting and of fading growth.
+    log_evidence : float
+        Log marginal likelihood of the log values (grid quadrature).
+    grid_points : int
+        Points per dimension of the final grid.
+    """
+
+    def __init__(self, ctx, spec, axis, t_ref, nodes: dict, weight, branch_weight,
+                 log_evidence, grid_points):
+        keep = weight >= _PRUNE * weight.max()
+        self._ctx, self.spec, self._axis, self.t_ref = ctx, spec, axis, int(t_ref)
+        self.weight = weight[keep] / weight[keep].sum()
+        sel = {k: v[keep] for k, v in nodes.items()}
+        self.params = {k: sel[k] for k in ("sigma", "sigma_level", "sigma_growth", "rho",
+                                           "half_life")}
+        self.beta_mean, self.beta_cov = sel["beta_mean"], sel["beta_cov"]
+        self._state, self._state_cov = sel["state"], sel["state_cov"]
+        self._innov, self._var = sel["innovations"], sel["variance"]
+        self.branch_weight = branch_weight
+        self.log_evidence = float(log_evidence)
+        self.grid_points = int(grid_points)
+
+    @property
+    def n_nodes(self) -> int:
+        """Number of nodes carrying weight."""
+        return int(self.weight.size)
+
+    def _season_rows(self, t: np.ndarray):
+        if not self._ctx.n_seasons:
+            return None
+        from bayesgrowth.models.spec import season_index
+
+        m, s_idx = season_index(self._axis, np.asarray(t))
+        return linear.season_basis(m)[s_idx]
+
+    def predictive(self, t_future: np.ndarray, joint: bool = True) -> dict:
+        """Normal forecast of future log values per node.
+
+        Parameters
+        ----------
+        t_future : numpy.ndarray
+            Consecutive future time indices right after the last observation.
+        joint : bool
+            Whether to return full ``(G, H, H)`` covariances or only variances.
+
+        Returns
+        -------
+        dict
+            ``mean`` ``(G, H)``; ``curve_cov``/``value_cov`` (joint) or
+            ``curve_var``/``value_var`` ``(G, H)``: the level alone, and the level
+            plus noise.
+        """
+        ctx, p = self._ctx, self.params
+        jf = np.asarray(t_future, dtype=int) - self.t_ref
+        steps = jf - int(ctx.idx[-1])
+        rho = p["rho"]
+        xf = _design(ctx, rho, jf, self._season_rows(t_future))
+        z = np.stack([np.ones((rho.size, steps.size)), _w(rho, steps.astype(float))], axis=-1)
+        ay, ax = self._state[:, :, 0], self._state[:, :, 1:]
+        g = xf - z @ ax
+        mean = (g @ self.beta_mean[..., None])[..., 0] + (z @ ay[..., None])[..., 0]
+        gb = g @ self.beta_cov
+        s = steps.astype(float)
+        # loading of the growth shock at future step i on the level at step h (i <= h)
+        d = s[:, None] - s[None, :]
+        on = (d >= 0).astype(float)
+        r = rho[:, None, None]
+        with np.errstate(divide="ignore", invalid="ignore"):
+            af = np.where(r == 1.0, d + 1, (1 - r ** (d + 1)) / (1 - r)) * on
+        sg2 = (p["sigma_growth"] ** 2)[:, None, None]
+        sl2 = (p["sigma_level"] ** 2)[:, None, None]
+        if joint:
+            cov = (gb @ np.swapaxes(g, 1, 2) + z @ self._state_cov @ np.swapaxes(z, 1, 2)
+                   + sg2 * (af @ np.swapaxes(af, 1, 2)) + sl2 * (on @ on.T)[None])
+            noise = (p["sigma"] ** 2)[:, None, None] * np.eye(s.size)[None]
+            return {"mean": mean, "curve_cov": cov, "value_cov": cov + noise}
+        var = ((gb * g).sum(-1) + np.einsum("ghi,gij,ghj->gh", z, self._state_cov, z)
+               + sg2[..., 0] * (af**2).sum(-1) + sl2[..., 0] * on.sum(-1)[None])
+        return {"mean": mean, "curve_var": var, "value_var": var + p["sigma"][:, None] ** 2}
+
+    def latest_growth(self) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """Growth (log scale) in the last observed period: loading on ``beta``, shift, variance.
+
+        The growth given ``beta`` is ``load @ beta + shift`` plus a normal error with
+        the returned variance (the filtered growth deviation's).
+        """
+        ctx, rho = self._ctx, self.params["rho"]
+        j = float(ctx.idx[-1])
+        cols = [np.zeros_like(rho), rho**j]
+        if ctx.long_run:
+            cols.append(1 - rho**j)
+        gx = np.stack(cols, axis=-1)
+        if ctx.n_seasons:
+            gx = np.concatenate([gx, np.zeros((rho.size, ctx.n_seasons - 1))], axis=-1)
+        load = gx - self._state[:, 1, 1:]
+        return load, self._state[:, 1, 0], self._state_cov[:, 1, 1]
+
+    def sample(self, n: int, rng: np.random.Generator) -> tuple[np.ndarray, dict]:
+        """Draw ``n`` nodes by weight, then ``beta`` and the latest growth given each.
+
+        Returns
+        -------
+        nodes : numpy.ndarray of int
+        draws : dict
+            ``theta`` values, the named coefficients (see
+            :func:`bayesgrowth.models.linear.split_coefficients`) and
+            ``latest_log_growth``.
+        """
+        nodes = rng.choice(self.weight.size, size=n, p=self.weight)
+        cov = 0.5 * (self.beta_cov + np.swapaxes(self.beta_cov, 1, 2))
+        ev, evec = np.linalg.eigh(cov)
+        root = evec * np.sqrt(np.clip(ev, 0, None))[:, None, :]
+        zb = rng.standard_normal((n, self.beta_mean.shape[1]))
+        beta = self.beta_mean[nodes] + np.einsum("sij,sj->si", root[nodes], zb)
+        load, shift, var = self.latest_growth()
+        growth = (np.einsum("sp,sp->s", load[nodes], beta) + shift[nodes]
+                  + np.sqrt(np.clip(var[nodes], 0, None)) * rng.standard_normal(n))
+        ctx = self._ctx
+        named = linear.split_coefficients(self.spec, beta, ctx.n_seasons, ctx.var0[0] == 0,
+                                          float(ctx.mu0[0]))
+        draws = {k: v[nodes] for k, v in self.params.items()}
+        return nodes, {**draws, **named, "latest_log_growth": growth}
+
+    def pointwise_loglik(self, nodes: np.ndarray, beta: np.ndarray) -> np.ndarray:
+        """One-step log densities of the log values for draws ``(nodes, beta)``, ``(S, n)``."""
+        v = self._innov[nodes]
+        e = v[..., 0] - np.einsum("snp,sp->sn", v[..., 1:], beta)
+        f = self._var[nodes]
+        return -0.5 * (math.log(2 * math.pi) + np.log(f) + e**2 / f)
+
+    def beta_of(self, draws: dict) -> np.ndarray:
+        """Coefficient vectors in design order from named draws (inverse of the split)."""
+        cols = [draws["log_a"], draws["log1p_g"]]
+        if self._ctx.long_run:
+            cols.append(draws["long_run"])
+        out = np.stack(cols, axis=-1)
+        if self._ctx.n_seasons:
+            q = linear.season_basis(self._ctx.n_seasons)
+            out = np.concatenate([out, draws["season"] @ q], axis=-1)
+        return out
+
+
+def _context(spec, priors, series) -> _Context:
+    t = np.asarray(series.t, dtype=int)
+    season, m = linear.season_rows(spec, series.axis, t)
+    mu0, var0 = linear.linear_prior(spec, priors, m)
+    return _Context(idx=t - int(priors.t_ref), y=series.log_values, season=season, mu0=mu0,
+                    var0=var0, long_run=linear.uses_long_run(spec), n_seasons=m)
+
+
+def _branches(spec, priors) -> list[_Branch]:
+    if spec.drift == "adaptive":
+        return [_Branch(theta_dims(priors, False), False, 0.5),
+                _Branch(theta_dims(priors, True), True, 0.5)]
+    fades = spec.drift == "mean-reverting"
+    return [_Branch(theta_dims(priors, fades), fades, 1.0)]
+
+
+def _on_grid(ctx, branches, k_of) -> tuple[dict, np.ndarray, dict, float, list]:
+    """Evaluate every branch on its grid; node weights, branch weights, log evidence."""
+    parts, logw, log_ev, within = [], [], {}, []
+    for b in branches:
+        u, vol = b.nodes(k_of(b), b.box)
+        p = b.params(u)
+        ev = _evaluate(ctx, p)
+        lw = ev["loglik"] + p["log_prior"] + math.log(vol) + math.log(b.prior_mass)
+        parts.append({**{k: v for k, v in p.items() if k != "log_prior"}, **ev})
+        logw.append(lw)
+        top = lw.max()
+        within.append(np.exp(lw - top))
+        log_ev["fading" if b.fades else "drifting"] = top + math.log(within[-1].sum())
+    nodes = {k: np.concatenate([p[k] for p in parts]) for k in parts[0]}
+    lw = np.concatenate(logw)
+    top = lw.max()
+    w = np.exp(lw - top)
+    total = top + math.log(w.sum())
+    branch_w = {k: math.exp(v - total) for k, v in log_ev.items()}
+    # the likelihood is of log values; the evidence of the values subtracts sum(log y)
+    return nodes, w / w.sum(), branch_w, total - float(ctx.y.sum()), within
+
+
+def _probe_quantiles(post: StateSpacePosterior, t_probe: np.ndarray) -> np.ndarray:
+    from bayesgrowth.forecast.mixture import mixture_quantiles
+
+    pred = post.predictive(t_probe, joint=False)
+    return mixture_quantiles(post.weight, pred["mean"], np.sqrt(pred["value_var"]), _PROBE)
+
+
+def state_space_posterior(series, priors, spec, *, max_refinements: int = 3):
+    """The exact posterior of a local trend (see the module docstring).
+
+    Parameters
+    ----------
+    series : GrowthSeries
+    priors : ResolvedPriors
+    spec : ModelSpec
+        A local trend with normal noise and independent errors.
+    max_refinements : int
+        How many times the fine grid may be refined (two more points per
+        dimension each time) while the probe quantiles still move.
+
+    Returns
+    -------
+    StateSpacePosterior
+    """
+    ctx = _context(spec, priors, series)
+    branches = _branches(spec, priors)
+    for b in branches:
+        b.box = _locate(b, ctx, _COARSE[len(b.dims) >= 4])
+        b.to_fine()
+    ppy = series.axis.periods_per_year or 4
+    t_probe = series.t_last + np.arange(1, int(max(4, 2 * round(ppy))) + 1)
+    previous, extra = None, 0
+    for _ in range(max_refinements + 1):
+        def k_of(b, extra=extra):
+            return _FINE[len(b.dims) >= 4] + extra
+
+        nodes, w, branch_w, log_ev, within = _on_grid(ctx, branches, k_of)
+        post = StateSpacePosterior(ctx, spec, series.axis, priors.t_ref, nodes, w, branch_w,
+                                   log_ev, k_of(branches[-1]))
+        q = _probe_quantiles(post, t_probe)
+        if previous is not None:
+            width = np.maximum(q[-1] - q[0], 1e-12)
+            if np.all(np.abs(q - previous) <= _SETTLE * width):
+                break
+        previous = q
+        boxes = [_shrink(b, wb, k_of(b)) for b, wb in zip(branches, within, strict=True)]
+        moved = any(_moved(b.box, nb) for b, nb in zip(branches, boxes, strict=True))
+        for b, nb in zip(branches, boxes, strict=True):
+            b.box = nb
+        if not moved:
+            extra += 2
+    return post
+
+
+def _moved(old, new) -> bool:
+    """Whether a box shrank by more than a quarter in any dimension."""
+    return any((nh - nl) < 0.75 * (oh - ol) for (ol, oh), (nl, nh) in zip(old, new, strict=True))
+
+
+def fit_state_space(series, priors, spec, *, seed: int, draws: int = 1000, chains: int = 4):
+    """Fit a local trend by the exact engine: the grid posterior plus independent draws.
+
+    The draws (``chains * draws``, arranged as chains only to match the NUTS
+    engine's shape) serve the consumers that need draws; bands and
+    probabilities use the grid posterior itself (:attr:`Fit.state_space`).
+
+    Returns
+    -------
+    Fit
+    """
+    from bayesgrowth.inference.diagnostics import Diagnostics
+    from bayesgrowth.inference.fit import Fit
+
+    post = state_space_posterior(series, priors, spec)
+    rng = np.random.default_rng([seed, 7])
+    n = chains * draws
+    nodes, flat = post.sample(n, rng)
+    latest = flat.pop("latest_log_growth")
+    shape = (chains, draws)
+    posterior = {k: v.reshape(*shape, *v.shape[1:]) for k, v in flat.items()
+                 if k in spec.parameters() or k == "season"}
+    diagnostics = Diagnostics.from_values(
+        1.0, n, n, 0,
+        method=f"exact posterior on a {post.grid_points}-point-per-dimension grid "
+        f"({post.n_nodes} nodes), independent draws: no chains to check",
+    )
+    settings = {"draws": draws, "chains": chains, "grid_points": post.grid_points,
+                "grid_nodes": post.n_nodes}
+    return Fit(series=series, priors=priors, engine="exact", seed=seed, posterior=posterior,
+               diagnostics=diagnostics, settings=settings, spec=spec, state_space=post,
+               extra={"nodes": nodes.reshape(shape), "latest_log_growth": latest.reshape(shape)})

@@ -1,0 +1,93 @@
+"""The local trend's scale and persistence parameters ``theta``, and their priors.
+
+The exact state-space engine integrates over these parameters on a grid in
+transformed coordinates ``u`` (the log of each standard deviation, the log of
+the growth half-life), so each prior is written here as a log density in ``u``,
+Jacobian included. The NUTS engine uses the same families
+(:func:`bayesgrowth.models.general.build_pymc_model`), so the two engines answer
+the same question.
+
+* ``sigma`` (noise): half-normal with scale ``priors.sigma_scale``;
+* ``sigma_level`` (level shocks): Gamma(2, 2/s) with mean ``s =
+  priors.level_shock_scale``, absent when ``s = 0``;
+* ``sigma_growth`` (growth drift): Gamma(2, 2/s) with mean ``s =
+  priors.growth_drift_scale``;
+* ``half_life`` (mean-reverting growth only): log-normal with log-median
+  ``priors.log_h_mu`` and log-sd ``priors.log_h_sd``; the persistence is
+  ``rho = 2^(-1/half_life)``.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+from scipy import stats
+
+__all__ = ["ThetaDim", "theta_dims"]
+
+_TAIL = 1e-4  # the coarse grid spans the prior's central 1 - 2e-4 (in u)
+
+
+@dataclass(frozen=True)
+class ThetaDim:
+    """One grid dimension: a parameter, its prior, and the grid coordinate.
+
+    The locating grid runs in ``u = log x`` for every parameter (it must span
+    orders of magnitude). The weighting grid runs in ``u = log x`` for the
+    half-life and in ``u = x`` for the standard deviations, whose posteriors often
+    reach down to zero, where a log grid would spend most of its nodes.
+
+    Attributes
+    ----------
+    name : str
+        Parameter name as in the posterior (``sigma``, ``sigma_level``, ...).
+    dist : scipy.stats frozen distribution
+        Prior of the parameter on its natural scale.
+    linear_fine : bool
+        Whether the weighting grid runs in ``x`` itself.
+    """
+
+    name: str
+    dist: object
+    linear_fine: bool = True
+
+    def value(self, u: np.ndarray, log: bool) -> np.ndarray:
+        """Parameter value at grid coordinate ``u``."""
+        return np.exp(u) if log else u
+
+    def log_prior(self, u: np.ndarray, log: bool) -> np.ndarray:
+        """Prior log density of the coordinate ``u`` (Jacobian included for ``log x``)."""
+        if log:
+            return self.dist.logpdf(np.exp(u)) + u
+        return self.dist.logpdf(u)
+
+    def span(self, log: bool = True) -> tuple[float, float]:
+        """Range of the coordinate holding all but ``2e-4`` of the prior mass."""
+        lo, hi = self.dist.ppf([_TAIL, 1 - _TAIL])
+        if log:
+            return float(math.log(lo)), float(math.log(hi))
+        return 0.0, float(hi)
+
+
+def _gamma2(mean: float):
+    return stats.gamma(a=2.0, scale=mean / 2.0)
+
+
+def theta_dims(priors, mean_reverting: bool) -> list[ThetaDim]:
+    """The grid dimensions for a local trend with these resolved priors."""
+    dims = [ThetaDim("sigma", stats.halfnorm(scale=priors.sigma_scale))]
+    if priors.level_shock_scale > 0:
+        dims.append(ThetaDim("sigma_level", _gamma2(priors.level_shock_scale)))
+    dims.append(ThetaDim("sigma_growth", _gamma2(priors.growth_drift_scale)))
+    if mean_reverting:
+        dims.append(ThetaDim("half_life", stats.lognorm(s=priors.log_h_sd,
+                                                          scale=math.exp(priors.log_h_mu)),
+                             linear_fine=False))
+    return dims
+
+
+def rho_of(half_life: np.ndarray) -> np.ndarray:
+    """Growth persistence per period for a half-life in periods."""
+    return np.power(0.5, 1.0 / np.asarray(half_life, dtype=float))
