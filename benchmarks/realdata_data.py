@@ -83,8 +83,8 @@ def is_growing(train: np.ndarray, test: np.ndarray) -> bool:
 
     A series is growing when every training and hold-out value is above zero (the
     log-scale methods need that) and the mean of its last four training values is more
-    than 1.1 times the mean of its first four. Training parts shorter than eight values
-    are not growing (the two ends would overlap).
+    than 1.1 times the mean of its first four (the two ends overlap in training parts
+    shorter than eight values). Training parts shorter than four values are not growing.
 
     Parameters
     ----------
@@ -97,7 +97,7 @@ def is_growing(train: np.ndarray, test: np.ndarray) -> bool:
     """
     train = np.asarray(train, dtype=float)
     test = np.asarray(test, dtype=float)
-    if train.size < 2 * END_LENGTH or test.size == 0:
+    if train.size < END_LENGTH or test.size == 0:
         return False
     if not (np.all(np.isfinite(train)) and np.all(np.isfinite(test))):
         return False

@@ -22,6 +22,7 @@ _COLUMNS = {
     "smape": "sMAPE %",
     "mase": "MASE",
     "seconds_mean": "s / series",
+    "cpu_seconds_mean": "CPU s / series",
 }
 
 
@@ -43,7 +44,7 @@ def _table(rows: pd.DataFrame) -> list[str]:
                 cells.append(_cover(row, col))
             elif col in ("method", "series", "failed"):
                 cells.append(str(value))
-            elif col == "seconds_mean":
+            elif col in ("seconds_mean", "cpu_seconds_mean"):
                 cells.append(f"{value:.3f}")
             else:
                 cells.append("-" if np.isnan(value) else f"{value:.3f}")
@@ -73,7 +74,8 @@ def markdown_summary(summary: pd.DataFrame, title: str, notes: list[str]) -> str
         "fits; brackets: 95% bootstrap interval resampling whole series. MSIS (95% band), "
         "scaled CRPS, sMAPE and MASE: means over series, with medians for MSIS and scaled "
         "CRPS (lower is better). s / series: mean "
-        "fitting and forecasting time per series.",
+        "wall time to fit and forecast one series in a worker; CPU s / series: the worker's "
+        "CPU time for it (less swayed by other load on the machine).",
         "",
     ]
     return "\n".join(lines)

@@ -166,8 +166,9 @@ def _summary_row(rows: pd.DataFrame, rng: np.random.Generator, n_boot: int) -> d
         out[col] = float(ok[col].mean()) if len(ok) else float("nan")
     for col in ("msis", "scaled_crps"):
         out[f"{col}_median"] = float(ok[col].median()) if len(ok) else float("nan")
-    out["seconds_mean"] = float(rows["seconds"].mean())
-    out["seconds_total"] = float(rows["seconds"].sum())
+    for col in ("seconds", "cpu_seconds"):
+        out[f"{col}_mean"] = float(rows[col].mean())
+        out[f"{col}_total"] = float(rows[col].sum())
     return out
 
 
@@ -185,7 +186,7 @@ def summarise(scores: pd.DataFrame, n_boot: int = 2000, seed: int = 0,
     ----------
     scores : pandas.DataFrame
         Per-series rows with ``collection``, ``frequency``, ``method``, ``ok``, ``h``,
-        ``seconds`` and :data:`SCORE_COLUMNS`.
+        ``seconds``, ``cpu_seconds`` and :data:`SCORE_COLUMNS`.
     n_boot : int
     seed : int
     methods : sequence of str, optional

@@ -117,10 +117,12 @@ def test_growing_filter_on_synthetic_records():
         _record("neg", [-1, 10, 10, 10, 20, 20, 20, 20], [21]),
         # falling
         _record("down", [20, 20, 20, 20, 10, 10, 10, 10], [9]),
-        # seven values: the two ends of four would overlap
-        _record("short", [1, 2, 3, 4, 5, 6, 7], [8]),
+        # seven values: the ends overlap; first four mean 2.5, last four mean 5.5
+        _record("seven", [1, 2, 3, 4, 5, 6, 7], [8]),
+        # three values: no four to compare
+        _record("three", [1, 2, 3], [4]),
     ]
-    assert [r.name for r in growing(records)] == ["up"]
+    assert [r.name for r in growing(records)] == ["up", "seven"]
     assert not is_growing(np.array([1, 2, 3, 4, 5, 6, 7, np.nan]), np.array([9.0]))
 
 
