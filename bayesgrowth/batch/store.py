@@ -33,7 +33,7 @@ from pathlib import Path
 import pandas as pd
 
 from bayesgrowth.batch.work import SUMMARY_COLUMNS, SeriesOutcome
-from bayesgrowth.data.export import write_csv
+from bayesgrowth.data.export import json_text, write_csv
 from bayesgrowth.data.series import InputError
 
 __all__ = ["RunStore", "OUTPUTS", "STATE_DIR", "atomic_write"]
@@ -139,7 +139,7 @@ class RunStore:
                 )
         self.parts.mkdir(parents=True, exist_ok=True)
         if not manifest.exists():
-            atomic_write(manifest, lambda tmp: tmp.write_text(json.dumps(record, indent=2)))
+            atomic_write(manifest, lambda tmp: tmp.write_text(json_text(record)))
         self._run = secrets.token_hex(4)
         self._count = 0
 
@@ -182,7 +182,7 @@ class RunStore:
                        self.parts / f"{chunk}.failures.csv")
         marker = {o.name: o.fingerprint for o in outcomes if o.failure is None}
         atomic_write(self.parts / f"{chunk}.done.json",
-                     lambda tmp: tmp.write_text(json.dumps(marker)))
+                     lambda tmp: tmp.write_text(json_text(marker, indent=None)))
 
     def merge(
         self, current: dict[str, str], order: list[str], extra_failures: list[tuple[str, str]]

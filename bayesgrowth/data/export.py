@@ -1,4 +1,4 @@
-"""Files the tool writes for people: CSV cells that a spreadsheet cannot run as formulas.
+"""Files the tool writes for people: CSV cells that cannot run as formulas, valid JSON.
 
 A spreadsheet opening a CSV file treats a cell that starts with ``=``, ``+``,
 ``-``, ``@``, a tab or a carriage return as a formula, so a series name such as
@@ -12,16 +12,36 @@ that is a plain decimal number (``-3``, ``-3.2``, ``+1e5``, as integer period
 labels are) stays as it is, since a spreadsheet reads it as that number and runs
 nothing. The prefix is added once: a neutralised cell starts with a quote, which is
 not a trigger, so neutralising twice changes nothing.
+
+JSON has no infinity and no "not a number" (RFC 8259, section 6), though Python's
+``json`` module writes them by default. :func:`json_text` writes ``null`` where a
+number does not exist, lists each such field with the reason under
+``"numbers_not_available"``, and refuses (``allow_nan=False``) anything it missed.
 """
 
 from __future__ import annotations
 
+import json
+import math
 import re
 from pathlib import Path
+from typing import Any
 
+import numpy as np
 import pandas as pd
 
-__all__ = ["FORMULA_TRIGGERS", "neutralise_cell", "neutralise_frame", "write_csv"]
+__all__ = [
+    "FORMULA_TRIGGERS",
+    "NOT_AVAILABLE_KEY",
+    "json_ready",
+    "json_text",
+    "neutralise_cell",
+    "neutralise_frame",
+    "write_csv",
+]
+
+#: Key of the list of fields written as ``null`` because their number does not exist.
+NOT_AVAILABLE_KEY = "numbers_not_available"
 
 #: First characters that make a spreadsheet read a cell as a formula (OWASP, CSV Injection).
 FORMULA_TRIGGERS = ("=", "+", "-", "@", "\t", "\r")
@@ -98,3 +118,66 @@ def write_csv(frame: pd.DataFrame, path: str | Path, float_format: str | None = 
         Format of floating-point numbers [``%.6g``]; ``None`` writes them in full.
     """
     neutralise_frame(frame).to_csv(path, index=False, float_format=float_format)
+
+
+def _why(value: float) -> str:
+    if math.isnan(value):
+        return ("not a number: the value is undefined (for example a band computed from draws "
+                "that overflowed to infinity)")
+    side, bound = ("above", "1.8e308") if value > 0 else ("below", "-1.8e308")
+    return (f"infinite: {side} the range of numbers a computer holds (about {bound}); "
+            "the draws overflowed, or the quantity has no finite value")
+
+
+def json_ready(data: Any, where: str = "") -> tuple[Any, list[dict[str, str]]]:
+    """``data`` with every non-finite number replaced by ``None``, and the list of them.
+
+    Parameters
+    ----------
+    data : object
+        Dicts, lists, tuples, strings, numbers (Python or NumPy), booleans and ``None``.
+    where : str
+        Path of ``data`` inside the document, for the list of replaced fields.
+
+    Returns
+    -------
+    data : object
+        Plain Python values that ``json.dumps(..., allow_nan=False)`` accepts.
+    missing : list of dict
+        ``{"field": "final_period.upper_95", "reason": "..."}`` for each ``None`` put in.
+    """
+    if isinstance(data, np.generic):
+        data = data.item()
+    if isinstance(data, float) and not math.isfinite(data):
+        return None, [{"field": where or "(document)", "reason": _why(data)}]
+    if isinstance(data, dict):
+        out, missing = {}, []
+        for key, value in data.items():
+            out[key], more = json_ready(value, f"{where}.{key}" if where else str(key))
+            missing += more
+        return out, missing
+    if isinstance(data, list | tuple | np.ndarray):
+        out_list, missing = [], []
+        for i, value in enumerate(data):
+            clean, more = json_ready(value, f"{where}[{i}]")
+            out_list.append(clean)
+            missing += more
+        return out_list, missing
+    return data, []
+
+
+def json_text(data: Any, *, indent: int | None = 2) -> str:
+    """Strictly valid JSON text (RFC 8259) of ``data``, ending in a newline.
+
+    Non-finite numbers become ``null``; when ``data`` is a dict, the list of those
+    fields and why each has no number is added under :data:`NOT_AVAILABLE_KEY`.
+
+    Examples
+    --------
+    >>> print(json_text({"upper_95": float("inf")}, indent=None), end="")  # doctest: +ELLIPSIS
+    {"upper_95": null, "numbers_not_available": [{"field": "upper_95", "reason": "infinite: ...}]}
+    """
+    clean, missing = json_ready(data)
+    if missing and isinstance(clean, dict):
+        clean[NOT_AVAILABLE_KEY] = missing
+    return json.dumps(clean, indent=indent, allow_nan=False) + "\n"

@@ -13,10 +13,14 @@ import pandas as pd
 
 from bayesgrowth.data.periods import PeriodAxis, PeriodError, parse_periods
 
-__all__ = ["GrowthSeries", "InputError", "read_series", "MIN_OBSERVATIONS"]
+__all__ = ["GrowthSeries", "InputError", "read_series", "MIN_OBSERVATIONS", "MAX_VALUE"]
 
 #: Fewest observations a growth curve is fitted to.
 MIN_OBSERVATIONS = 3
+
+#: Largest value accepted. Far above any business quantity, and far enough below the
+#: largest double (about 1.8e308) that forecast draws do not overflow to infinity.
+MAX_VALUE = 1e100
 
 
 class InputError(ValueError):
@@ -174,6 +178,12 @@ def _from_columns(
             raise InputError(
                 f"{_where(source, row, value_col)}: value {text} is not above zero; the growth "
                 "model works on the log scale and needs every value > 0"
+            )
+        if value > MAX_VALUE:
+            raise InputError(
+                f"{_where(source, row, value_col)}: value {text} is above {MAX_VALUE:g}, too "
+                "close to the largest number a computer holds to forecast from; express the "
+                "values in larger units (divide them all by the same power of ten)"
             )
         values.append(value)
     for label, row in zip(periods, rows, strict=True):
