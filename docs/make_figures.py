@@ -1,6 +1,8 @@
-"""Regenerate the figures of the guide pages from the bundled demo series.
+"""The fan chart and the least-squares comparison of the guide pages, from the demo series.
 
-Run ``python docs/make_figures.py``; every figure uses a fixed seed.
+Run ``python docs/make_images.py`` to regenerate every image; ``python docs/make_figures.py``
+redraws these two and prints the numbers that docs/comparison.md quotes. Exact engine,
+exponential curve, seed 1.
 """
 
 from pathlib import Path
@@ -12,29 +14,48 @@ import matplotlib.pyplot as plt  # noqa: E402
 
 import bayesgrowth as bg  # noqa: E402
 from bayesgrowth.comparison import compare_to_forecast  # noqa: E402
-from bayesgrowth.plots.compare import plot_comparison  # noqa: E402
+from bayesgrowth.forecast.forecast import forecast  # noqa: E402
+from bayesgrowth.inference import fit_series  # noqa: E402
+from bayesgrowth.plots.compare import comparison_figure  # noqa: E402
 
 IMAGES = Path(__file__).with_name("images")
+#: An invented budget figure for the demo's last forecast quarter (as in the examples).
+TARGET = 9000.0
+#: What the demo values measure (the invented company's quarterly revenue).
+UNIT = "Revenue"
+
+
+def demo_forecast():
+    """The demo's 8-quarter forecast: exponential curve, exact engine, seed 1."""
+    fit = fit_series(bg.load_demo(), engine="exact", seed=1, model="exponential")
+    return forecast(fit, 8)
+
+
+def fan_chart(images: Path = IMAGES, fc=None) -> list[str]:
+    """fan_chart.png: history, fitted curve, nested bands, the forecast start and a target."""
+    fc = fc or demo_forecast()
+    ax = bg.plot_fan(fc, unit=UNIT, target=TARGET)
+    ax.figure.savefig(images / "fan_chart.png", dpi=110)
+    plt.close(ax.figure)
+    return ["fan_chart.png"]
+
+
+def comparison(images: Path = IMAGES, fc=None):
+    """comparison.png: every least-squares curve beside the Bayesian band; returns the names."""
+    fc = fc or demo_forecast()
+    comp = compare_to_forecast(fc)
+    fig = comparison_figure(comp, unit=UNIT)
+    fig.savefig(images / "comparison.png", dpi=110)
+    plt.close(fig)
+    return ["comparison.png"], comp
 
 
 def main() -> None:
-    """Write every guide figure to docs/images/ and print the numbers quoted in the text."""
+    """Write both figures to docs/images/ and print the numbers quoted in the text."""
     IMAGES.mkdir(exist_ok=True)
-    series = bg.load_demo()
-    model = bg.GrowthModel(engine="exact", seed=1).fit(series)
-    fc = model.forecast(8)
-    ax = bg.plot_fan(fc, show_curve=True)
-    ax.figure.savefig(IMAGES / "fan_chart.png", dpi=110)
-    plt.close(ax.figure)
-
-    comp = compare_to_forecast(fc)
-    fig, ax = plt.subplots(figsize=(9, 5), layout="constrained")
-    all_t = list(series.t) + list(fc.t)
-    plot_comparison(series.t, series.values, comp.fits, fc.horizon, band=fc.table, ax=ax,
-                    period_labels=dict(zip(all_t, series.axis.labels(all_t), strict=True)))
-    ax.set_title("Demo series: least-squares point forecasts and the Bayesian band")
-    fig.savefig(IMAGES / "comparison.png", dpi=110)
-    plt.close(fig)
+    fc = demo_forecast()
+    fan_chart(IMAGES, fc)
+    _, comp = comparison(IMAGES, fc)
     cols = ["variant", "n_points", "growth_per_period", "value_at_horizon", "prob_at_least"]
     print(comp.table[cols].round(4).to_string(index=False))
     print(comp.spread)

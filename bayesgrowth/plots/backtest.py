@@ -7,16 +7,26 @@ import numpy as np
 from matplotlib.axes import Axes
 from matplotlib.figure import Figure
 
-from bayesgrowth.plots.calibration import OKABE_ITO, plot_coverage, plot_pit_histogram
-from bayesgrowth.plots.fan import DATA_COLOR, set_period_ticks
+from bayesgrowth.plots.calibration import plot_coverage, plot_pit_histogram
+from bayesgrowth.plots.style import (
+    BAND_SHADES,
+    FORECAST,
+    TARGET,
+    draw_history,
+    format_value_axis,
+    legend,
+    set_period_ticks,
+    style_axes,
+)
 
 __all__ = ["calibration_figure", "fans_figure", "plot_backtest_fans"]
 
 #: Colour of outcomes that fall outside their band (Okabe & Ito vermillion).
-MISS_COLOR = "#D55E00"
+MISS_COLOR = TARGET
 
 
-def plot_backtest_fans(result, method: str, level: int = 80, ax: Axes | None = None) -> Axes:
+def plot_backtest_fans(result, method: str, level: int = 80, ax: Axes | None = None,
+                       unit: str | None = None) -> Axes:
     """Draw the ``level``% band and median forecast from every origin over the actuals.
 
     Each origin's fan starts at its last training value. Outcomes outside
@@ -33,6 +43,8 @@ def plot_backtest_fans(result, method: str, level: int = 80, ax: Axes | None = N
         Band level; one of the backtest's levels.
     ax : matplotlib.axes.Axes, optional
         Axes to draw on; a new figure is made if omitted.
+    unit : str, optional
+        Y-axis label (default: the series' value column if known, else "Value").
 
     Returns
     -------
@@ -48,11 +60,11 @@ def plot_backtest_fans(result, method: str, level: int = 80, ax: Axes | None = N
     if level not in result.levels:
         raise ValueError(f"level {level} is not in the backtest's levels {list(result.levels)}")
     if ax is None:
-        _, ax = plt.subplots(figsize=(8, 4), layout="constrained")
+        _, ax = plt.subplots(figsize=(8.6, 4.2), layout="constrained")
+    style_axes(ax)
     series = result.series
     t_of = dict(zip(series.labels, series.t.tolist(), strict=True))
     y_of = dict(zip(series.labels, series.values.tolist(), strict=True))
-    colour = OKABE_ITO[3]
     rows = result.forecasts[result.forecasts["method"] == method]
     lo_col, hi_col = f"lower_{level}", f"upper_{level}"
     banded = False
@@ -63,27 +75,28 @@ def plot_backtest_fans(result, method: str, level: int = 80, ax: Axes | None = N
         if block[lo_col].notna().all():
             lo = np.concatenate([[start], block[lo_col].to_numpy()])
             hi = np.concatenate([[start], block[hi_col].to_numpy()])
-            ax.fill_between(x, lo, hi, color=colour, alpha=0.12, lw=0)
+            ax.fill_between(x, lo, hi, facecolor=BAND_SHADES[1], alpha=0.35,
+                            edgecolor=BAND_SHADES[0], linewidth=0.4, zorder=2)
             banded = True
-        ax.plot(x, med, color=colour, lw=0.9, alpha=0.7)
-    ax.plot(series.t, series.values, "o-", color=DATA_COLOR, ms=3, lw=1, label="actual", zorder=3)
+        ax.plot(x, med, color=FORECAST, lw=0.9, alpha=0.8, zorder=3)
+    draw_history(ax, series.t, series.values, label="Actual values")
     missed = rows[(rows["actual"] < rows[lo_col]) | (rows["actual"] > rows[hi_col])]
     if len(missed):
         ax.scatter([t_of[p] for p in missed["period"]], missed["actual"], s=60,
-                   facecolors="none", edgecolors=MISS_COLOR, linewidths=1.3, zorder=4,
-                   label=f"outside its {level}% band (from some origin)")
+                   facecolors="none", edgecolors=MISS_COLOR, linewidths=1.4, zorder=6,
+                   label=f"Outside its {level}% band (from some origin)")
     if banded:
-        ax.fill_between([], [], color=colour, alpha=0.3, label=f"{level}% band from each origin")
-    ax.plot([], [], color=colour, lw=0.9, label="median from each origin")
+        ax.fill_between([], [], facecolor=BAND_SHADES[1], alpha=0.6, edgecolor=BAND_SHADES[0],
+                        linewidth=0.4, label=f"{level}% band from each origin")
+    ax.plot([], [], color=FORECAST, lw=0.9, label="Median from each origin")
     set_period_ticks(ax, series.t, series.labels)
-    ax.set_ylabel("Value")
-    ax.set_title(f"{method}: forecasts from {rows['origin'].nunique()} origins")
-    ax.legend(loc="upper left", fontsize=8, frameon=False)
-    ax.grid(alpha=0.3)
+    format_value_axis(ax, unit, series)
+    ax.set_title(f"{method}: forecasts from {rows['origin'].nunique()} origins", fontsize=10)
+    legend(ax)
     return ax
 
 
-def fans_figure(result, level: int = 80) -> Figure:
+def fans_figure(result, level: int = 80, unit: str | None = None) -> Figure:
     """One panel of :func:`plot_backtest_fans` per method, sharing the axes.
 
     Parameters
@@ -91,17 +104,19 @@ def fans_figure(result, level: int = 80) -> Figure:
     result : BacktestResult
     level : int, default 80
         Band level shown.
+    unit : str, optional
+        Y-axis label (default: the series' value column if known, else "Value").
 
     Returns
     -------
     matplotlib.figure.Figure
     """
     k = len(result.methods)
-    fig, axes = plt.subplots(k, 1, figsize=(8, 3.2 * k), sharex=True, sharey=True,
+    fig, axes = plt.subplots(k, 1, figsize=(8.6, 3.2 * k), sharex=True, sharey=True,
                              layout="constrained", squeeze=False)
     for ax, method in zip(axes[:, 0], result.methods, strict=True):
-        plot_backtest_fans(result, method, level=level, ax=ax)
-    fig.suptitle(f"{result.series.name}: backtest forecasts ({level}% bands)")
+        plot_backtest_fans(result, method, level=level, ax=ax, unit=unit)
+    fig.suptitle(f"{result.series.name}: backtest forecasts ({level}% bands)", fontsize=11)
     return fig
 
 
@@ -139,5 +154,6 @@ def calibration_figure(result) -> Figure:
         ax.set_axis_off()
     n_origins = result.settings.get("n_origins")
     fig.suptitle(f"{result.series.name}: calibration over {n_origins} origins\n"
-                 "PIT histogram shapes: U = bands too narrow, hump = too wide, slope = bias")
+                 "PIT histogram shapes: U = bands too narrow, hump = too wide, slope = bias",
+                 fontsize=11)
     return fig

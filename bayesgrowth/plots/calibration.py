@@ -11,27 +11,32 @@ from matplotlib.axes import Axes
 from numpy.typing import ArrayLike
 from scipy import stats
 
+from bayesgrowth.plots.style import (
+    BAND_SHADES,
+    CATEGORICAL,
+    FORECAST,
+    GRID,
+    HISTORY,
+    MUTED,
+    legend,
+    style_axes,
+)
 from bayesgrowth.scoring.pit import pit_histogram
 from bayesgrowth.scoring.table import ALL_STEPS
 
 __all__ = ["OKABE_ITO", "plot_coverage", "plot_pit_histogram"]
 
-#: Okabe & Ito (2008) colour-blind-safe palette, black left out.
-OKABE_ITO = (
-    "#E69F00",
-    "#56B4E9",
-    "#009E73",
-    "#0072B2",
-    "#D55E00",
-    "#CC79A7",
-    "#F0E442",
-)
+#: Okabe & Ito (2008) colour-blind-safe palette in the package's order (see ``style``).
+OKABE_ITO = CATEGORICAL
+
+#: Marker of each method in the coverage plot, so methods differ in greyscale too.
+_MARKERS = ("o", "s", "D", "^", "v", "P")
 
 
-def _axes(ax: Axes | None) -> Axes:
+def _axes(ax: Axes | None, grid: str = "y") -> Axes:
     if ax is None:
-        _, ax = plt.subplots(figsize=(5.5, 4.5))
-    return ax
+        _, ax = plt.subplots(figsize=(5.5, 4.5), layout="constrained")
+    return style_axes(ax, grid=grid)
 
 
 def plot_coverage(
@@ -68,7 +73,7 @@ def plot_coverage(
     ValueError
         If no row has the given step or a coverage column is missing.
     """
-    ax = _axes(ax)
+    ax = _axes(ax, grid="both")
     rows = scores[scores["step"].astype(str) == str(step)]
     if rows.empty:
         raise ValueError(f"plot_coverage: no rows with step {step!r}")
@@ -90,13 +95,14 @@ def plot_coverage(
             nominal + dodge[i],
             cov,
             yerr=np.vstack([cov - low, high - cov]),
-            fmt="o",
+            fmt=_MARKERS[i % len(_MARKERS)],
             capsize=3,
+            markersize=5.5,
             color=OKABE_ITO[i % len(OKABE_ITO)],
             label=f"{method} (n={n})" if n is not None else str(method),
         )
     lo_lim = max(0.0, min(levs) - 15.0)
-    ax.plot([lo_lim, 100], [lo_lim, 100], linestyle="--", color="0.4", linewidth=1,
+    ax.plot([lo_lim, 100], [lo_lim, 100], linestyle="--", color=MUTED, linewidth=1,
             label="stated = observed")
     ax.set_xlim(lo_lim, 101)
     ax.set_ylim(min(lo_lim, ax.get_ylim()[0]), 102)
@@ -104,8 +110,8 @@ def plot_coverage(
     ax.set_xlabel("Stated band level (%)")
     ax.set_ylabel("Outcomes inside the band (%)")
     title_step = "all steps" if str(step) == ALL_STEPS else f"step {step}"
-    ax.set_title(f"Band coverage, {title_step} (bars: 95% binomial interval)")
-    ax.legend(loc="best", frameon=False)
+    ax.set_title(f"Band coverage, {title_step} (bars: 95% binomial interval)", fontsize=10)
+    legend(ax, loc="best")
     return ax
 
 
@@ -143,16 +149,16 @@ def plot_pit_histogram(
     counts = pit_histogram(pit_values, bins=bins)
     n = int(counts.sum())
     edges = np.linspace(0.0, 1.0, bins + 1)
-    ax.bar(edges[:-1], counts, width=1.0 / bins, align="edge", color=OKABE_ITO[1],
-           edgecolor="white", label="forecasts", zorder=2)
+    ax.bar(edges[:-1], counts, width=1.0 / bins, align="edge", color=BAND_SHADES[0],
+           edgecolor=FORECAST, linewidth=0.6, label="forecasts", zorder=2)
     if n:
         p = 1.0 / bins
         lo, hi = stats.binom.ppf([0.025, 0.975], n, p)
-        ax.axhspan(lo, hi, color="0.85", linewidth=0, zorder=1, label="95% range if calibrated")
+        ax.axhspan(lo, hi, color=GRID, linewidth=0, zorder=1, label="95% range if calibrated")
         for bound in (lo, hi):
-            ax.axhline(bound, color="0.35", linestyle=":", linewidth=1, zorder=3)
+            ax.axhline(bound, color=MUTED, linestyle=":", linewidth=1, zorder=3)
         ax.axhline(
-            n * p, color="black", linestyle="--", linewidth=1, zorder=3,
+            n * p, color=HISTORY, linestyle="--", linewidth=1, zorder=3,
             label="expected if calibrated",
         )
         ax.set_ylim(0, 1.3 * max(hi, counts.max()))
@@ -160,6 +166,6 @@ def plot_pit_histogram(
     ax.set_xlabel("PIT value (share of the forecast below the outcome)")
     ax.set_ylabel("Number of forecasts")
     title = "PIT histogram" + (f": {label}" if label else "") + f" (n={n})"
-    ax.set_title(title)
-    ax.legend(loc="upper center", frameon=False, fontsize="small")
+    ax.set_title(title, fontsize=10)
+    legend(ax, loc="upper center", frameon=False)
     return ax

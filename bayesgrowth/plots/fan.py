@@ -1,34 +1,116 @@
-"""Fan chart: observed values, shaded credible bands, median, history/forecast boundary."""
+"""Fan chart: the history, the fitted curve, nested credible bands, the median and a target."""
 
 from __future__ import annotations
 
 import numpy as np
+from matplotlib.axes import Axes
 
-__all__ = ["plot_fan", "BAND_COLOR", "DATA_COLOR", "set_period_ticks"]
+from bayesgrowth.plots.style import (
+    BAND_SHADES,
+    FORECAST,
+    HISTORY,
+    draw_history,
+    draw_nested_bands,
+    draw_target,
+    format_value_axis,
+    legend_in_reading_order,
+    mark_forecast_start,
+    set_period_ticks,
+    style_axes,
+)
+from bayesgrowth.report.words import fmt_number, fmt_probability
 
-#: Okabe & Ito (2008) colour-blind-safe palette: blue for bands, black for data.
-BAND_COLOR = "#0072B2"
-DATA_COLOR = "#000000"
+__all__ = ["BAND_COLOR", "DATA_COLOR", "describe_model", "fitted_curve", "plot_fan",
+           "set_period_ticks"]
+
+#: The forecast hue and the history colour (kept as names other charts import).
+BAND_COLOR = FORECAST
+DATA_COLOR = HISTORY
 
 
-def set_period_ticks(ax, t: np.ndarray, labels: list[str], max_ticks: int = 10) -> None:
-    """Label the x axis with period labels, thinned to at most ``max_ticks``."""
-    step = max(1, int(np.ceil(len(t) / max_ticks)))
-    ax.set_xticks(t[::step])
-    ax.set_xticklabels(labels[::step], rotation=45, ha="right")
+def describe_model(forecast) -> str:
+    """The model in words for a chart title, e.g. "exponential curve, normal noise".
+
+    A forecast whose ``fit`` has no model specification (an average of models)
+    is described by its ``fit.engine`` text instead.
+    """
+    spec = getattr(forecast.fit, "spec", None)
+    if spec is None or not hasattr(spec, "label"):
+        return str(getattr(forecast.fit, "engine", "forecast"))
+    parts = spec.label().split(", ")
+    if parts[0] in ("exponential", "damped", "logistic", "gompertz"):
+        parts[0] = f"{parts[0]} growth curve"
+    return ", ".join(parts)
 
 
-def plot_fan(forecast, ax=None, *, show_curve=False, title: str | None = None):
+def fitted_curve(forecast) -> np.ndarray | None:
+    """Draws of the fitted curve at the observed periods, shape ``(n_draws, n_obs)``.
+
+    ``None`` when the forecast has no single fitted curve to show (an average of
+    models, or the local trend, whose path over the history is integrated out).
+    """
+    fit = forecast.fit
+    spec = getattr(fit, "spec", None)
+    if spec is None or getattr(spec, "model", None) == "local-trend":
+        return None
+    from bayesgrowth.models import exponential, general
+
+    series, params, t_ref = fit.series, fit.flat(), fit.priors.t_ref
+    if spec.is_plain_exponential:
+        log_curve = exponential.log_mean(params, series.t, t_ref)
+    else:
+        log_curve = general.log_trend(spec, params, series.t, t_ref, series.axis)
+    return np.exp(log_curve)
+
+
+def _probability_at_least(forecast, target: float) -> float:
+    """Probability of a value of at least ``target`` in the last forecast period."""
+    if hasattr(forecast, "prob_exceeds"):
+        return float(forecast.prob_exceeds(target).iloc[-1])
+    return float(np.mean(np.asarray(forecast.draws)[:, -1] >= target))
+
+
+def _title(forecast) -> str:
+    return f"{forecast.fit.series.name}\nForecast: {describe_model(forecast)}"
+
+
+def _draw_fit(ax: Axes, forecast, level: int) -> None:
+    curve = fitted_curve(forecast)
+    if curve is None:
+        return
+    t_obs = forecast.fit.series.t
+    lo, hi = np.quantile(curve, [(100 - level) / 200, 1 - (100 - level) / 200], axis=0)
+    ax.fill_between(t_obs, lo, hi, facecolor=BAND_SHADES[-1], edgecolor="none", zorder=1.8,
+                    label=f"Fitted curve, {level}% band")
+    ax.plot(t_obs, np.median(curve, axis=0), color=FORECAST, linewidth=1.0,
+            linestyle=(0, (4, 2)), zorder=3, label="Fitted curve (median)")
+
+
+def plot_fan(forecast, ax: Axes | None = None, *, show_curve: bool = False,
+             show_fit: bool = True, title: str | None = None, unit: str | None = None,
+             target: float | None = None) -> Axes:
     """Draw a fan chart of a :class:`~bayesgrowth.forecast.Forecast`.
 
     Parameters
     ----------
     forecast : Forecast
+        Or an averaged forecast (anything with ``fit.series``, ``table``,
+        ``levels``, ``t`` and ``periods``).
     ax : matplotlib.axes.Axes, optional
         Axes to draw on; a new figure is made when omitted.
-    show_curve : bool
-        Also draw the 95% band of the mean curve alone (parameter uncertainty).
+    show_curve : bool, default False
+        Also draw the widest band of the mean curve alone over the forecast
+        (parameter uncertainty, without the period-to-period noise).
+    show_fit : bool, default True
+        Draw the fitted curve over the history with its widest credible band.
     title : str, optional
+        Default: the series name and the model's description.
+    unit : str, optional
+        Y-axis label, e.g. "Revenue (EUR thousand)"; default the value column's
+        name if the series knows it, else "Value".
+    target : float, optional
+        A budget or guidance value, drawn as a line labelled with the
+        probability of reaching it by the last forecast period.
 
     Returns
     -------
@@ -37,38 +119,41 @@ def plot_fan(forecast, ax=None, *, show_curve=False, title: str | None = None):
     import matplotlib.pyplot as plt
 
     if ax is None:
-        _, ax = plt.subplots(figsize=(8, 4.5), layout="constrained")
+        _, ax = plt.subplots(figsize=(8.6, 4.8), layout="constrained")
+    style_axes(ax)
     series = forecast.fit.series
     table = forecast.table
     t_obs, y_obs = series.t, series.values
-    t_f = forecast.t
+    top = max(forecast.levels)
     # Bands start at the last observation so the fan joins the history.
-    x = np.concatenate([[t_obs[-1]], t_f])
-    levels = sorted(forecast.levels, reverse=True)
-    for i, level in enumerate(levels):
-        lo = np.concatenate([[y_obs[-1]], table[f"lower_{level}"]])
-        hi = np.concatenate([[y_obs[-1]], table[f"upper_{level}"]])
-        alpha = 0.18 + 0.22 * i
-        ax.fill_between(x, lo, hi, color=BAND_COLOR, alpha=alpha, lw=0,
-                        label=f"{level}% credible band")
-    ax.plot(x, np.concatenate([[y_obs[-1]], table["median"]]), color=BAND_COLOR, lw=2,
-            label="forecast median")
+    x = np.concatenate([[t_obs[-1]], forecast.t])
+
+    def joined(col):
+        return np.concatenate([[y_obs[-1]], table[col].to_numpy(dtype=float)])
+
+    draw_nested_bands(ax, x, [(lv, joined(f"lower_{lv}"), joined(f"upper_{lv}"))
+                              for lv in forecast.levels])
+    ax.plot(x, joined("median"), color=FORECAST, linewidth=2.2, zorder=4,
+            label="Forecast (median)")
     if show_curve:
-        top = max(forecast.levels)
-        ax.plot(t_f, table[f"curve_lower_{top}"], color=BAND_COLOR, ls=":", lw=1,
-                label=f"{top}% band of the trend curve")
-        ax.plot(t_f, table[f"curve_upper_{top}"], color=BAND_COLOR, ls=":", lw=1)
-    ax.plot(t_obs, y_obs, "o-", color=DATA_COLOR, ms=4, lw=1, label="observed")
-    ax.axvline(t_obs[-1] + 0.5, color="0.4", ls="--", lw=1)
-    ymax = ax.get_ylim()[1]
-    ax.text(t_obs[-1] + 0.6, ymax, " forecast", va="top", ha="left", color="0.3", fontsize=9)
-    ax.text(t_obs[-1] + 0.4, ymax, "history ", va="top", ha="right", color="0.3", fontsize=9)
-    all_t = np.concatenate([t_obs, t_f])
+        ax.plot(forecast.t, table[f"curve_lower_{top}"], color=FORECAST, linestyle=":",
+                linewidth=1.1, zorder=4, label=f"Trend curve alone, {top}% band")
+        ax.plot(forecast.t, table[f"curve_upper_{top}"], color=FORECAST, linestyle=":",
+                linewidth=1.1, zorder=4)
+    if show_fit:
+        _draw_fit(ax, forecast, top)
+    draw_history(ax, t_obs, y_obs)
+    if target is not None:
+        p_last = _probability_at_least(forecast, target)
+        draw_target(ax, target, f"Target {fmt_number(target)}: {fmt_probability(p_last)} "
+                                f"chance of reaching it by {forecast.periods[-1]}")
+    all_t = np.concatenate([t_obs, forecast.t])
     set_period_ticks(ax, all_t, series.axis.labels(all_t))
-    ax.set_ylabel("Value")
-    ax.set_xlabel("Period")
     ax.set_ylim(bottom=0)
-    ax.set_title(title or f"{series.name}: forecast with credible bands ({forecast.fit.engine})")
-    ax.legend(loc="upper left", fontsize=8, frameon=False)
-    ax.grid(alpha=0.3)
+    mark_forecast_start(ax, t_obs[-1] + 0.5)
+    format_value_axis(ax, unit, series)
+    ax.set_xlabel(f"Period ({series.axis.frequency})" if series.axis.frequency != "per period"
+                  else "Period")
+    ax.set_title(title or _title(forecast), fontsize=11)
+    legend_in_reading_order(ax)
     return ax

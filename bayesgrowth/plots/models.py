@@ -4,23 +4,34 @@ from __future__ import annotations
 
 import numpy as np
 
-from bayesgrowth.plots.fan import BAND_COLOR, DATA_COLOR, set_period_ticks
+from bayesgrowth.plots.style import (
+    BAND_SHADES,
+    CATEGORICAL,
+    FORECAST,
+    HISTORY,
+    ValueFormatter,
+    draw_history,
+    draw_nested_bands,
+    format_value_axis,
+    legend,
+    legend_in_reading_order,
+    mark_forecast_start,
+    set_period_ticks,
+    style_axes,
+)
 
 __all__ = ["MODEL_COLORS", "plot_model_bands", "plot_prior_predictive", "plot_sensitivity"]
 
-#: Okabe & Ito (2008) colours for the individual models (blue is kept for the average).
-MODEL_COLORS = ("#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9", "#F0E442")
+#: Okabe & Ito (2008) colours for the individual models (the teal is kept for the average).
+MODEL_COLORS = CATEGORICAL
 
-
-def _boundary(ax, t_last: float) -> None:
-    ax.axvline(t_last + 0.5, color="0.4", ls="--", lw=1)
-    top = ax.get_ylim()[1]
-    ax.text(t_last + 0.6, top, " forecast", va="top", ha="left", color="0.3", fontsize=9)
-    ax.text(t_last + 0.4, top, "history ", va="top", ha="right", color="0.3", fontsize=9)
+#: Line style of each model, so models differ in greyscale too.
+MODEL_DASHES = ("-", (0, (5, 1.5)), (0, (1.5, 1.5)), (0, (6, 1.5, 1.5, 1.5)), (0, (3, 3)), "-")
 
 
 def plot_model_bands(forecasts, averaged=None, *, weights=None, level: int = 80,
-                     history: int | None = 12, ax=None, title: str | None = None):
+                     history: int | None = 12, ax=None, title: str | None = None,
+                     unit: str | None = None):
     """Overlay each model's forecast band and the model-averaged band.
 
     Parameters
@@ -28,7 +39,7 @@ def plot_model_bands(forecasts, averaged=None, *, weights=None, level: int = 80,
     forecasts : mapping of str to Forecast
         Forecasts of the same series and periods, keyed by model name.
     averaged : AveragedForecast, optional
-        Drawn as a filled blue band with its median.
+        Drawn as a filled band (the forecast hue) with its median.
     weights : mapping of str to float, optional
         Shown in the legend (default ``averaged.weights`` when given).
     level : int
@@ -38,6 +49,8 @@ def plot_model_bands(forecasts, averaged=None, *, weights=None, level: int = 80,
         bands get the room; ``None`` shows the whole history.
     ax : matplotlib.axes.Axes, optional
     title : str, optional
+    unit : str, optional
+        Y-axis label (default: the series' value column if known, else "Value").
 
     Returns
     -------
@@ -49,6 +62,7 @@ def plot_model_bands(forecasts, averaged=None, *, weights=None, level: int = 80,
         raise ValueError("give at least one forecast to plot")
     if ax is None:
         _, ax = plt.subplots(figsize=(9, 5), layout="constrained")
+    style_axes(ax)
     first = next(iter(forecasts.values()))
     series = first.fit.series
     if level not in first.levels:
@@ -67,31 +81,35 @@ def plot_model_bands(forecasts, averaged=None, *, weights=None, level: int = 80,
 
     if averaged is not None:
         tab = averaged.table
-        ax.fill_between(x, joined(f"lower_{level}", tab), joined(f"upper_{level}", tab),
-                        color=BAND_COLOR, alpha=0.22, lw=0,
-                        label=f"model average: {level}% band")
-        ax.plot(x, joined("median", tab), color=BAND_COLOR, lw=2.5, label="model average: median")
+        draw_nested_bands(ax, x, [(level, joined(f"lower_{level}", tab),
+                                   joined(f"upper_{level}", tab))],
+                          label="Model average: {level}% band")
+        ax.plot(x, joined("median", tab), color=FORECAST, lw=2.6, zorder=4,
+                label="Model average: median")
     for i, (name, fc) in enumerate(forecasts.items()):
         color = MODEL_COLORS[i % len(MODEL_COLORS)]
+        dash = MODEL_DASHES[i % len(MODEL_DASHES)]
         tab = fc.table
         share = "" if weights is None else f" (weight {weights.get(name, 0.0):.2f})"
-        ax.plot(x, joined("median", tab), color=color, lw=1.5, label=f"{name}{share}")
+        ax.plot(x, joined("median", tab), color=color, lw=1.6, ls=dash, zorder=5,
+                label=f"{name}{share}: median")
         for col in (f"lower_{level}", f"upper_{level}"):
-            ax.plot(x, joined(col, tab), color=color, lw=1, ls="--")
-    ax.plot([], [], color="0.3", lw=1, ls="--", label=f"dashed: each model's {level}% band")
-    ax.plot(t_obs, y_obs, "o-", color=DATA_COLOR, ms=4, lw=1, label="observed")
+            ax.plot(x, joined(col, tab), color=color, lw=0.8, ls=dash, alpha=0.8, zorder=5)
+    ax.plot([], [], color=HISTORY, lw=0.8, label=f"thin lines: each model's {level}% band")
+    draw_history(ax, t_obs, y_obs)
     all_t = np.arange(t_obs[0], first.t[-1] + 1)
     set_period_ticks(ax, all_t, series.axis.labels(all_t))
-    _boundary(ax, t_obs[-1])
+    mark_forecast_start(ax, t_obs[-1] + 0.5)
     ax.set_xlabel("Period")
-    ax.set_ylabel("Value")
-    ax.set_title(title or f"{series.name}: each model's forecast and the stacking average")
-    ax.legend(loc="upper left", fontsize=8, frameon=False)
-    ax.grid(alpha=0.3)
+    format_value_axis(ax, unit, series)
+    ax.set_title(title or f"{series.name}\nEach model's forecast and their stacking average",
+                 fontsize=11)
+    legend(ax)
     return ax
 
 
-def plot_prior_predictive(prior, ax=None, *, log_scale: bool = True, title: str | None = None):
+def plot_prior_predictive(prior, ax=None, *, log_scale: bool = True, title: str | None = None,
+                          unit: str | None = None):
     """Fan chart of a :class:`~bayesgrowth.forecast.prior.PriorPredictive` with the data.
 
     Parameters
@@ -101,6 +119,8 @@ def plot_prior_predictive(prior, ax=None, *, log_scale: bool = True, title: str 
     log_scale : bool
         Logarithmic value axis (prior bands usually span orders of magnitude).
     title : str, optional
+    unit : str, optional
+        Y-axis label (default: the series' value column if known, else "Value").
 
     Returns
     -------
@@ -110,16 +130,16 @@ def plot_prior_predictive(prior, ax=None, *, log_scale: bool = True, title: str 
 
     if ax is None:
         _, ax = plt.subplots(figsize=(9, 5), layout="constrained")
+    style_axes(ax)
     tab = prior.table
     t = prior.t
     levels = sorted(prior.levels, reverse=True)
-    for i, level in enumerate(levels):
-        ax.fill_between(t, tab[f"lower_{level}"], tab[f"upper_{level}"], color=BAND_COLOR,
-                        alpha=0.15 + 0.2 * i, lw=0, label=f"{level}% prior predictive band")
-    ax.plot(t, tab["median"], color=BAND_COLOR, lw=2, label="prior predictive median")
+    draw_nested_bands(ax, t, [(lv, tab[f"lower_{lv}"].to_numpy(dtype=float),
+                               tab[f"upper_{lv}"].to_numpy(dtype=float)) for lv in levels],
+                      label="{level}% prior predictive band")
+    ax.plot(t, tab["median"], color=FORECAST, lw=2, zorder=4, label="Prior predictive median")
     series = prior.series
-    ax.plot(series.t, series.values, "o", color=DATA_COLOR, ms=4,
-            label="observed (not used by the priors' draws)")
+    draw_history(ax, series.t, series.values, label="Observed (not used by the priors' draws)")
     if log_scale:
         ax.set_yscale("log")
         top = max(levels)
@@ -131,12 +151,14 @@ def plot_prior_predictive(prior, ax=None, *, log_scale: bool = True, title: str 
         ax.set_ylim(bottom=0)
     set_period_ticks(ax, t, prior.periods)
     if prior.horizon:
-        _boundary(ax, series.t_last)
+        mark_forecast_start(ax, series.t_last + 0.5)
     ax.set_xlabel("Period")
-    ax.set_ylabel("Value" + (" (log scale)" if log_scale else ""))
-    ax.set_title(title or f"What the priors imply before fitting: {prior.spec.label()}")
-    ax.legend(loc="upper left", fontsize=8, frameon=False)
-    ax.grid(alpha=0.3, which="both" if log_scale else "major")
+    format_value_axis(ax, unit, series)
+    if log_scale:
+        ax.set_ylabel(f"{ax.get_ylabel()} (log scale)")
+    ax.set_title(title or f"{series.name}\nWhat the priors imply before fitting: "
+                 f"{prior.spec.label()}", fontsize=11)
+    legend_in_reading_order(ax)
     return ax
 
 
@@ -170,29 +192,35 @@ def plot_sensitivity(result, axes=None, *, title: str | None = None):
     lev = result.level
     base = tab[tab["is_base"]].iloc[0]
     for ax, factor in zip(axes, factors, strict=True):
-        rows = tab[tab["factor"] == factor].reset_index(drop=True)
-        x = np.arange(len(rows))
-        ax.axhspan(base[f"lower_{lev}"], base[f"upper_{lev}"], color=BAND_COLOR, alpha=0.12,
-                   lw=0, label=f"base setting: {lev}% band")
-        ax.axhline(base["median"], color=BAND_COLOR, lw=1, ls=":")
-        err = np.vstack([rows["median"] - rows[f"lower_{lev}"],
-                         rows[f"upper_{lev}"] - rows["median"]])
-        ax.errorbar(x, rows["median"], yerr=err, fmt="none", ecolor=DATA_COLOR, capsize=4, lw=1.2)
-        for xi, row in zip(x, rows.itertuples(), strict=True):
-            face = DATA_COLOR if row.is_base else "white"
-            marker = "o" if row.diagnostics_ok else "X"
-            ax.plot(xi, row.median, marker, mfc=face, mec=DATA_COLOR, ms=7, zorder=3)
-        ax.set_xticks(x)
-        ax.set_xticklabels(rows["setting"], rotation=35, ha="right", fontsize=8)
-        ax.set_xlim(-0.6, len(rows) - 0.4)
+        _sensitivity_panel(ax, tab[tab["factor"] == factor].reset_index(drop=True), base, lev)
         ax.set_title(factor, fontsize=10)
-        ax.grid(alpha=0.3, axis="y")
     axes[0].set_ylabel(f"Value in {result.period}: median and {lev}% band")
-    axes[0].plot([], [], "o", mfc=DATA_COLOR, mec=DATA_COLOR, label="base setting")
-    axes[0].plot([], [], "o", mfc="white", mec=DATA_COLOR, label="other settings")
+    axes[0].plot([], [], "o", mfc=HISTORY, mec=HISTORY, label="base setting")
+    axes[0].plot([], [], "o", mfc="white", mec=HISTORY, label="other settings")
     if not tab["diagnostics_ok"].all():
-        axes[0].plot([], [], "X", mfc="white", mec=DATA_COLOR, label="sampling diagnostics failed")
-    axes[0].legend(loc="best", fontsize=7, frameon=False)
+        axes[0].plot([], [], "X", mfc="white", mec=HISTORY, label="sampling diagnostics failed")
+    legend(axes[0], loc="best", fontsize=7.5)
     fig.suptitle(title or f"{result.series_name}: prior sensitivity of the forecast for "
                  f"{result.period} ({result.model})", fontsize=11)
     return axes
+
+
+def _sensitivity_panel(ax, rows, base, lev: int) -> None:
+    """One factor: the base setting's band behind, each setting's median and band in front."""
+    style_axes(ax)
+    x = np.arange(len(rows))
+    ax.axhspan(base[f"lower_{lev}"], base[f"upper_{lev}"], facecolor=BAND_SHADES[2],
+               edgecolor=BAND_SHADES[1], lw=0.6, zorder=1, label=f"base setting: {lev}% band")
+    ax.axhline(base["median"], color=FORECAST, lw=1, ls=":", zorder=1.5)
+    err = np.vstack([rows["median"] - rows[f"lower_{lev}"],
+                     rows[f"upper_{lev}"] - rows["median"]])
+    ax.errorbar(x, rows["median"], yerr=err, fmt="none", ecolor=HISTORY, capsize=4, lw=1.2,
+                zorder=2)
+    for xi, row in zip(x, rows.itertuples(), strict=True):
+        face = HISTORY if row.is_base else "white"
+        marker = "o" if row.diagnostics_ok else "X"
+        ax.plot(xi, row.median, marker, mfc=face, mec=HISTORY, ms=7, zorder=3)
+    ax.set_xticks(x)
+    ax.set_xticklabels(rows["setting"], rotation=35, ha="right", fontsize=8)
+    ax.set_xlim(-0.6, len(rows) - 0.4)
+    ax.yaxis.set_major_formatter(ValueFormatter())

@@ -45,6 +45,7 @@ def build_report(
     command: str | None = None,
     fit_options: dict | None = None,
     timestamp: str | None = None,
+    unit: str | None = None,
 ) -> str:
     """Fit, forecast, compare, backtest and render one self-contained HTML page.
 
@@ -73,6 +74,9 @@ def build_report(
         Further options for :func:`bayesgrowth.inference.fit_series`.
     timestamp : str, optional
         Override the time stamp (for reproducibility tests).
+    unit : str, optional
+        What the values measure, e.g. "Revenue (EUR thousand)": the charts' value axis
+        and the forecast table's heading (default "Value" on the charts).
 
     Returns
     -------
@@ -92,7 +96,7 @@ def build_report(
 
     fit = fit_series(series, engine=engine, priors=priors, seed=seed, **(fit_options or {}))
     fc = forecast(fit, horizon, levels=levels)
-    ax = plot_fan(fc)
+    ax = plot_fan(fc, unit=unit, target=target)
     parts = ReportParts(
         forecast=fc,
         fan_chart=figure_data_uri(ax.figure),
@@ -101,6 +105,7 @@ def build_report(
         target_probability=target_probability,
         models=models,
         models_note=models_note,
+        unit=unit,
     )
     if timestamp is not None:
         parts.timestamp = timestamp
@@ -110,7 +115,7 @@ def build_report(
         comp = None
     if comp is not None:
         parts.comparison = comp
-        parts.comparison_chart = figure_data_uri(comparison_figure(comp))
+        parts.comparison_chart = figure_data_uri(comparison_figure(comp, unit=unit))
     settings = backtest_settings_for(series.n, horizon) if with_backtest else None
     if settings is not None:
         from bayesgrowth.backtest import backtest

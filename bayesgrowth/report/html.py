@@ -19,6 +19,14 @@ import pandas as pd
 
 from bayesgrowth._version import __version__
 from bayesgrowth.forecast.forecast import CAUTION, Forecast
+from bayesgrowth.report.words import (
+    band_phrases,
+    fmt_number,
+    fmt_percent,
+    fmt_probability,
+    per_period,
+    period_noun,
+)
 
 __all__ = ["ReportParts", "render_report", "SECTIONS"]
 
@@ -37,24 +45,33 @@ SECTIONS = (
 )
 
 _STYLE = """
-body { font-family: system-ui, -apple-system, "Segoe UI", Roboto, sans-serif; color: #111;
-       max-width: 60rem; margin: 0 auto; padding: 1rem 1.25rem 3rem; line-height: 1.45; }
-h1 { font-size: 1.6rem; margin-bottom: .2rem; }
-h2 { font-size: 1.2rem; border-bottom: 1px solid #999; padding-bottom: .2rem; margin-top: 2rem; }
-.sub { color: #444; margin-top: 0; }
-.headline { font-size: 1.1rem; background: #f3f3f3; border-left: 6px solid #0072B2;
-            padding: .6rem 1rem; }
-.warn { border-left: 6px solid #D55E00; background: #fbeee6; padding: .5rem 1rem; }
-.ok { border-left: 6px solid #009E73; background: #e9f6f1; padding: .5rem 1rem; }
+:root { --ink: #23272F; --muted: #5B616B; --teal: #0E4F4C; --teal-2: #4E9E95;
+        --teal-3: #C4E2DD; --teal-4: #EEF7F5; --rule: #E2E5E9; --warn: #D55E00; }
+body { font-family: system-ui, -apple-system, "Segoe UI", Roboto, sans-serif; color: var(--ink);
+       max-width: 60rem; margin: 0 auto; padding: 0 1.25rem 3rem; line-height: 1.5;
+       font-variant-numeric: tabular-nums; }
+header { border-top: 8px solid var(--teal); padding-top: 1.1rem; margin-bottom: 1.2rem; }
+h1 { font-family: Georgia, "Times New Roman", serif; font-weight: normal; font-size: 1.85rem;
+     color: var(--teal); margin: 0 0 .25rem; }
+h2 { font-size: .8rem; text-transform: uppercase; letter-spacing: .12em; color: var(--teal);
+     border-top: 1px solid var(--teal-3); padding-top: .6rem; margin: 2.2rem 0 .6rem; }
+.sub { color: var(--muted); margin: 0; font-size: .95rem; }
+.headline { font-size: 1.12rem; background: var(--teal-4); border: 1px solid var(--teal-3);
+            border-radius: 6px; padding: .8rem 1.1rem; }
+.headline strong { color: var(--teal); }
+.warn { border-left: 4px solid var(--warn); background: #FDF1EA; padding: .5rem 1rem; }
+.ok { border-left: 4px solid var(--teal-2); background: var(--teal-4); padding: .5rem 1rem; }
 figure { margin: 1rem 0; }
-figure img { max-width: 100%; height: auto; border: 1px solid #ddd; }
-figcaption { font-size: .9rem; color: #333; }
+figure img { max-width: 100%; height: auto; }
+figcaption { font-size: .88rem; color: var(--muted); border-left: 2px solid var(--teal-3);
+             padding-left: .6rem; }
 .table-wrap { max-width: 100%; overflow-x: auto; }
-table { border-collapse: collapse; font-size: .85rem; margin: .5rem 0; }
-th, td { border: 1px solid #bbb; padding: .2rem .45rem; text-align: right; }
-th { background: #e8e8e8; }
+table { border-collapse: collapse; font-size: .86rem; margin: .5rem 0; }
+th, td { border-bottom: 1px solid var(--rule); padding: .25rem .6rem; text-align: right; }
+th { border-bottom: 2px solid var(--teal); font-weight: 600; vertical-align: bottom; }
+tbody tr:nth-child(even) { background: #F7F9FA; }
 td:first-child, th:first-child { text-align: left; }
-code { background: #f3f3f3; padding: 0 .2rem; }
+code { background: var(--teal-4); padding: 0 .2rem; }
 @media print { body { max-width: none; font-size: 10pt; } h2 { break-after: avoid; }
                figure, table { break-inside: avoid; } .table-wrap { overflow: visible; } }
 """
@@ -76,10 +93,12 @@ def figure_data_uri(fig) -> str:
 
 
 def _num(v) -> str:
+    if isinstance(v, bool):
+        return _e(v)
     if v is None or (isinstance(v, float) and not math.isfinite(v)):
         return "–"
     if isinstance(v, int | float):
-        return f"{v:,.0f}" if abs(v) >= 1000 else f"{v:,.4g}"
+        return fmt_number(v)
     return _e(v)
 
 
@@ -98,7 +117,7 @@ def _table(frame: pd.DataFrame, formats: dict | None = None) -> str:
 
 
 def _pct(v) -> str:
-    return "–" if v is None or not math.isfinite(float(v)) else f"{100 * float(v):.1f}%"
+    return fmt_percent(v)
 
 
 @dataclass
@@ -119,6 +138,8 @@ class ReportParts:
         A :class:`~bayesgrowth.backtest.BacktestResult` and ``calibration_chart`` URI.
     models : pandas.DataFrame, optional
         A model comparison table, shown when several models were fitted.
+    unit : str, optional
+        What the values measure, e.g. "Revenue (EUR thousand)"; named above the tables.
     timestamp : str
         When the report was made (the only part that changes between runs).
     """
@@ -134,6 +155,7 @@ class ReportParts:
     calibration_chart: str | None = None
     models: pd.DataFrame | None = None
     models_note: str | None = None
+    unit: str | None = None
     timestamp: str = field(
         default_factory=lambda: datetime.now(UTC).strftime("%Y-%m-%d %H:%M UTC")
     )
@@ -141,24 +163,23 @@ class ReportParts:
 
 def _headline(p: ReportParts, summary: dict) -> str:
     fin = summary["final_period"]
+    axis = p.forecast.fit.series.axis
+    bands = band_phrases(fin, summary["levels"])
     parts = [
-        f"Expected value in <strong>{_e(fin['period'])}</strong>: <strong>"
-        f"{_num(fin['median'])}</strong> (median), 80% credible band "
-        f"<strong>{_num(fin.get('lower_80'))} to {_num(fin.get('upper_80'))}</strong>."
+        f"Median forecast for <strong>{_e(fin['period'])}</strong>: <strong>"
+        f"{fmt_number(fin['median'])}</strong>"
+        + (f"; {_e('; '.join(bands))}." if bands else ".")
     ]
-    gy = summary.get("growth_per_year")
-    gp = summary["growth_per_period"]
-    if gy:
-        parts.append(f"Growth per year {_pct(gy['median'])} (95% interval {_pct(gy['lower_95'])} "
-                     f"to {_pct(gy['upper_95'])}).")
-    else:
-        parts.append(f"Growth per period {_pct(gp['median'])} (95% interval "
-                     f"{_pct(gp['lower_95'])} to {_pct(gp['upper_95'])}).")
+    g, gy = summary["growth_per_period"], summary.get("growth_per_year")
+    parts.append(f"Growth {per_period(axis)} <strong>{_pct(g['median'])}</strong> (95% interval "
+                 f"{_pct(g['lower_95'])} to {_pct(g['upper_95'])})"
+                 + (f", per year {_pct(gy['median'])} (95% interval {_pct(gy['lower_95'])} to "
+                    f"{_pct(gy['upper_95'])})." if gy and period_noun(axis) != "year" else "."))
     if "target" in summary:
         tg = summary["target"]
         p_last = tg["probability_at_least_by_period"][fin["period"]]
-        parts.append(f"Probability of reaching {_num(tg['value'])} by {_e(fin['period'])}: "
-                     f"<strong>{p_last:.0%}</strong>.")
+        parts.append(f"Probability of reaching {fmt_number(tg['value'])} by "
+                     f"{_e(fin['period'])}: <strong>{fmt_probability(p_last)}</strong>.")
     out = '<p class="headline">' + " ".join(parts) + "</p>"
     if p.backtest is not None:
         verdict = p.backtest.verdicts().get(summary["engine"])
@@ -171,15 +192,33 @@ def _headline(p: ReportParts, summary: dict) -> str:
 
 def _forecast_table(fc: Forecast) -> str:
     tab = fc.table
+    ahead = f"{period_noun(fc.fit.series.axis).capitalize()}s ahead"
     cols = ["period", "step", "median"]
     for level in fc.levels:
         cols += [f"lower_{level}", f"upper_{level}"]
     shown = tab[cols].rename(columns={
-        "period": "Period", "step": "Periods ahead", "median": "Median",
+        "period": "Period", "step": ahead, "median": "Median",
         **{f"lower_{lv}": f"{lv}% band, low" for lv in fc.levels},
         **{f"upper_{lv}": f"{lv}% band, high" for lv in fc.levels},
     })
-    return _table(shown, {"Periods ahead": lambda v: str(int(v))})
+    down = {f"{lv}% band, low": lambda v: fmt_number(v, direction="down") for lv in fc.levels}
+    up = {f"{lv}% band, high": lambda v: fmt_number(v, direction="up") for lv in fc.levels}
+    return _table(shown, {ahead: lambda v: str(int(v)), **down, **up})
+
+
+def _fan_caption(p: ReportParts) -> str:
+    spec = getattr(p.forecast.fit, "spec", None)
+    fitted = (" the fitted curve over the history (dashed, with its band)," if spec is not None
+              and spec.model != "local-trend" else "")
+    target = (" The dash-dotted line is the target." if p.target is not None else "")
+    return ("Observed history (dark line with dots)," + fitted + " the forecast median (thick "
+            "teal line) and its credible bands (nested shades: darker = narrower); the vertical "
+            "rule marks where the forecast starts." + target)
+
+
+def _intervals_note() -> str:
+    return ("<p>Values have three significant figures; band limits are rounded outward (low "
+            "down, high up), so a printed band always contains the computed one.</p>")
 
 
 def _comparison(p: ReportParts) -> str:
@@ -188,10 +227,11 @@ def _comparison(p: ReportParts) -> str:
     comp = p.comparison
     sp = comp.spread
     tab = comp.table
+    growth = f"Growth {per_period(comp.forecast.fit.series.axis)}"
     shown = tab[["variant", "n_points", "growth_per_period", "value_at_horizon",
                  "prob_at_least"]].rename(columns={
         "variant": "Least-squares variant", "n_points": "Points used",
-        "growth_per_period": "Growth per period", "value_at_horizon": "Point forecast",
+        "growth_per_period": growth, "value_at_horizon": "Point forecast",
         "prob_at_least": "Posterior probability of at least this"})
     intro = (
         f"<p>The usual least-squares exponential fits, made with small differences of method and "
@@ -202,12 +242,12 @@ def _comparison(p: ReportParts) -> str:
         "least as high as each point forecast.</p>"
     )
     fig = (f'<figure><img alt="Least-squares curves and the Bayesian band" '
-           f'src="{p.comparison_chart}"><figcaption>Every least-squares curve (thin lines), the '
-           "range they span (shaded) and the Bayesian credible bands.</figcaption></figure>"
-           if p.comparison_chart else "")
+           f'src="{p.comparison_chart}"><figcaption>Every least-squares curve (coloured and thin '
+           "grey lines), the range they span (sand) and the Bayesian credible bands (nested teal "
+           "shades, darker = narrower).</figcaption></figure>" if p.comparison_chart else "")
     return intro + fig + _table(shown, {
-        "Growth per period": _pct, "Points used": lambda v: str(int(v)),
-        "Posterior probability of at least this": lambda v: f"{float(v):.0%}"})
+        growth: _pct, "Points used": lambda v: str(int(v)),
+        "Posterior probability of at least this": fmt_probability})
 
 
 def _calibration(p: ReportParts) -> str:
@@ -232,7 +272,8 @@ def _calibration(p: ReportParts) -> str:
 
 def _models(p: ReportParts) -> str:
     if p.models is None:
-        return "<p>One model was fitted (exponential growth).</p>"
+        return (f"<p>One model was fitted: "
+                f"{_e(p.forecast.fit.spec.label())}.</p>")
     note = f"<p>{_e(p.models_note)}</p>" if p.models_note else ""
     return note + _table(p.models)
 
@@ -288,12 +329,11 @@ def render_report(p: ReportParts) -> str:
     section = {
         "headline": ("Forecast in one paragraph", _headline(p, summary)),
         "fan-chart": ("Fan chart", f'<figure><img alt="Fan chart of {name}" src="{p.fan_chart}">'
-                      "<figcaption>Observed values (black), forecast median and credible bands "
-                      "(shaded, darker = more likely).</figcaption></figure>"),
+                      f"<figcaption>{_fan_caption(p)}</figcaption></figure>"),
         "forecast-table": (
-            f"Forecast table (values in the input's units; {fc.fit.series.axis.frequency} "
-            "periods)",
-            _forecast_table(fc),
+            f"Forecast table ({_e(p.unit or 'values in the input’s units')}; "
+            f"{_e(fc.fit.series.axis.frequency)} periods)",
+            _intervals_note() + _forecast_table(fc),
         ),
         "comparison": ("Least-squares comparison", _comparison(p)),
         "calibration": ("Backtest calibration", _calibration(p)),
@@ -311,8 +351,8 @@ def render_report(p: ReportParts) -> str:
         "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">"
         '<meta name="viewport" content="width=device-width, initial-scale=1">'
         f"<title>{name}: growth forecast</title><style>{_STYLE}</style></head><body>"
-        f"<h1>{name}: growth forecast to {_e(fc.periods[-1])}</h1>"
-        f'<p class="sub">Bayesian {_e(summary["model"])} growth model, {_e(summary["engine"])} '
-        f"engine, {summary['input']['n_observations']} observations. Made with bayesgrowth "
-        f"{_e(__version__)}.</p>{body}</body></html>\n"
+        f"<header><h1>{name}: growth forecast to {_e(fc.periods[-1])}</h1>"
+        f'<p class="sub">Bayesian model: {_e(summary["model_description"])}; '
+        f'{_e(summary["engine"])} engine; {summary["input"]["n_observations"]} observations. '
+        f"Made with bayesgrowth {_e(__version__)}.</p></header>{body}</body></html>\n"
     )

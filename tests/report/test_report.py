@@ -159,3 +159,31 @@ def test_renders_in_headless_chromium_without_horizontal_scroll(tmp_path, page):
     scroll, viewport = int(found.group(1)), int(found.group(2))
     assert scroll <= viewport
     shutil.rmtree(profile, ignore_errors=True)
+
+
+def _headline_paragraph(page: str) -> str:
+    found = re.search(r'<p class="headline">(.*?)</p>', page, flags=re.S)
+    assert found, "no headline paragraph"
+    return re.sub(r"<[^>]+>", "", found.group(1))
+
+
+def test_headline_says_median_growth_per_quarter_and_every_band(page):
+    head = _headline_paragraph(page)
+    assert head.startswith("Median forecast for 2027Q4:")
+    assert "Growth per quarter" in head and "per period" not in head
+    for level in (50, 80, 95):
+        assert f"{level}% band" in head
+    assert "Expected value" not in page
+
+
+def test_headline_follows_the_levels_given_and_never_prints_certainty(demo):
+    page = build_report(demo, 4, engine="exact", seed=2, levels=(60, 90), target=1.0,
+                        with_backtest=False, timestamp="t", unit="Revenue (EUR thousand)",
+                        fit_options={"model": "exponential"})
+    head = _headline_paragraph(page)
+    assert "60% band" in head and "90% band" in head and "80% band" not in head
+    # A target far below every draw: the probability prints as "> 99%", not "100%".
+    assert "Probability of reaching 1 by 2026Q4: > 99%." in head
+    assert "100%" not in head
+    assert "Forecast table (Revenue (EUR thousand); quarterly periods)" in page
+    assert "Quarters ahead" in page
