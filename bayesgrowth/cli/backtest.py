@@ -18,6 +18,7 @@ from bayesgrowth.cli.common import (
     say,
 )
 from bayesgrowth.cli.output import staged_output
+from bayesgrowth.cli.text import add_unit_option, unit_from_args
 from bayesgrowth.data.export import write_csv
 
 __all__ = ["OUTPUT_FILES", "add_parser"]
@@ -69,6 +70,7 @@ def add_parser(subparsers) -> argparse.ArgumentParser:
     )
     add_input(p)
     add_model_options(p)
+    add_unit_option(p)
     p.add_argument("--engine", action=_NotForBacktest, help=argparse.SUPPRESS)
     p.add_argument("--min-train", type=int, required=True, metavar="N",
                    help="training points at the first origin (at least 3)")
@@ -162,7 +164,7 @@ def run(args) -> int:
         write_csv(result.forecasts, stage / "backtest_forecasts.csv")
         write_csv(result.scores, stage / "backtest_scores.csv")
         write_csv(result.diagnostics, stage / "backtest_diagnostics.csv")
-        _save_figures(result, stage)
+        _save_figures(result, stage, unit=unit_from_args(args))
     print(f"{series.name}: {result.settings['n_origins']} origins, horizon {args.horizon}")
     for line in result.verdict_lines():
         print(line)
@@ -171,7 +173,7 @@ def run(args) -> int:
     return 0
 
 
-def _save_figures(result, stage: Path) -> None:
+def _save_figures(result, stage: Path, *, unit: str | None = None) -> None:
     import matplotlib
 
     matplotlib.use("Agg")
@@ -181,6 +183,6 @@ def _save_figures(result, stage: Path) -> None:
 
     level = 80 if 80 in result.levels else result.levels[len(result.levels) // 2]
     for name, fig in (("calibration.png", calibration_figure(result)),
-                      ("backtest_fans.png", fans_figure(result, level=level))):
+                      ("backtest_fans.png", fans_figure(result, level=level, unit=unit))):
         fig.savefig(stage / name, dpi=110)
         plt.close(fig)

@@ -298,5 +298,7 @@ def fit_from_args(args, series):
 
 
 def fmt_number(v: float) -> str:
-    """A value for people: thousands separators, four significant digits below 1,000."""
-    return f"{v:,.0f}" if abs(v) >= 1000 else f"{v:,.4g}"
+    """A value for people: see :func:`bayesgrowth.report.words.fmt_number` (one format)."""
+    from bayesgrowth.report.words import fmt_number as one_format
+
+    return one_format(v)

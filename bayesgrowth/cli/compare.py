@@ -12,7 +12,9 @@ from bayesgrowth.cli.common import (
     read_input,
 )
 from bayesgrowth.cli.output import staged_output
+from bayesgrowth.cli.text import add_unit_option, unit_from_args
 from bayesgrowth.data.export import write_csv
+from bayesgrowth.report.words import band_phrases
 
 __all__ = ["add_parser"]
 
@@ -29,6 +31,7 @@ def add_parser(sub) -> None:
     )
     add_input(p)
     add_model_options(p)
+    add_unit_option(p)
     p.add_argument("--out", required=True, help="output folder")
     p.add_argument("--max-drop", type=int, default=None, metavar="K",
                    help="drop up to K periods from either end in the window variants "
@@ -58,17 +61,16 @@ def run(args) -> int:
         except LeastSquaresError as exc:
             raise UsageError(f"{args.file}: least-squares fit failed: {exc}") from None
         write_csv(comp.table, stage / "comparison.csv")
-        _save_plot(comp, stage / "comparison.png")
+        _save_plot(comp, stage / "comparison.png", unit=unit_from_args(args))
     sp = comp.spread
-    top = max(fc.levels)
-    row = comp.table.iloc[0]
+    last = fc.table.iloc[-1]
     print(f"{series.name}: point forecasts for {fc.periods[-1]} from {len(comp.fits)} "
           f"least-squares variants range from {fmt_number(sp['min'])} ({sp['lowest_variant']}) "
           f"to {fmt_number(sp['max'])} ({sp['highest_variant']}), a ratio of "
           f"{sp['max_over_min']:.2f}")
-    print(f"Bayesian {fit.engine} forecast for {fc.periods[-1]}: median "
-          f"{fmt_number(row['bayes_median'])}, {top}% band {fmt_number(row[f'bayes_lower_{top}'])}"
-          f" to {fmt_number(row[f'bayes_upper_{top}'])}")
+    print(f"Bayesian forecast for {fc.periods[-1]} ({fit.spec.label()} model): "
+          + "; ".join([f"median {fmt_number(last['median'])}",
+                       *band_phrases(last.to_dict(), fc.levels)]))
     if not fit.diagnostics.ok:
         print("diagnostics: FAILED - " + "; ".join(fit.diagnostics.problems), file=sys.stderr)
     print(f"caution: {CAUTION}")
@@ -76,7 +78,7 @@ def run(args) -> int:
     return 0
 
 
-def _save_plot(comp, path) -> None:
+def _save_plot(comp, path, *, unit: str | None = None) -> None:
     import matplotlib
 
     matplotlib.use("Agg")
@@ -84,6 +86,6 @@ def _save_plot(comp, path) -> None:
 
     from bayesgrowth.plots.compare import comparison_figure
 
-    fig = comparison_figure(comp)
+    fig = comparison_figure(comp, unit=unit)
     fig.savefig(path, dpi=110)
     plt.close(fig)

@@ -21,11 +21,11 @@ from bayesgrowth.cli.common import (
     add_input,
     add_model_options,
     fit_from_args,
-    fmt_number,
     read_input,
     say,
 )
 from bayesgrowth.cli.output import staged_output
+from bayesgrowth.cli.text import add_unit_option, forecast_lines, unit_from_args
 from bayesgrowth.data.export import write_csv
 from bayesgrowth.data.series import GrowthSeries, InputError
 
@@ -50,6 +50,7 @@ def build_parser() -> argparse.ArgumentParser:
     )
     add_input(fc)
     add_model_options(fc)
+    add_unit_option(fc)
     fc.add_argument("--out", type=Path, required=True, help="output folder")
     fc.add_argument(
         "--target",
@@ -72,6 +73,7 @@ def build_parser() -> argparse.ArgumentParser:
         description="Run 'forecast' on the bundled demo series.",
     )
     add_model_options(demo, horizon_required=False)
+    add_unit_option(demo)
     demo.add_argument(
         "--out",
         type=Path,
@@ -87,39 +89,6 @@ def build_parser() -> argparse.ArgumentParser:
     batch.add_parser(sub)
     models.add_parser(sub)
     return parser
-
-
-def _headline(fc, summary: dict) -> list[str]:
-    fin = summary["final_period"]
-    g = summary["growth_per_period"]
-    head = f"{summary['series']}: forecast for {fin['period']} (step {fc.horizon}): median "
-    head += fmt_number(fin["median"])
-    if "lower_80" in fin:
-        head += f", 80% band {fmt_number(fin['lower_80'])} to {fmt_number(fin['upper_80'])}"
-    lines = [
-        head,
-        f"growth per period {100 * g['median']:.1f}% (95% interval {100 * g['lower_95']:.1f}% "
-        f"to {100 * g['upper_95']:.1f}%)",
-    ]
-    if "growth_per_year" in summary:
-        gy = summary["growth_per_year"]
-        lines.append(
-            f"growth per year {100 * gy['median']:.1f}% (95% interval "
-            f"{100 * gy['lower_95']:.1f}% to {100 * gy['upper_95']:.1f}%)"
-        )
-    if "target" in summary:
-        tg = summary["target"]
-        p_last = tg["probability_at_least_by_period"][fin["period"]]
-        reach = tg["first_period_reaching"] or f"not within {fc.horizon} periods"
-        lines.append(
-            f"target {fmt_number(tg['value'])}: probability {p_last:.0%} by {fin['period']}; "
-            f"first reached with probability {tg['probability']:.0%}: {reach}"
-        )
-    d = summary["diagnostics"]
-    lines.append(
-        "diagnostics: ok" if d["ok"] else "diagnostics: FAILED - " + "; ".join(d["problems"])
-    )
-    return lines
 
 
 def _run_forecast(args, series: GrowthSeries | None = None) -> int:
@@ -138,9 +107,9 @@ def _run_forecast(args, series: GrowthSeries | None = None) -> int:
         summary = fc.summary(args.target, args.target_probability)
         write_csv(fc.table, stage / "forecast.csv")
         (stage / "summary.json").write_text(json.dumps(summary, indent=2) + "\n")
-        _save_fan(fc, stage / "fan_chart.png")
+        _save_fan(fc, stage / "fan_chart.png", unit=unit_from_args(args), target=args.target)
         fit.to_netcdf(stage / "posterior.nc", fc.predictive_groups())
-    for line in _headline(fc, summary):
+    for line in forecast_lines(fc, summary):
         print(line)
     for caution in summary["cautions"]:
         print(f"caution: {caution}")
@@ -148,7 +117,7 @@ def _run_forecast(args, series: GrowthSeries | None = None) -> int:
     return 0
 
 
-def _save_fan(fc, path: Path) -> None:
+def _save_fan(fc, path: Path, *, unit: str | None = None, target: float | None = None) -> None:
     import matplotlib
 
     matplotlib.use("Agg")
@@ -156,7 +125,7 @@ def _save_fan(fc, path: Path) -> None:
 
     from bayesgrowth.plots.fan import plot_fan
 
-    ax = plot_fan(fc)
+    ax = plot_fan(fc, unit=unit, target=target)
     ax.figure.savefig(path, dpi=110)
     plt.close(ax.figure)
 

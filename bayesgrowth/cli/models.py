@@ -16,7 +16,9 @@ from bayesgrowth.cli.common import (
     say,
 )
 from bayesgrowth.cli.output import staged_output
+from bayesgrowth.cli.text import add_unit_option, unit_from_args
 from bayesgrowth.data.export import write_csv
+from bayesgrowth.report.words import band_phrases
 
 __all__ = ["add_parser", "run"]
 
@@ -52,6 +54,7 @@ def add_parser(sub) -> None:
     )
     add_input(p)
     add_model_options(p)
+    add_unit_option(p)
     for action in p._actions:  # one curve per fit does not apply here: --models names them
         if "--model" in action.option_strings:
             action.help = argparse.SUPPRESS
@@ -165,7 +168,8 @@ def run(args) -> int:
         table = ma.comparison.table
         write_csv(table, stage / "model_comparison.csv")
         write_csv(ma.averaged.table, stage / "averaged_forecast.csv")
-        _save_plot(ma, stage / "models.png", level=_plot_level(args.levels))
+        _save_plot(ma, stage / "models.png", level=_plot_level(args.levels),
+                   unit=unit_from_args(args))
     comp, avg = ma.comparison, ma.averaged
     print(f"{series.name}: {len(names)} model(s) compared by PSIS-LOO "
           f"({series.n} observations); higher elpd_loo predicts the observed periods better")
@@ -175,12 +179,11 @@ def run(args) -> int:
         print(line)
     for msg in comp.messages():
         print(f"warning: {msg}")
-    top = max(avg.levels)
     row = avg.table.iloc[-1]
     mixture = ", ".join(f"{m} {w:.0%}" for m, w in comp.weights.items() if w >= 0.005)
-    print(f"model-averaged forecast for {row['period']} (stacking weights: {mixture}): median "
-          f"{fmt_number(row['median'])}, {top}% band {fmt_number(row[f'lower_{top}'])} to "
-          f"{fmt_number(row[f'upper_{top}'])}")
+    print(f"model-averaged forecast for {row['period']} (stacking weights: {mixture}): "
+          + "; ".join([f"median {fmt_number(row['median'])}",
+                       *band_phrases(row.to_dict(), avg.levels)]))
     for caution in (avg.caution, CURVE_CAUTION, CAUTION):
         if caution:
             print(f"caution: {caution}")
@@ -192,7 +195,7 @@ def _plot_level(levels) -> int:
     return 80 if 80 in levels else max(levels)
 
 
-def _save_plot(ma, path, *, level: int) -> None:
+def _save_plot(ma, path, *, level: int, unit: str | None = None) -> None:
     import matplotlib
 
     matplotlib.use("Agg")
@@ -200,6 +203,6 @@ def _save_plot(ma, path, *, level: int) -> None:
 
     from bayesgrowth.plots.models import plot_model_bands
 
-    ax = plot_model_bands(ma.forecasts, ma.averaged, level=level)
+    ax = plot_model_bands(ma.forecasts, ma.averaged, level=level, unit=unit)
     ax.figure.savefig(path, dpi=110)
     plt.close(ax.figure)

@@ -8,6 +8,7 @@ from pathlib import Path
 
 from bayesgrowth.cli.common import UsageError, add_input, add_model_options, read_input, say
 from bayesgrowth.cli.output import staged_output
+from bayesgrowth.cli.text import add_unit_option, unit_from_args
 
 __all__ = ["add_parser"]
 
@@ -22,6 +23,7 @@ def add_parser(sub) -> None:
     )
     add_input(p)
     add_model_options(p)
+    add_unit_option(p)
     p.add_argument("--out", type=Path, required=True, help="output folder")
     p.add_argument("--target", type=float, default=None,
                    help="a budget or guidance value: report the probability of reaching it")
@@ -51,7 +53,7 @@ def run(args) -> int:
         page = build_report(
             series, args.horizon, engine=args.engine, seed=args.seed, priors=priors,
             levels=args.levels, target=args.target, target_probability=args.target_probability,
-            with_backtest=not args.no_backtest, command=command,
+            with_backtest=not args.no_backtest, command=command, unit=unit_from_args(args),
             fit_options={"draws": args.draws, "chains": args.chains, **spec_options},
         )
         write_report(stage / "report.html", page)
