@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import sys
 
+from bayesgrowth.cli.acceptance import diagnostics_exit
 from bayesgrowth.cli.common import (
     add_input,
     add_model_options,
@@ -68,14 +69,14 @@ def run(args) -> int:
           f"least-squares variants range from {fmt_number(sp['min'])} ({sp['lowest_variant']}) "
           f"to {fmt_number(sp['max'])} ({sp['highest_variant']}), a ratio of "
           f"{sp['max_over_min']:.2f}")
-    print(f"Bayesian forecast for {fc.periods[-1]} ({fit.spec.label()} model): "
+    print(f"Bayesian forecast for {fc.periods[-1]} (model: {fit.spec.label()}): "
           + "; ".join([f"median {fmt_number(last['median'])}",
                        *band_phrases(last.to_dict(), fc.levels)]))
     if not fit.diagnostics.ok:
         print("diagnostics: FAILED - " + "; ".join(fit.diagnostics.problems), file=sys.stderr)
     print(f"caution: {CAUTION}")
     print(f"wrote {', '.join(names)} to {args.out}")
-    return 0
+    return diagnostics_exit(args, fit.diagnostics.problems, args.out)
 
 
 def _save_plot(comp, path, *, unit: str | None = None) -> None:

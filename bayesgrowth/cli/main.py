@@ -1,19 +1,21 @@
 """Command line: argument parsing and file writing only; the library does the work.
 
 Exit codes: 0 done, 2 bad input or usage (one line on stderr, no output files),
-1 an unexpected failure.
+1 an unexpected failure, 4 outputs written but the sampling diagnostics failed
+(``--accept-warnings`` makes that 0), 3 (batch) some series failed, 130 interrupted.
 """
 
 from __future__ import annotations
 
 import argparse
-import json
+import math
 import os
 import sys
 from pathlib import Path
 
 from bayesgrowth._version import __version__
 from bayesgrowth.cli import backtest, batch, compare, models, report
+from bayesgrowth.cli.acceptance import diagnostics_exit
 from bayesgrowth.cli.common import (
     PROG,
     Parser,
@@ -26,7 +28,7 @@ from bayesgrowth.cli.common import (
 )
 from bayesgrowth.cli.output import staged_output
 from bayesgrowth.cli.text import add_unit_option, forecast_lines, unit_from_args
-from bayesgrowth.data.export import write_csv
+from bayesgrowth.data.export import NOT_AVAILABLE_KEY, json_ready, json_text, write_csv
 from bayesgrowth.data.series import GrowthSeries, InputError
 
 __all__ = ["main", "build_parser"]
@@ -95,8 +97,9 @@ def _run_forecast(args, series: GrowthSeries | None = None) -> int:
     from bayesgrowth.forecast.forecast import forecast
 
     series = series or read_input(args)
-    if args.target is not None and not args.target > 0:
-        raise UsageError(f"--target {args.target}: must be a value above 0")
+    series.check_horizon(args.horizon)
+    if args.target is not None and not (args.target > 0 and math.isfinite(args.target)):
+        raise UsageError(f"--target {args.target}: must be a finite value above 0")
     if not 0 < args.target_probability < 1:
         raise UsageError(f"--target-probability {args.target_probability}: must be between 0 and 1")
     names = ["forecast.csv", "summary.json", "fan_chart.png", "posterior.nc"]
@@ -106,15 +109,20 @@ def _run_forecast(args, series: GrowthSeries | None = None) -> int:
         fc = forecast(fit, args.horizon, levels=args.levels)
         summary = fc.summary(args.target, args.target_probability)
         write_csv(fc.table, stage / "forecast.csv")
-        (stage / "summary.json").write_text(json.dumps(summary, indent=2) + "\n")
+        (stage / "summary.json").write_text(json_text(summary))
         _save_fan(fc, stage / "fan_chart.png", unit=unit_from_args(args), target=args.target)
         fit.to_netcdf(stage / "posterior.nc", fc.predictive_groups())
     for line in forecast_lines(fc, summary):
         print(line)
     for caution in summary["cautions"]:
         print(f"caution: {caution}")
+    missing = json_ready(summary)[1]
+    if missing:
+        print(f"caution: {len(missing)} number(s) of the summary do not exist (first "
+              f"{missing[0]['field']}: {missing[0]['reason']}); summary.json holds null for "
+              f"them and lists them under {NOT_AVAILABLE_KEY}")
     print(f"wrote {', '.join(names)} to {args.out}")
-    return 0
+    return diagnostics_exit(args, fit.diagnostics.problems, args.out)
 
 
 def _save_fan(fc, path: Path, *, unit: str | None = None, target: float | None = None) -> None:

@@ -5,6 +5,7 @@ from __future__ import annotations
 import argparse
 import time
 
+from bayesgrowth.cli.acceptance import diagnostics_exit
 from bayesgrowth.cli.common import (
     UsageError,
     add_input,
@@ -188,7 +189,9 @@ def run(args) -> int:
         if caution:
             print(f"caution: {caution}")
     print(f"wrote {', '.join(NAMES)} to {args.out}")
-    return 0
+    failed = [f"{m}: diagnostics failed" for m, ok in zip(table["model"], table["diagnostics_ok"],
+                                                          strict=True) if not ok]
+    return diagnostics_exit(args, failed, args.out)
 
 
 def _plot_level(levels) -> int:

@@ -2,10 +2,13 @@
 
 from __future__ import annotations
 
+import math
 import shlex
 import sys
+import warnings
 from pathlib import Path
 
+from bayesgrowth.cli.acceptance import diagnostics_exit
 from bayesgrowth.cli.common import UsageError, add_input, add_model_options, read_input, say
 from bayesgrowth.cli.output import staged_output
 from bayesgrowth.cli.text import add_unit_option, unit_from_args
@@ -36,11 +39,12 @@ def add_parser(sub) -> None:
 def run(args) -> int:
     """Run ``report``; returns the exit code."""
     from bayesgrowth.cli.common import checked_model_options, priors_from_args
+    from bayesgrowth.inference.diagnostics import SamplingWarning
     from bayesgrowth.report import build_report, write_report
 
     series = read_input(args)
-    if args.target is not None and not args.target > 0:
-        raise UsageError(f"--target {args.target}: must be a value above 0")
+    if args.target is not None and not (args.target > 0 and math.isfinite(args.target)):
+        raise UsageError(f"--target {args.target}: must be a finite value above 0")
     if not 0 < args.target_probability < 1:
         raise UsageError(f"--target-probability {args.target_probability}: must be between 0 "
                          "and 1")
@@ -49,7 +53,10 @@ def run(args) -> int:
     command = "bayesgrowth " + " ".join(shlex.quote(a) for a in sys.argv[1:])
     names = ["report.html"]
     say(args, f"building the report for {series.name} ({args.engine} engine) ...")
-    with staged_output(args.out, names, [args.file]) as stage:
+    with staged_output(args.out, names, [args.file]) as stage, warnings.catch_warnings(
+        record=True
+    ) as caught:
+        warnings.simplefilter("always", SamplingWarning)  # the forecast's own fit
         page = build_report(
             series, args.horizon, engine=args.engine, seed=args.seed, priors=priors,
             levels=args.levels, target=args.target, target_probability=args.target_probability,
@@ -57,6 +64,10 @@ def run(args) -> int:
             fit_options={"draws": args.draws, "chains": args.chains, **spec_options},
         )
         write_report(stage / "report.html", page)
+    failed = [str(w.message) for w in caught if issubclass(w.category, SamplingWarning)]
+    for w in caught:
+        if not issubclass(w.category, SamplingWarning):
+            warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
     print(f"wrote report.html to {args.out}")
     print("caution: the report extrapolates past growth; it is not investment advice")
-    return 0
+    return diagnostics_exit(args, failed, args.out)

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import hashlib
 import math
+import re
 import warnings
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -11,7 +12,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from bayesgrowth.data.periods import PeriodAxis, PeriodError, parse_periods
+from bayesgrowth.data.periods import LAST_YEAR, PeriodAxis, PeriodError, parse_periods
 
 __all__ = ["GrowthSeries", "InputError", "read_series", "MIN_OBSERVATIONS", "MAX_VALUE"]
 
@@ -21,6 +22,9 @@ MIN_OBSERVATIONS = 3
 #: Largest value accepted. Far above any business quantity, and far enough below the
 #: largest double (about 1.8e308) that forecast draws do not overflow to infinity.
 MAX_VALUE = 1e100
+
+#: A number as people write it in a CSV file: ASCII digits, optional sign, point, exponent.
+_NUMBER = re.compile(r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?", re.ASCII)
 
 
 class InputError(ValueError):
@@ -78,8 +82,30 @@ class GrowthSeries:
         return self.t_last + np.arange(1, horizon + 1)
 
     def future_labels(self, horizon: int) -> list[str]:
-        """Labels of the ``horizon`` periods after the last observation."""
+        """Labels of the ``horizon`` periods after the last observation; see ``check_horizon``."""
+        self.check_horizon(horizon)
         return self.axis.labels(self.future_t(horizon))
+
+    def check_horizon(self, horizon: int) -> None:
+        """Refuse a horizon whose last period would fall after the year 9999.
+
+        Raises
+        ------
+        InputError
+            Naming ``--horizon``, the last observed period and the longest horizon left.
+        """
+        year = self.axis.year_of(self.t_last + horizon)
+        if year is None or year <= LAST_YEAR:
+            return
+        room = 0
+        while self.axis.year_of(self.t_last + room + 1) <= LAST_YEAR:
+            room += 1
+        fix = (f"forecast at most {room} period(s)" if room
+               else "the calendar ends there; number the periods 1, 2, 3, ... instead")
+        raise InputError(
+            f"--horizon {horizon}: {self.source} ends in {self.labels[-1]}, and the forecast "
+            f"would run past the year {LAST_YEAR}; {fix}"
+        )
 
     def index_of(self, label: str) -> int:
         """Position of the observation whose period label is ``label``.
@@ -148,6 +174,22 @@ def _where(source: str, row: int | None, column: str | None) -> str:
     return ", ".join(parts)
 
 
+def _number(text: str, where: str) -> float:
+    """A value cell as a float: plain ASCII digits only (no ``1_100``, no other scripts)."""
+    if _NUMBER.fullmatch(text):
+        return float(text)
+    try:
+        value = float(text)
+    except ValueError:
+        value = 0.0
+    if not math.isfinite(value):
+        raise InputError(f"{where}: {text!r} is not a finite number")
+    raise InputError(
+        f"{where}: {text!r} is not a number; write it with the digits 0-9, an optional sign "
+        "and a decimal point (like 1100 or 1100.5)"
+    )
+
+
 def _from_columns(
     periods: list[str],
     raw_values: list[str],
@@ -166,14 +208,7 @@ def _from_columns(
             raise InputError(
                 f"{_where(source, row, value_col)}: value is missing; fill it in or delete the row"
             )
-        try:
-            value = float(text)
-        except ValueError:
-            raise InputError(
-                f"{_where(source, row, value_col)}: {text!r} is not a number"
-            ) from None
-        if not math.isfinite(value):
-            raise InputError(f"{_where(source, row, value_col)}: {text!r} is not a finite number")
+        value = _number(text, _where(source, row, value_col))
         if value <= 0:
             raise InputError(
                 f"{_where(source, row, value_col)}: value {text} is not above zero; the growth "
@@ -193,6 +228,12 @@ def _from_columns(
         raise InputError(
             f"{source}: {len(values)} observation(s); a growth curve needs at least "
             f"{MIN_OBSERVATIONS}"
+        )
+    if min(values) == max(values):
+        raise InputError(
+            f"{source}, column {value_col!r}: every value is {str(raw_values[0]).strip()}; a "
+            "series that never changes has no growth to fit and would get bands of zero "
+            "width; check that this is the right column"
         )
     try:
         axis, t = parse_periods([str(p).strip() for p in periods])
