@@ -196,7 +196,7 @@ def _write(out: Path, scores: pd.DataFrame, summary: pd.DataFrame, notes: list[s
     from bayesgrowth.cli.output import staged_output
 
     with staged_output(out, _FILES, protect=[]) as stage:
-        scores.to_csv(stage / "scores_by_series.csv", index=False)
+        scores.to_csv(stage / "scores_by_series.csv", index=False, float_format="%.6g")
         summary.to_csv(stage / "summary.csv", index=False, float_format="%.6g")
         text = markdown_summary(summary, "Forecasts of growing M1 and Tourism series", notes)
         (stage / "summary.md").write_text(text, encoding="utf-8")
