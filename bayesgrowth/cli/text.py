@@ -71,8 +71,8 @@ def forecast_lines(fc, summary: dict) -> list[str]:
     axis = fc.fit.series.axis
     fin = summary["final_period"]
     lines = [
-        f"{summary['series']}: forecast for {fin['period']} ({_ahead(fc.horizon, axis)}), "
-        f"{summary['model_description']} model",
+        f"{summary['series']}: forecast for {fin['period']} ({_ahead(fc.horizon, axis)})",
+        f"  model: {summary['model_description']}",
         "  " + "; ".join([f"median {fmt_number(fin['median'])}",
                           *band_phrases(fin, summary["levels"])]),
         "  " + growth_phrase(summary, axis),

@@ -79,6 +79,7 @@ def plot_model_bands(forecasts, averaged=None, *, weights=None, level: int = 80,
     def joined(col, table):
         return np.concatenate([[y_obs[-1]], table[col]])
 
+    draw_history(ax, t_obs, y_obs)  # first in the legend; drawn on top by its zorder
     if averaged is not None:
         tab = averaged.table
         draw_nested_bands(ax, x, [(level, joined(f"lower_{level}", tab),
@@ -96,7 +97,6 @@ def plot_model_bands(forecasts, averaged=None, *, weights=None, level: int = 80,
         for col in (f"lower_{level}", f"upper_{level}"):
             ax.plot(x, joined(col, tab), color=color, lw=0.8, ls=dash, alpha=0.8, zorder=5)
     ax.plot([], [], color=HISTORY, lw=0.8, label=f"thin lines: each model's {level}% band")
-    draw_history(ax, t_obs, y_obs)
     all_t = np.arange(t_obs[0], first.t[-1] + 1)
     set_period_ticks(ax, all_t, series.axis.labels(all_t))
     mark_forecast_start(ax, t_obs[-1] + 0.5)

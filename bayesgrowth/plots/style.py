@@ -276,7 +276,7 @@ def legend(ax: Axes, handles=None, labels=None, *, where: str = "inside", **kwar
                      frameon=False, ncol=2, columnspacing=2.0)
     elif where == "inside":
         style.update(loc="upper left", frameon=True, facecolor="white", edgecolor="none",
-                     framealpha=0.92)
+                     framealpha=1.0)
     else:
         raise ValueError(f"where must be inside, right or below, got {where!r}")
     style.update(kwargs)
