@@ -16,30 +16,13 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from bayesgrowth.data.csvfile import read_csv_file
 from bayesgrowth.data.series import GrowthSeries, InputError, _from_columns
 
 __all__ = ["read_panel", "Panel", "invented_panel", "panel_frame"]
 
 #: A panel: series by name, in order of first appearance in the input.
 Panel = dict[str, GrowthSeries]
-
-
-def _read_csv(path: Path) -> pd.DataFrame:
-    source = path.name
-    if not path.exists():
-        raise InputError(f"{path}: no such file")
-    if path.is_dir():
-        raise InputError(f"{path}: is a folder, not a CSV file")
-    try:
-        frame = pd.read_csv(path, dtype=str, keep_default_na=False, skipinitialspace=True)
-    except UnicodeDecodeError:
-        raise InputError(f"{source}: not a text CSV file (could not decode it as UTF-8)") from None
-    except pd.errors.EmptyDataError:
-        raise InputError(f"{source}: the file is empty") from None
-    except pd.errors.ParserError as exc:
-        raise InputError(f"{source}: not a readable CSV file ({str(exc).strip()})") from None
-    frame.columns = [str(c).strip() for c in frame.columns]
-    return frame
 
 
 def _names_as_written(path: Path, frame: pd.DataFrame, series_col: str) -> list[str]:
@@ -120,7 +103,7 @@ def read_panel(
         frame, source, offset = data, "DataFrame", 0
     else:
         path = Path(data)
-        frame, source, offset = _read_csv(path), path.name, 2
+        frame, source, offset = read_csv_file(path), path.name, 2
     options = (
         (series_col, "--series-col"), (period_col, "--period-col"), (value_col, "--value-col")
     )

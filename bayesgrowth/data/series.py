@@ -316,22 +316,11 @@ def read_series(
         return _frame_to_series(
             data, "DataFrame", period_col, value_col, name or "series", header_offset=0
         )
+    from bayesgrowth.data.csvfile import read_csv_file
+
     path = Path(data)
-    source = path.name
-    if not path.exists():
-        raise InputError(f"{path}: no such file")
-    if path.is_dir():
-        raise InputError(f"{path}: is a folder, not a CSV file")
-    try:
-        frame = pd.read_csv(path, dtype=str, keep_default_na=False, skipinitialspace=True)
-    except UnicodeDecodeError:
-        raise InputError(f"{source}: not a text CSV file (could not decode it as UTF-8)") from None
-    except pd.errors.EmptyDataError:
-        raise InputError(f"{source}: the file is empty") from None
-    except pd.errors.ParserError as exc:
-        raise InputError(f"{source}: not a readable CSV file ({str(exc).strip()})") from None
-    frame.columns = [str(c).strip() for c in frame.columns]
-    return _frame_to_series(frame, source, period_col, value_col, name or path.stem, 2)
+    frame = read_csv_file(path)
+    return _frame_to_series(frame, path.name, period_col, value_col, name or path.stem, 2)
 
 
 def _frame_to_series(

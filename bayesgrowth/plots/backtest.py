@@ -8,6 +8,7 @@ from matplotlib.axes import Axes
 from matplotlib.figure import Figure
 
 from bayesgrowth.plots.calibration import plot_coverage, plot_pit_histogram
+from bayesgrowth.plots.plain import literal
 from bayesgrowth.plots.style import (
     BAND_SHADES,
     FORECAST,
@@ -116,7 +117,7 @@ def fans_figure(result, level: int = 80, unit: str | None = None) -> Figure:
                              layout="constrained", squeeze=False)
     for ax, method in zip(axes[:, 0], result.methods, strict=True):
         plot_backtest_fans(result, method, level=level, ax=ax, unit=unit)
-    fig.suptitle(f"{result.series.name}: backtest forecasts ({level}% bands)", fontsize=11)
+    fig.suptitle(f"{literal(result.series.name)}: backtest forecasts ({level}% bands)", fontsize=11)
     return fig
 
 
@@ -153,7 +154,7 @@ def calibration_figure(result) -> Figure:
     for ax in flat[panels:]:
         ax.set_axis_off()
     n_origins = result.settings.get("n_origins")
-    fig.suptitle(f"{result.series.name}: calibration over {n_origins} origins\n"
+    fig.suptitle(f"{literal(result.series.name)}: calibration over {n_origins} origins\n"
                  "PIT histogram shapes: U = bands too narrow, hump = too wide, slope = bias",
                  fontsize=11)
     return fig

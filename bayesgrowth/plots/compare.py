@@ -12,6 +12,7 @@ from matplotlib.axes import Axes
 from matplotlib.patches import Patch
 
 from bayesgrowth.leastsq.fits import GrowthFit
+from bayesgrowth.plots.plain import literal
 from bayesgrowth.plots.style import (
     CATEGORICAL,
     FORECAST,
@@ -241,6 +242,6 @@ def comparison_figure(comparison, unit: str | None = None):
     plot_comparison(series.t, series.values, comparison.fits, fc.horizon, band=fc.table, ax=ax,
                     period_labels=dict(zip(all_t, series.axis.labels(all_t), strict=True)),
                     unit=unit_label(unit, series))
-    ax.set_title(f"{series.name}: least-squares point forecasts beside the Bayesian band\n"
+    ax.set_title(f"{literal(series.name)}: least-squares point forecasts beside the Bayesian band\n"
                  f"Bayesian model: {describe_model(fc)}", fontsize=11)
     return fig

@@ -5,6 +5,7 @@ from __future__ import annotations
 import numpy as np
 from matplotlib.axes import Axes
 
+from bayesgrowth.plots.plain import literal
 from bayesgrowth.plots.style import (
     BAND_SHADES,
     FORECAST,
@@ -71,7 +72,7 @@ def _probability_at_least(forecast, target: float) -> float:
 
 
 def _title(forecast) -> str:
-    return f"{forecast.fit.series.name}\nForecast: {describe_model(forecast)}"
+    return f"{literal(forecast.fit.series.name)}\nForecast: {describe_model(forecast)}"
 
 
 def _draw_fit(ax: Axes, forecast, level: int) -> None:

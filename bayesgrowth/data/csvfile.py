@@ -1,0 +1,94 @@
+"""Reading an input CSV file into text cells, with every problem of the file in one plain line.
+
+Rows are counted as a spreadsheet shows them: the header is row 1.
+"""
+
+from __future__ import annotations
+
+import re
+from pathlib import Path
+
+import pandas as pd
+
+from bayesgrowth.data.series import InputError
+
+__all__ = ["read_csv_file"]
+
+_FIELDS = re.compile(r"Expected (\d+) fields in line (\d+), saw (\d+)")
+_OPEN_QUOTE = re.compile(r"EOF inside string starting at row (\d+)")
+
+
+def _parser_problem(source: str, exc: Exception) -> str:
+    """The pandas tokenizer's complaint in the user's terms."""
+    text = str(exc)
+    m = _FIELDS.search(text)
+    if m:
+        want, line, saw = (int(g) for g in m.groups())
+        return (f"{source}, row {line}: {saw} cells, but the header has {want}; delete the "
+                "extra cells, or put a value that holds a comma in double quotes")
+    m = _OPEN_QUOTE.search(text)
+    if m:
+        return (f"{source}, row {int(m.group(1)) + 1}: a double quote opens a cell that is "
+                "never closed; close it or delete it")
+    return f"{source}: not a readable CSV file ({text.strip()}); save it again as CSV"
+
+
+def _check_header(path: Path, source: str) -> None:
+    """Refuse a header that names a column twice (pandas would rename the second one)."""
+    head = pd.read_csv(path, header=None, nrows=1, dtype=str, keep_default_na=False,
+                       skipinitialspace=True)
+    names = [str(c).strip() for c in head.iloc[0].tolist()]
+    seen: dict[str, int] = {}
+    for i, name in enumerate(names, start=1):
+        if name and name in seen:
+            raise InputError(
+                f"{source}, row 1: column {name!r} appears twice in the header (columns "
+                f"{seen[name]} and {i}); rename or delete one of them"
+            )
+        seen.setdefault(name, i)
+
+
+def read_csv_file(path: str | Path) -> pd.DataFrame:
+    """The cells of a CSV file with a header row, all as text, column names stripped.
+
+    Parameters
+    ----------
+    path : str or pathlib.Path
+
+    Returns
+    -------
+    pandas.DataFrame
+        One column per header name, every cell a ``str`` (empty cells are ``""``).
+
+    Raises
+    ------
+    InputError
+        With one line naming the file (and the row, where there is one) and the fix:
+        missing, a folder, not readable, not UTF-8 text, empty, ragged rows, an open
+        quote, or a column named twice in the header.
+    """
+    path = Path(path)
+    source = path.name
+    if not path.exists():
+        raise InputError(f"{path}: no such file")
+    if path.is_dir():
+        raise InputError(f"{path}: is a folder, not a CSV file")
+    try:
+        frame = pd.read_csv(path, dtype=str, keep_default_na=False, skipinitialspace=True)
+        _check_header(path, source)
+    except UnicodeDecodeError:
+        raise InputError(
+            f"{source}: not a text CSV file (could not decode it as UTF-8); save it as CSV "
+            "UTF-8"
+        ) from None
+    except pd.errors.EmptyDataError:
+        raise InputError(f"{source}: the file is empty") from None
+    except pd.errors.ParserError as exc:
+        raise InputError(_parser_problem(source, exc)) from None
+    except OSError as exc:
+        raise InputError(
+            f"{path}: cannot be read ({exc.strerror or type(exc).__name__}); check that "
+            "you may read it"
+        ) from None
+    frame.columns = [str(c).strip() for c in frame.columns]
+    return frame
