@@ -9,20 +9,31 @@ engines, diagnostics) → ``forecast`` (posterior predictive bands) → ``leasts
 
 from bayesgrowth._version import __version__
 from bayesgrowth.backtest import BacktestResult, backtest
-from bayesgrowth.batch import BatchSettings, run_batch
 from bayesgrowth.config import DEFAULT_LEVELS
 from bayesgrowth.data import GrowthSeries, InputError, load_demo, read_series
-from bayesgrowth.data.panel import read_panel
 from bayesgrowth.forecast import CAUTION, Forecast, forecast
-from bayesgrowth.forecast.prior import prior_predictive
-from bayesgrowth.forecast.sensitivity import prior_sensitivity
 from bayesgrowth.inference import Diagnostics, Fit, SamplingWarning, fit_series
-from bayesgrowth.inference.pooled import PooledFit, fit_pooled
 from bayesgrowth.model import GrowthModel
-from bayesgrowth.plots.fan import plot_fan
 from bayesgrowth.priors import GrowthPrior, InitialValuePrior, NoisePrior, Priors
-from bayesgrowth.report import build_report
-from bayesgrowth.select import compare_models, fit_models, model_average, registered_models
+
+#: Where the heavier public names live; imported on first use (PEP 562), so that a
+#: command pays only for the layers it runs (no sampler, no cluster client, no model
+#: comparison on the exact forecast path).
+_HOMES = {
+    "BatchSettings": "bayesgrowth.batch",
+    "run_batch": "bayesgrowth.batch",
+    "read_panel": "bayesgrowth.data.panel",
+    "prior_predictive": "bayesgrowth.forecast.prior",
+    "prior_sensitivity": "bayesgrowth.forecast.sensitivity",
+    "PooledFit": "bayesgrowth.inference.pooled",
+    "fit_pooled": "bayesgrowth.inference.pooled",
+    "plot_fan": "bayesgrowth.plots.fan",
+    "build_report": "bayesgrowth.report",
+    "compare_models": "bayesgrowth.select",
+    "fit_models": "bayesgrowth.select",
+    "model_average": "bayesgrowth.select",
+    "registered_models": "bayesgrowth.select",
+}
 
 __all__ = [
     "BacktestResult",
@@ -59,3 +70,18 @@ __all__ = [
     "registered_models",
     "run_batch",
 ]
+
+
+def __getattr__(name: str):
+    home = _HOMES.get(name)
+    if home is None:
+        raise AttributeError(f"module 'bayesgrowth' has no attribute {name!r}")
+    import importlib
+
+    value = getattr(importlib.import_module(home), name)
+    globals()[name] = value
+    return value
+
+
+def __dir__() -> list[str]:
+    return sorted(__all__)

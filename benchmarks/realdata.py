@@ -46,12 +46,13 @@ METHODS = {
     "theta": theta,
     "arima011": arima011,
     "exponential": bayesgrowth_method(engine="exact", model="exponential"),
-    # the package's default model (bayesgrowth.config.DEFAULT_MODEL) and its two branches
+    # the package's default model (bayesgrowth.config.DEFAULT_MODEL: a damped local trend)
+    # and the two other growth dynamics of the local trend
     "default": bayesgrowth_method(engine="exact"),
     "local-trend": bayesgrowth_method(engine="exact", model="local-trend", drift="random-walk",
                                       seasonal="auto"),
-    "damped-trend": bayesgrowth_method(engine="exact", model="local-trend",
-                                       drift="mean-reverting", seasonal="auto"),
+    "adaptive": bayesgrowth_method(engine="exact", model="local-trend", drift="adaptive",
+                                   seasonal="auto"),
 }
 
 _THREAD_VARS = ("OMP_NUM_THREADS", "OPENBLAS_NUM_THREADS", "MKL_NUM_THREADS")

@@ -240,7 +240,9 @@ def bayesgrowth_method(**fit_kwargs) -> Callable[[np.ndarray, int, int], Predict
     callable
         ``(train, h, period) -> SamplePredictive``.
     """
-    settings = {"engine": "exact", **fit_kwargs}
+    from bayesgrowth.config import DEFAULT_ENGINE, DEFAULT_MODEL
+
+    settings = {"engine": DEFAULT_ENGINE, **DEFAULT_MODEL, **fit_kwargs}
 
     def method(train: np.ndarray, h: int, period: int) -> Predictive:
         import warnings

@@ -42,7 +42,6 @@ from collections.abc import Callable
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import stats
 
 from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.inference.diagnostics import Diagnostics, SamplingWarning
@@ -149,6 +148,7 @@ def score_prediction(
     dict of str to numpy.ndarray
         ``median``, ``lower_L``/``upper_L`` per level, ``pit``, ``crps``, ``log_score``.
     """
+    from scipy import stats  # imported here: scipy.stats costs ~1 s to import
     out: dict[str, np.ndarray] = {}
     nan = np.full(actual.shape, np.nan)
     if pred.point is not None:

@@ -9,6 +9,7 @@ import numpy as np
 import pandas as pd
 
 from bayesgrowth.config import DEFAULT_LEVELS, check_levels
+from bayesgrowth.forecast.mixture import mixture_cdf, mixture_mean_exp, mixture_quantiles
 from bayesgrowth.inference.fit import Fit
 from bayesgrowth.models import exponential, general
 
@@ -79,6 +80,11 @@ class Forecast:
         Draws of the mean curve alone (parameter uncertainty only).
     seed : int
         Seed of the predictive noise.
+    exact : dict, optional
+        For fits by the exact state-space engine: the predictive as a mixture of
+        normals on the log scale (``weight`` ``(G,)``, ``mean``, ``value_sd``,
+        ``curve_sd`` ``(G, H)``). Bands, medians, means and probabilities then come
+        from the mixture itself (:mod:`bayesgrowth.forecast.mixture`), not the draws.
     """
 
     fit: Fit
@@ -89,6 +95,19 @@ class Forecast:
     draws: np.ndarray
     curve_draws: np.ndarray
     seed: int
+    exact: dict | None = None
+
+    def _mixture_bands(self, sd_key: str, prefix: str = "") -> dict:
+        e = self.exact
+        probs = [0.5]
+        for level in self.levels:
+            probs += [(100 - level) / 200, 1 - (100 - level) / 200]
+        q = np.exp(mixture_quantiles(e["weight"], e["mean"], e[sd_key], probs))
+        cols = {f"{prefix}median": q[0]}
+        for i, level in enumerate(self.levels):
+            cols[f"{prefix}lower_{level}"] = q[1 + 2 * i]
+            cols[f"{prefix}upper_{level}"] = q[2 + 2 * i]
+        return cols
 
     @property
     def table(self) -> pd.DataFrame:
@@ -98,15 +117,23 @@ class Forecast:
         value; ``curve_median``, ``curve_lower_L``/``curve_upper_L`` the band of
         the mean curve alone.
         """
-        frame = {
-            "period": self.periods,
-            "step": np.arange(1, self.horizon + 1),
+        frame = {"period": self.periods, "step": np.arange(1, self.horizon + 1)}
+        if self.exact is not None:
+            e = self.exact
+            value = self._mixture_bands("value_sd")
+            curve = self._mixture_bands("curve_sd", prefix="curve_")
+            frame["mean"] = mixture_mean_exp(e["weight"], e["mean"], e["value_sd"])
+            frame["median"] = value.pop("median")
+            frame.update(value)
+            frame.update(curve)
+            return pd.DataFrame(frame)
+        frame.update({
             "mean": self.draws.mean(axis=0),
             "median": np.median(self.draws, axis=0),
             **band_columns(self.draws, self.levels),
             "curve_median": np.median(self.curve_draws, axis=0),
             **band_columns(self.curve_draws, self.levels, prefix="curve_"),
-        }
+        })
         return pd.DataFrame(frame)
 
     def _column(self, period: str | int | None) -> int:
@@ -125,10 +152,14 @@ class Forecast:
 
     def prob_exceeds(self, target: float) -> pd.Series:
         """Posterior probability that the value in each future period is at least ``target``."""
-        return pd.Series(
-            (self.draws >= target).mean(axis=0), index=pd.Index(self.periods, name="period"),
-            name="probability",
-        )
+        if self.exact is not None:
+            e = self.exact
+            with np.errstate(divide="ignore"):
+                log_target = np.full(self.horizon, np.log(target) if target > 0 else -np.inf)
+            prob = 1.0 - mixture_cdf(e["weight"], e["mean"], e["value_sd"], log_target)
+        else:
+            prob = (self.draws >= target).mean(axis=0)
+        return pd.Series(prob, index=pd.Index(self.periods, name="period"), name="probability")
 
     def first_period_reaching(self, target: float, probability: float = 0.5) -> str | None:
         """First future period whose value is at least ``target`` with ``probability``.
@@ -194,7 +225,9 @@ class Forecast:
         }
         if "ceiling" in derived:
             out["ceiling"] = _interval(derived["ceiling"])
-        if "half_life" in fit_flat:
+        if self.fit.state_space is not None and self.fit.spec.growth_fades:
+            out["growth_fades"] = _fading_summary(self.fit, fit_flat["half_life"])
+        elif "half_life" in fit_flat:
             out["half_life_periods"] = _interval(fit_flat["half_life"])
         for name in ("growth_per_year", "doubling_time_periods"):
             if name in growth.index:
@@ -202,6 +235,10 @@ class Forecast:
         out["prob_growth_positive"] = float(growth.loc["prob_growth_positive", "median"])
         final = self.draws[:, -1]
         out["final_period"] = {"period": self.periods[-1], **_interval(final, self.levels)}
+        if self.exact is not None:  # the exact mixture's numbers, as in the table
+            last = self.table.iloc[-1]
+            out["final_period"].update({k: float(last[k]) for k in out["final_period"]
+                                        if k != "period" and k in last.index})
         if target is not None:
             out["target"] = {
                 "value": target,
@@ -235,6 +272,15 @@ class Forecast:
     def to_inference_data(self):
         """InferenceData with posterior, posterior predictive, log likelihood and observed data."""
         return self.fit.to_inference_data(self.predictive_groups())
+
+
+def _fading_summary(fit: Fit, half_life: np.ndarray) -> dict:
+    """How likely growth fades, and its half-life among the draws where it does."""
+    fades = np.isfinite(half_life)
+    out = {"probability": float(fit.state_space.branch_weight.get("fading", fades.mean()))}
+    if fades.sum() >= 20:
+        out["half_life_periods_if_fading"] = _interval(half_life[fades])
+    return out
 
 
 def _finite(v: float) -> float | None:
@@ -272,14 +318,17 @@ def forecast(
     seed = fit.seed if seed is None else int(seed)
     rng = np.random.default_rng([seed, 1])
     t = fit.series.future_t(horizon)
-    params = fit.flat()
-    if fit.spec.is_plain_exponential:
+    exact = None
+    if fit.state_space is not None:
+        log_draws, curve, exact = _state_space_draws(fit, t, rng)
+    elif fit.spec.is_plain_exponential:
+        params = fit.flat()
         log_draws = exponential.simulate_log(params, t, fit.priors.t_ref, rng)
         curve = exponential.log_mean(params, t, fit.priors.t_ref)
     else:
         s = fit.series
         log_draws, curve = general.simulate_log(
-            fit.spec, params, s.t, s.log_values, t, fit.priors.t_ref, rng, s.axis
+            fit.spec, fit.flat(), s.t, s.log_values, t, fit.priors.t_ref, rng, s.axis
         )
     return Forecast(
         fit=fit,
@@ -290,4 +339,35 @@ def forecast(
         draws=np.exp(log_draws),
         curve_draws=np.exp(curve),
         seed=seed,
+        exact=exact,
     )
+
+
+def _state_space_draws(fit: Fit, t: np.ndarray, rng: np.random.Generator):
+    """Joint predictive draws from the grid posterior, one per posterior draw's node.
+
+    Returns the log value draws, the log level draws and the mixture description.
+    """
+    post = fit.state_space
+    marginal = post.predictive(t, joint=False)
+    nodes = fit.extra["nodes"].reshape(-1)
+    used, inverse = np.unique(nodes, return_inverse=True)
+    joint = post.predictive(t, joint=True, nodes=used)
+    cov = joint["curve_cov"]
+    ev, evec = np.linalg.eigh(0.5 * (cov + np.swapaxes(cov, 1, 2)))
+    root = evec * np.sqrt(np.clip(ev, 0, None))[:, None, :]
+    h = t.size
+    curve = np.empty((nodes.size, h))
+    for lo in range(0, nodes.size, 1000):
+        nd = inverse[lo:lo + 1000]
+        z = rng.standard_normal((nd.size, h))
+        curve[lo:lo + 1000] = joint["mean"][nd] + np.einsum("sij,sj->si", root[nd], z)
+    sigma = post.params["sigma"][nodes][:, None]
+    values = curve + sigma * rng.standard_normal(curve.shape)
+    exact = {
+        "weight": post.weight,
+        "mean": marginal["mean"],
+        "value_sd": np.sqrt(marginal["value_var"]),
+        "curve_sd": np.sqrt(np.clip(marginal["curve_var"], 0, None)),
+    }
+    return values, curve, exact

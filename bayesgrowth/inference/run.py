@@ -7,7 +7,7 @@ import secrets
 from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.inference.exact import fit_exact
 from bayesgrowth.inference.fit import Fit
-from bayesgrowth.models.spec import ModelSpec
+from bayesgrowth.models.spec import ModelSpec, resolve_seasonal
 from bayesgrowth.priors import Priors
 
 __all__ = ["ENGINES", "fit_series"]
@@ -24,7 +24,7 @@ def fit_series(
     model: str = "exponential",
     errors: str = "independent",
     noise: str = "normal",
-    seasonal: bool = False,
+    seasonal: bool | str = False,
     drift: str = "random-walk",
     **settings,
 ) -> Fit:
@@ -46,8 +46,10 @@ def fit_series(
         Whether deviations from the curve persist (AR(1) on the log scale).
     noise : {"normal", "student-t"}
         Noise distribution; Student-t tolerates outlying periods.
-    seasonal : bool
-        Multiplicative seasonal factors (quarterly or monthly data).
+    seasonal : bool or "auto"
+        Multiplicative seasonal factors (quarterly or monthly data); ``"auto"`` uses
+        them for the local trend when the calendar has seasons and two full years
+        are observed.
     drift : {"random-walk", "mean-reverting"}
         For ``local-trend``: how the growth rate drifts.
     **settings
@@ -61,6 +63,7 @@ def fit_series(
     """
     if engine not in ENGINES:
         raise ValueError(f"engine must be one of {', '.join(ENGINES)}, got {engine!r}")
+    seasonal = resolve_seasonal(seasonal, series.axis, series.t, model)
     spec = ModelSpec(model=model, errors=errors, noise=noise, seasonal=seasonal, drift=drift)
     if engine == "exact" and not (spec.is_plain_exponential or spec.is_state_space):
         raise ValueError(

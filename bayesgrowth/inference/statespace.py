@@ -33,13 +33,12 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from bayesgrowth.inference.kalman import augmented_filter
+from bayesgrowth.inference.kalman import augmented_filter, gram_filter
 from bayesgrowth.inference.theta import ThetaDim, rho_of, theta_dims
 from bayesgrowth.models import linear
 
 __all__ = ["StateSpacePosterior", "state_space_posterior"]
 
-_CHUNK = 2048
 _COARSE = {False: 6, True: 5}  # points per dimension of the locating grid (3-D, 4-D)
 _FINE = {False: 8, True: 6}  # and of the weighting grid
 _KEEP = 15.0  # coarse-grid cells within e^-15 of the best bound the fine box
@@ -83,44 +82,53 @@ def _design(ctx: _Context, rho: np.ndarray, j: np.ndarray, season) -> np.ndarray
     return x
 
 
-def _integrate(res, ctx: _Context):
-    """Marginal log likelihood and the normal posterior of ``beta`` per node."""
-    v, f = res.innovations, res.variance
-    r = v[..., 0] - v[..., 1:] @ ctx.mu0
-    xt = v[..., 1:]
-    xw = xt / f[..., None]
-    a = np.swapaxes(xt, 1, 2) @ xw
-    b = np.einsum("gnp,gn->gp", xw, r)
+def _integrate(gram, logf, n: int, ctx: _Context):
+    """Marginal log likelihood and the normal posterior of ``beta`` per node.
+
+    ``gram`` is ``V' diag(1/F) V`` of the filtered columns ``[y, X]``. With ``r =
+    v_y - V_X mu0``, ``A = V_X' F^-1 V_X``, ``b = V_X' F^-1 r`` and ``S =
+    diag(sd0)``, the log values are ``N(X mu0, L (F + V_X S S V_X') L')`` with
+    ``|L| = 1``, so by the matrix determinant lemma and Woodbury's identity
+    ``log p = -1/2 [n log 2 pi + sum log F + log|M| + r' F^-1 r - (S b)' M^-1 (S b)]``
+    with ``M = I + S A S``, and ``beta | y ~ N(mu0 + S M^-1 S b, S M^-1 S)``.
+    Zero prior sds (fixed coefficients) are handled without inverting ``S``.
+    """
+    mu0 = ctx.mu0
+    a = gram[:, 1:, 1:]
+    xy = gram[:, 1:, 0]
+    amu = a @ mu0
+    rr = gram[:, 0, 0] - 2 * xy @ mu0 + amu @ mu0
+    b = xy - amu
     s = np.sqrt(ctx.var0)
     m = np.eye(s.size) + s[:, None] * a * s[None, :]
     chol = np.linalg.cholesky(m)
     sb = s * b
     z = np.linalg.solve(m, sb[..., None])[..., 0]
     logdet = 2 * np.log(np.diagonal(chol, axis1=1, axis2=2)).sum(axis=1)
-    quad = (r**2 / f).sum(axis=1) - (sb * z).sum(axis=1)
-    n = f.shape[1]
-    loglik = -0.5 * (n * math.log(2 * math.pi) + np.log(f).sum(axis=1) + logdet + quad)
+    quad = rr - (sb * z).sum(axis=1)
+    loglik = -0.5 * (n * math.log(2 * math.pi) + logf + logdet + quad)
     minv = np.linalg.inv(m)
-    return loglik, ctx.mu0 + s * z, s[:, None] * minv * s[None, :]
+    return loglik, mu0 + s * z, s[:, None] * minv * s[None, :]
 
 
 def _evaluate(ctx: _Context, params: dict) -> dict:
-    """Filter every node (in chunks) and integrate ``beta`` out."""
-    g = params["sigma"].size
-    parts = []
-    for lo in range(0, g, _CHUNK):
-        sl = slice(lo, lo + _CHUNK)
-        rho = params["rho"][sl]
-        x = _design(ctx, rho, ctx.idx, ctx.season)
-        data = np.concatenate([np.broadcast_to(ctx.y, (rho.size, ctx.y.size))[..., None], x],
-                              axis=-1)
-        res = augmented_filter(data, ctx.idx, rho, params["sigma_level"][sl],
-                               params["sigma_growth"][sl], params["sigma"][sl])
-        loglik, bm, bc = _integrate(res, ctx)
-        parts.append({"loglik": loglik, "beta_mean": bm, "beta_cov": bc, "state": res.state,
-                      "state_cov": res.state_cov, "innovations": res.innovations,
-                      "variance": res.variance})
-    return {k: np.concatenate([p[k] for p in parts]) for k in parts[0]}
+    """Filter every node (compiled) and integrate ``beta`` out."""
+    gram, logf, state, state_cov = gram_filter(
+        ctx.y, ctx.season, ctx.idx, params["rho"], params["sigma_level"],
+        params["sigma_growth"], params["sigma"], ctx.long_run)
+    loglik, bm, bc = _integrate(gram, logf, ctx.y.size, ctx)
+    return {"loglik": loglik, "beta_mean": bm, "beta_cov": bc, "state": state,
+            "state_cov": state_cov}
+
+
+def _innovations(ctx: _Context, params: dict):
+    """Innovations and variances of ``[y, X]`` per node (the plain filter, for log densities)."""
+    x = _design(ctx, params["rho"], ctx.idx, ctx.season)
+    data = np.concatenate([np.broadcast_to(ctx.y, (x.shape[0], ctx.y.size))[..., None], x],
+                          axis=-1)
+    res = augmented_filter(data, ctx.idx, params["rho"], params["sigma_level"],
+                           params["sigma_growth"], params["sigma"])
+    return res.innovations, res.variance
 
 
 @dataclass
@@ -230,7 +238,6 @@ class StateSpacePosterior:
                                            "half_life")}
         self.beta_mean, self.beta_cov = sel["beta_mean"], sel["beta_cov"]
         self._state, self._state_cov = sel["state"], sel["state_cov"]
-        self._innov, self._var = sel["innovations"], sel["variance"]
         self.branch_weight = branch_weight
         self.log_evidence = float(log_evidence)
         self.grid_points = int(grid_points)
@@ -248,7 +255,8 @@ class StateSpacePosterior:
         m, s_idx = season_index(self._axis, np.asarray(t))
         return linear.season_basis(m)[s_idx]
 
-    def predictive(self, t_future: np.ndarray, joint: bool = True) -> dict:
+    def predictive(self, t_future: np.ndarray, joint: bool = True,
+                   nodes: np.ndarray | None = None) -> dict:
         """Normal forecast of future log values per node.
 
         Parameters
@@ -257,6 +265,8 @@ class StateSpacePosterior:
             Consecutive future time indices right after the last observation.
         joint : bool
             Whether to return full ``(G, H, H)`` covariances or only variances.
+        nodes : numpy.ndarray of int, optional
+            Only these nodes (default all).
 
         Returns
         -------
@@ -265,16 +275,19 @@ class StateSpacePosterior:
             ``curve_var``/``value_var`` ``(G, H)``: the level alone, and the level
             plus noise.
         """
-        ctx, p = self._ctx, self.params
+        sel = slice(None) if nodes is None else np.asarray(nodes)
+        ctx, p = self._ctx, {k: v[sel] for k, v in self.params.items()}
+        state, state_cov = self._state[sel], self._state_cov[sel]
+        beta_mean, beta_cov = self.beta_mean[sel], self.beta_cov[sel]
         jf = np.asarray(t_future, dtype=int) - self.t_ref
         steps = jf - int(ctx.idx[-1])
         rho = p["rho"]
         xf = _design(ctx, rho, jf, self._season_rows(t_future))
         z = np.stack([np.ones((rho.size, steps.size)), _w(rho, steps.astype(float))], axis=-1)
-        ay, ax = self._state[:, :, 0], self._state[:, :, 1:]
+        ay, ax = state[:, :, 0], state[:, :, 1:]
         g = xf - z @ ax
-        mean = (g @ self.beta_mean[..., None])[..., 0] + (z @ ay[..., None])[..., 0]
-        gb = g @ self.beta_cov
+        mean = (g @ beta_mean[..., None])[..., 0] + (z @ ay[..., None])[..., 0]
+        gb = g @ beta_cov
         s = steps.astype(float)
         # loading of the growth shock at future step i on the level at step h (i <= h)
         d = s[:, None] - s[None, :]
@@ -285,11 +298,11 @@ class StateSpacePosterior:
         sg2 = (p["sigma_growth"] ** 2)[:, None, None]
         sl2 = (p["sigma_level"] ** 2)[:, None, None]
         if joint:
-            cov = (gb @ np.swapaxes(g, 1, 2) + z @ self._state_cov @ np.swapaxes(z, 1, 2)
+            cov = (gb @ np.swapaxes(g, 1, 2) + z @ state_cov @ np.swapaxes(z, 1, 2)
                    + sg2 * (af @ np.swapaxes(af, 1, 2)) + sl2 * (on @ on.T)[None])
             noise = (p["sigma"] ** 2)[:, None, None] * np.eye(s.size)[None]
             return {"mean": mean, "curve_cov": cov, "value_cov": cov + noise}
-        var = ((gb * g).sum(-1) + np.einsum("ghi,gij,ghj->gh", z, self._state_cov, z)
+        var = ((gb * g).sum(-1) + np.einsum("ghi,gij,ghj->gh", z, state_cov, z)
                + sg2[..., 0] * (af**2).sum(-1) + sl2[..., 0] * on.sum(-1)[None])
         return {"mean": mean, "curve_var": var, "value_var": var + p["sigma"][:, None] ** 2}
 
@@ -322,11 +335,12 @@ class StateSpacePosterior:
             ``latest_log_growth``.
         """
         nodes = rng.choice(self.weight.size, size=n, p=self.weight)
-        cov = 0.5 * (self.beta_cov + np.swapaxes(self.beta_cov, 1, 2))
-        ev, evec = np.linalg.eigh(cov)
-        root = evec * np.sqrt(np.clip(ev, 0, None))[:, None, :]
+        used, inverse = np.unique(nodes, return_inverse=True)
+        cov = self.beta_cov[used]
+        ev, evec = np.linalg.eigh(0.5 * (cov + np.swapaxes(cov, 1, 2)))
+        root = (evec * np.sqrt(np.clip(ev, 0, None))[:, None, :])[inverse]
         zb = rng.standard_normal((n, self.beta_mean.shape[1]))
-        beta = self.beta_mean[nodes] + np.einsum("sij,sj->si", root[nodes], zb)
+        beta = self.beta_mean[nodes] + np.einsum("sij,sj->si", root, zb)
         load, shift, var = self.latest_growth()
         growth = (np.einsum("sp,sp->s", load[nodes], beta) + shift[nodes]
                   + np.sqrt(np.clip(var[nodes], 0, None)) * rng.standard_normal(n))
@@ -338,9 +352,11 @@ class StateSpacePosterior:
 
     def pointwise_loglik(self, nodes: np.ndarray, beta: np.ndarray) -> np.ndarray:
         """One-step log densities of the log values for draws ``(nodes, beta)``, ``(S, n)``."""
-        v = self._innov[nodes]
+        used, inverse = np.unique(nodes, return_inverse=True)
+        innov, var = _innovations(self._ctx, {k: v[used] for k, v in self.params.items()})
+        v = innov[inverse]
         e = v[..., 0] - np.einsum("snp,sp->sn", v[..., 1:], beta)
-        f = self._var[nodes]
+        f = var[inverse]
         return -0.5 * (math.log(2 * math.pi) + np.log(f) + e**2 / f)
 
     def beta_of(self, draws: dict) -> np.ndarray:

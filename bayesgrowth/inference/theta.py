@@ -23,7 +23,7 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import stats
+from scipy.special import gammaincinv, ndtri
 
 __all__ = ["ThetaDim", "theta_dims"]
 
@@ -43,8 +43,9 @@ class ThetaDim:
     ----------
     name : str
         Parameter name as in the posterior (``sigma``, ``sigma_level``, ...).
-    dist : scipy.stats frozen distribution
-        Prior of the parameter on its natural scale.
+    dist : object
+        Prior of the parameter on its natural scale, with ``logpdf`` and ``ppf``
+        (checked against scipy.stats in the tests).
     linear_fine : bool
         Whether the weighting grid runs in ``x`` itself.
     """
@@ -71,19 +72,62 @@ class ThetaDim:
         return 0.0, float(hi)
 
 
-def _gamma2(mean: float):
-    return stats.gamma(a=2.0, scale=mean / 2.0)
+class _HalfNormal:
+    """Half-normal distribution with scale ``s`` (scipy.stats.halfnorm's density)."""
+
+    def __init__(self, scale: float) -> None:
+        self.s = float(scale)
+
+    def logpdf(self, x):
+        x = np.asarray(x, dtype=float)
+        out = 0.5 * math.log(2 / math.pi) - math.log(self.s) - 0.5 * (x / self.s) ** 2
+        return np.where(x >= 0, out, -np.inf)
+
+    def ppf(self, q):
+        return self.s * ndtri(0.5 + 0.5 * np.asarray(q, dtype=float))
+
+
+class _Gamma2:
+    """Gamma distribution with shape 2 and the given mean (rate ``2 / mean``)."""
+
+    def __init__(self, mean: float) -> None:
+        self.theta = float(mean) / 2.0
+
+    def logpdf(self, x):
+        x = np.asarray(x, dtype=float)
+        with np.errstate(divide="ignore"):
+            out = np.log(x) - x / self.theta - 2 * math.log(self.theta)
+        return np.where(x > 0, out, -np.inf)
+
+    def ppf(self, q):
+        return self.theta * gammaincinv(2.0, np.asarray(q, dtype=float))
+
+
+class _LogNormal:
+    """Log-normal distribution: ``log x ~ Normal(mu, sd)``."""
+
+    def __init__(self, mu: float, sd: float) -> None:
+        self.mu, self.sd = float(mu), float(sd)
+
+    def logpdf(self, x):
+        x = np.asarray(x, dtype=float)
+        with np.errstate(divide="ignore"):
+            lx = np.log(x)
+        z = (lx - self.mu) / self.sd
+        return -0.5 * z**2 - lx - math.log(self.sd) - 0.5 * math.log(2 * math.pi)
+
+    def ppf(self, q):
+        return np.exp(self.mu + self.sd * ndtri(np.asarray(q, dtype=float)))
 
 
 def theta_dims(priors, mean_reverting: bool) -> list[ThetaDim]:
     """The grid dimensions for a local trend with these resolved priors."""
-    dims = [ThetaDim("sigma", stats.halfnorm(scale=priors.sigma_scale))]
+    dims = [ThetaDim("sigma", _HalfNormal(priors.sigma_scale))]
     if priors.level_shock_scale > 0:
-        dims.append(ThetaDim("sigma_level", _gamma2(priors.level_shock_scale)))
-    dims.append(ThetaDim("sigma_growth", _gamma2(priors.growth_drift_scale)))
+        dims.append(ThetaDim("sigma_level", _Gamma2(priors.level_shock_scale)))
+    dims.append(ThetaDim("sigma_growth", _Gamma2(priors.growth_drift_scale)))
     if mean_reverting:
-        dims.append(ThetaDim("half_life", stats.lognorm(s=priors.log_h_sd,
-                                                          scale=math.exp(priors.log_h_mu)),
+        dims.append(ThetaDim("half_life", _LogNormal(priors.log_h_mu, priors.log_h_sd),
                              linear_fine=False))
     return dims
 

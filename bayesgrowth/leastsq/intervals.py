@@ -19,7 +19,6 @@ from collections.abc import Sequence
 
 import numpy as np
 import pandas as pd
-from scipy import stats
 
 from bayesgrowth.leastsq.fits import GrowthFit, LogScaleStats
 
@@ -123,6 +122,7 @@ def log_linear_intervals(
         itself) and ``prediction_lower_L``, ``prediction_upper_L`` (interval for
         a new observation), all on the original scale.
     """
+    from scipy import stats  # imported here: scipy.stats costs ~1 s to import
     st = _log_stats(fit)
     lv = check_levels(levels)
     t_arr = np.atleast_1d(np.asarray(t, dtype=float))

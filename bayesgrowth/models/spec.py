@@ -24,7 +24,9 @@ from dataclasses import asdict, dataclass
 
 import numpy as np
 
-__all__ = ["CURVES", "DRIFTS", "ERRORS", "NOISES", "ModelSpec", "season_index"]
+__all__ = [
+    "CURVES", "DRIFTS", "ERRORS", "NOISES", "ModelSpec", "resolve_seasonal", "season_index",
+]
 
 #: Curve names.
 CURVES = ("exponential", "damped", "logistic", "gompertz", "local-trend")
@@ -172,3 +174,32 @@ def season_index(axis, t: np.ndarray) -> tuple[int, np.ndarray]:
     if axis.style == "month":
         return 12, ordinal % 12
     return 12 // months, (ordinal % 12) // months
+
+
+def resolve_seasonal(seasonal: bool | str, axis, t, model: str = "local-trend") -> bool:
+    """Whether to fit seasonal factors; ``"auto"`` decides from the calendar.
+
+    ``"auto"`` means seasonal factors for the local trend when the calendar has
+    seasons and two full years are observed (the other curves add them only when
+    asked).
+
+    Parameters
+    ----------
+    seasonal : bool or "auto"
+    axis : PeriodAxis or None
+    t : numpy.ndarray
+        Time indices of the observations.
+    model : str
+        The curve.
+    """
+    if isinstance(seasonal, str):
+        if seasonal.lower() != "auto":
+            raise ValueError(f"seasonal must be true, false or 'auto', got {seasonal!r}")
+        months = None if axis is None else axis.months_per_period
+        if _choice(model, CURVES, "model") != "local-trend":
+            return False
+        if months not in (1, 3):
+            return False
+        span = int(np.max(t)) - int(np.min(t)) + 1
+        return span >= 2 * (12 // months)
+    return bool(seasonal)

@@ -17,7 +17,7 @@ from __future__ import annotations
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
-from scipy import special, stats
+from scipy import special
 
 from bayesgrowth.scoring._checks import as_draws, as_float, check_df, check_scale
 
@@ -80,7 +80,8 @@ def crps_point(y: ArrayLike, forecast: ArrayLike) -> NDArray[np.float64] | np.fl
 
 
 def _std_normal_crps(z: NDArray[np.float64]) -> NDArray[np.float64]:
-    return z * (2.0 * special.ndtr(z) - 1.0) + 2.0 * stats.norm.pdf(z) - 1.0 / np.sqrt(np.pi)
+    pdf = np.exp(-0.5 * z * z) / np.sqrt(2.0 * np.pi)
+    return z * (2.0 * special.ndtr(z) - 1.0) + 2.0 * pdf - 1.0 / np.sqrt(np.pi)
 
 
 def crps_normal(
@@ -170,6 +171,7 @@ def crps_t(
     z = (obs - mu) / safe_s
     finite = np.isfinite(nu) & (nu > 1)
     nu_f = np.where(finite, nu, 2.0)
+    from scipy import stats  # imported here: scipy.stats costs ~1 s to import
     log_ratio = special.betaln(0.5, nu_f - 0.5) - 2.0 * special.betaln(0.5, nu_f / 2.0)
     std_t = (
         z * (2.0 * stats.t.cdf(z, nu_f) - 1.0)

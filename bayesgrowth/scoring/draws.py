@@ -22,7 +22,6 @@ from __future__ import annotations
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
-from scipy import stats
 
 from bayesgrowth.scoring._checks import as_float, check_df, check_scale
 
@@ -68,6 +67,7 @@ def draws_from_log_t(
         If ``n`` is not a positive integer, a scale is negative or a df is
         not positive.
     """
+    from scipy import stats  # imported here: scipy.stats costs ~1 s to import
     if isinstance(n, bool) or not isinstance(n, (int, np.integer)) or n < 1:
         raise ValueError(f"n (number of draws) must be a positive integer, got {n!r}")
     mu, s, nu = np.broadcast_arrays(as_float(loc), as_float(scale), as_float(df))

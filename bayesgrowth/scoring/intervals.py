@@ -14,7 +14,6 @@ from typing import Literal
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
-from scipy import stats
 
 from bayesgrowth.scoring._checks import as_float
 
@@ -168,6 +167,7 @@ def coverage_interval(
     ValueError
         If the counts, level or method are invalid.
     """
+    from scipy import stats  # imported here: scipy.stats costs ~1 s to import
     if n <= 0 or k < 0 or k > n:
         raise ValueError(f"need 0 <= k <= n and n > 0, got k={k}, n={n}")
     if not 0 < level < 1:

@@ -16,7 +16,7 @@ from __future__ import annotations
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
-from scipy import special, stats
+from scipy import special
 
 from bayesgrowth.scoring._checks import as_draws, as_float, check_df
 
@@ -123,6 +123,7 @@ def log_score_t(
     if not np.all(s > 0):
         raise ValueError("scale must be positive for a density")
     check_df(nu)
+    from scipy import stats  # imported here: scipy.stats costs ~1 s to import
     out = -(stats.t.logpdf((obs - mu) / s, nu) - np.log(s))
     return out[()] if out.ndim == 0 else out
 

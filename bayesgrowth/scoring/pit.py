@@ -10,7 +10,6 @@ from __future__ import annotations
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
-from scipy import stats
 
 from bayesgrowth.scoring._checks import as_draws, as_float, check_df
 
@@ -67,6 +66,7 @@ def pit_t(
     ValueError
         If any scale or df is not positive.
     """
+    from scipy import stats  # imported here: scipy.stats costs ~1 s to import
     obs, mu, s, nu = np.broadcast_arrays(
         as_float(y), as_float(loc), as_float(scale), as_float(df)
     )
@@ -156,6 +156,7 @@ def pit_uniformity(pit_values: ArrayLike) -> float:
     float
         p-value; NaN when there are no values.
     """
+    from scipy import stats  # imported here: scipy.stats costs ~1 s to import
     v = as_float(pit_values).ravel()
     v = v[~np.isnan(v)]
     if v.size == 0:

@@ -69,8 +69,8 @@ def fit_models(
     models : sequence of str, optional
         Curve names; default every one of :func:`registered_models`.
     engine : {"auto", "nuts"}
-        ``auto``: the exact engine where it applies (the plain exponential model),
-        NUTS for the rest; ``nuts``: NUTS for every model.
+        ``auto``: the exact engine where it applies (the local trend and the plain
+        exponential model), NUTS for the rest; ``nuts``: NUTS for every model.
     seed : int
         Seed of every fit.
     priors : Priors, optional
@@ -90,7 +90,7 @@ def fit_models(
         kept in each fit's ``diagnostics`` rather than raised.
     """
     from bayesgrowth.inference.run import fit_series
-    from bayesgrowth.models.spec import ModelSpec
+    from bayesgrowth.models.spec import ModelSpec, resolve_seasonal
 
     if engine not in ("auto", "nuts"):
         raise ValueError(f"engine must be 'auto' or 'nuts', got {engine!r}")
@@ -107,8 +107,10 @@ def fit_models(
         raise ValueError("each model may be named only once")
     fits = {}
     for name in names:
-        spec = ModelSpec(model=name, errors=errors, noise=noise, seasonal=seasonal, drift=drift)
-        use = "exact" if engine == "auto" and spec.is_plain_exponential else "nuts"
+        seasons = resolve_seasonal(seasonal, series.axis, series.t, name)
+        spec = ModelSpec(model=name, errors=errors, noise=noise, seasonal=seasons, drift=drift)
+        exact_fits = spec.is_plain_exponential or spec.is_state_space
+        use = "exact" if engine == "auto" and exact_fits else "nuts"
         options = dict(settings)
         if use == "exact":
             options = {k: v for k, v in options.items() if k in ("draws", "chains")}

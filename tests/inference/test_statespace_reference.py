@@ -126,3 +126,22 @@ def test_forecast_moments_match_statsmodels():
                                rtol=1e-8)
     marg = post.predictive(np.arange(j[-1] + 1, j[-1] + 1 + h), joint=False)
     np.testing.assert_allclose(marg["value_var"][0], np.diag(pred["value_cov"][0]), rtol=1e-12)
+
+
+def test_compiled_statistics_equal_the_plain_filter():
+    # the compiled kernel reduces the plain augmented filter (itself checked against
+    # statsmodels above) to V' F^-1 V, sum log F and the last state
+    from bayesgrowth.inference.kalman import augmented_filter, gram_filter
+
+    ctx, j, y = _context(n=30, seasons=4, long_run=True)
+    rho, sl, sg, sig = (np.array(c) for c in zip(*THETAS, strict=True))
+    gram, logf, state, state_cov = gram_filter(y, ctx.season, j, rho, sl, sg, sig, True)
+    x = ss._design(ctx, rho, j, ctx.season)
+    data = np.concatenate([np.broadcast_to(y, (3, y.size))[..., None], x], axis=-1)
+    res = augmented_filter(data, j, rho, sl, sg, sig)
+    v, f = res.innovations, res.variance
+    np.testing.assert_allclose(gram, np.einsum("gni,gnj->gij", v / f[..., None], v),
+                               rtol=1e-10, atol=1e-12)
+    np.testing.assert_allclose(logf, np.log(f).sum(axis=1), rtol=1e-12)
+    np.testing.assert_allclose(state, res.state, rtol=1e-10, atol=1e-12)
+    np.testing.assert_allclose(state_cov, res.state_cov, rtol=1e-10, atol=1e-14)

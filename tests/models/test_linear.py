@@ -152,6 +152,7 @@ def test_switched_off_rows_drop_out_exactly(spec):
         values["log_half_life"] = math.log(4.0)
     if spec.model == "local-trend":
         values["sigma_growth_log__"] = math.log(0.01)
+        values["sigma_level_log__"] = math.log(0.02)
     if spec.seasonal:
         values["season_zerosum__"] = SEASON[:-1]
     on_full = general.build_pymc_model(spec, pr, full.t, full.log_values, weight, axis=full.axis)

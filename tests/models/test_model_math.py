@@ -132,14 +132,15 @@ def test_local_trend_marginal_likelihood_matches_statsmodels_with_a_random_start
     # level_0 = log a, beta_0 = b + s_g u_1 ~ N(mu_b, v_b + s_g^2). Its Kalman-filter likelihood
     # must equal the PyMC model's potential, where log a and b are integrated out in closed form.
     from bayesgrowth.models.general import build_pymc_model
-    from bayesgrowth.priors import Priors
+    from bayesgrowth.priors import LocalTrendPrior, Priors
 
     n, sigma, s_g = 18, 0.04, 0.012
     y = 4.0 + 0.05 * np.arange(n) + np.cumsum(s_g * rng.standard_normal(n)).cumsum() \
         + sigma * rng.standard_normal(n)
     series = _lt_series(y)
     spec = ModelSpec(model="local-trend")
-    pr = Priors().resolve(series)
+    # the local trend without level shocks (statsmodels' level variance 0 below)
+    pr = Priors(local_trend=LocalTrendPrior(level_shock_pct=0)).resolve(series)
     model = build_pymc_model(spec, pr, series.t, series.log_values, axis=series.axis)
     point = {"sigma_log__": math.log(sigma), "sigma_growth_log__": math.log(s_g)}
     (pot,) = model.replace_rvs_by_values([model.potentials[0]])

@@ -1,0 +1,109 @@
+"""The exact state-space engine: priors, mixture quantiles, bands, model averaging, calibration."""
+
+import math
+
+import numpy as np
+import pytest
+from scipy import stats
+
+import bayesgrowth as bg
+from bayesgrowth.forecast.mixture import mixture_cdf, mixture_quantiles
+from bayesgrowth.inference import statespace as ss
+from bayesgrowth.inference.run import fit_series
+from bayesgrowth.inference.theta import _Gamma2, _HalfNormal, _LogNormal
+from bayesgrowth.models.spec import ModelSpec
+from bayesgrowth.priors import Priors
+
+
+@pytest.mark.parametrize(
+    "mine,ref",
+    [
+        (_HalfNormal(0.26), stats.halfnorm(scale=0.26)),
+        (_Gamma2(0.05), stats.gamma(a=2.0, scale=0.025)),
+        (_LogNormal(math.log(8), math.log(3)), stats.lognorm(s=math.log(3), scale=8)),
+    ],
+)
+def test_prior_densities_and_quantiles_match_scipy(mine, ref):
+    # reference: scipy.stats' distributions
+    x = np.array([1e-4, 0.01, 0.1, 0.5, 3.0, 20.0])
+    np.testing.assert_allclose(mine.logpdf(x), ref.logpdf(x), rtol=1e-12)
+    q = np.array([1e-4, 0.1, 0.5, 0.9, 1 - 1e-4])
+    np.testing.assert_allclose(mine.ppf(q), ref.ppf(q), rtol=1e-10)
+
+
+def test_mixture_quantiles_invert_the_cdf_and_match_a_large_sample():
+    rng = np.random.default_rng(0)
+    w = rng.dirichlet(np.ones(40))
+    m = rng.normal(size=(40, 3))
+    s = rng.uniform(0.05, 1.0, size=(40, 3))
+    probs = [0.025, 0.1, 0.5, 0.9, 0.975]
+    q = mixture_quantiles(w, m, s, probs)
+    np.testing.assert_allclose(mixture_cdf(w, m, s, q), np.broadcast_to(np.array(probs)[:, None],
+                                                                        q.shape), atol=1e-9)
+    comp = rng.choice(40, size=400_000, p=w)
+    x = m[comp] + s[comp] * rng.standard_normal((comp.size, 3))
+    np.testing.assert_allclose(q, np.quantile(x, probs, axis=0), atol=0.02)
+
+
+@pytest.fixture(scope="module")
+def demo_fit():
+    return fit_series(bg.load_demo(), engine="exact", model="local-trend", drift="adaptive",
+                      seasonal=True, seed=11)
+
+
+def test_exact_bands_agree_with_the_predictive_draws(demo_fit):
+    fc = bg.forecast(demo_fit, 8)
+    tab = fc.table
+    n = fc.draws.shape[0]
+    for level in (50, 80, 95):
+        inside = ((fc.draws >= tab[f"lower_{level}"].to_numpy())
+                  & (fc.draws <= tab[f"upper_{level}"].to_numpy())).mean(axis=0)
+        # binomial standard error of a share from n independent draws: sqrt(p (1 - p) / n)
+        se = math.sqrt(level / 100 * (1 - level / 100) / n)
+        assert np.all(np.abs(inside - level / 100) < 4 * se)
+    p_exact = fc.prob_exceeds(float(tab["median"].iloc[-1])).iloc[-1]
+    assert p_exact == pytest.approx(0.5, abs=1e-9)
+
+
+def test_adaptive_weights_are_the_normalised_evidences():
+    # Bayesian model averaging (Hoeting, Madigan, Raftery & Volinsky 1999, Statistical
+    # Science 14(4)): with prior mass 1/2 each, a branch's weight is its evidence share
+    s = bg.load_demo()
+    pr = Priors().resolve(s)
+    both = ss.state_space_posterior(s, pr, ModelSpec(model="local-trend", drift="adaptive"))
+    rw = ss.state_space_posterior(s, pr, ModelSpec(model="local-trend", drift="random-walk"))
+    mr = ss.state_space_posterior(s, pr, ModelSpec(model="local-trend", drift="mean-reverting"))
+    share = 1 / (1 + math.exp(mr.log_evidence - rw.log_evidence))
+    assert both.branch_weight["drifting"] == pytest.approx(share, abs=0.03)
+    combined = math.log(0.5 * math.exp(rw.log_evidence) + 0.5 * math.exp(mr.log_evidence))
+    assert both.log_evidence == pytest.approx(combined, abs=0.05)
+
+
+def test_seasonal_auto_needs_two_full_years():
+    s = bg.load_demo()
+    short = s.head(7)
+    assert fit_series(short, engine="exact", model="local-trend", drift="random-walk",
+                      seasonal="auto", seed=1).spec.seasonal is False
+    assert fit_series(s, engine="exact", model="local-trend", drift="random-walk",
+                      seasonal="auto", seed=1).spec.seasonal is True
+
+
+def test_log_likelihood_matches_the_dense_gaussian(demo_fit):
+    # the one-step densities multiply to the joint normal density of the log values given
+    # each draw's parameters: compare with the dense covariance of the local trend
+    # (bayesgrowth.models.local_trend, itself checked against statsmodels)
+    from bayesgrowth.models import local_trend
+
+    ll = demo_fit.log_likelihood().reshape(-1, demo_fit.series.n)[:50]
+    flat = {k: v[:50] for k, v in demo_fit.flat().items()}
+    s = demo_fit.series
+    fades = np.isfinite(flat["half_life"])
+    for spec, rows in ((ModelSpec(model="local-trend", drift="random-walk"), ~fades),
+                       (ModelSpec(model="local-trend", drift="mean-reverting"), fades)):
+        if not rows.any():
+            continue
+        d = {k: v[rows] for k, v in flat.items()}
+        resid = s.log_values[None, :] - d["season"][:, np.arange(s.n) % 4]
+        dense = local_trend.log_likelihood(spec, d, s.t, resid, demo_fit.priors.t_ref)
+        np.testing.assert_allclose(ll[rows].sum(axis=1),
+                                   dense.sum(axis=1) - np.log(s.values).sum(), rtol=1e-6)
