@@ -12,7 +12,7 @@ from bayesgrowth.cli.common import (
     fmt_number,
     read_input,
 )
-from bayesgrowth.cli.output import staged_output
+from bayesgrowth.cli.output import add_force_option, staged_output
 from bayesgrowth.cli.text import add_unit_option, unit_from_args
 from bayesgrowth.data.export import write_csv
 from bayesgrowth.report.words import band_phrases
@@ -34,6 +34,7 @@ def add_parser(sub) -> None:
     add_model_options(p)
     add_unit_option(p)
     p.add_argument("--out", required=True, help="output folder")
+    add_force_option(p)
     p.add_argument("--max-drop", type=int, default=None, metavar="K",
                    help="drop up to K periods from either end in the window variants "
                    "[min(3, n-3)]")
@@ -54,7 +55,7 @@ def run(args) -> int:
         raise UsageError(f"--max-drop {args.max_drop}: must be between 0 and {series.n - 3} "
                          f"for {series.n} observations (every fit keeps 3)")
     names = ["comparison.csv", "comparison.png"]
-    with staged_output(Path(args.out), names, [args.file]) as stage:
+    with staged_output(Path(args.out), names, [args.file], force=args.force) as stage:
         fit = fit_from_args(args, series)
         fc = forecast(fit, args.horizon, levels=args.levels)
         try:

@@ -26,7 +26,7 @@ from bayesgrowth.cli.common import (
     read_input,
     say,
 )
-from bayesgrowth.cli.output import staged_output
+from bayesgrowth.cli.output import add_force_option, staged_output
 from bayesgrowth.cli.text import add_unit_option, forecast_lines, unit_from_args
 from bayesgrowth.data.export import NOT_AVAILABLE_KEY, json_ready, json_text, write_csv
 from bayesgrowth.data.series import GrowthSeries, InputError
@@ -54,6 +54,7 @@ def build_parser() -> argparse.ArgumentParser:
     add_model_options(fc)
     add_unit_option(fc)
     fc.add_argument("--out", type=Path, required=True, help="output folder")
+    add_force_option(fc)
     fc.add_argument(
         "--target",
         type=float,
@@ -82,6 +83,7 @@ def build_parser() -> argparse.ArgumentParser:
         default=Path("bayesgrowth-demo"),
         help="output folder [bayesgrowth-demo]",
     )
+    add_force_option(demo)
     demo.add_argument("--target", type=float, default=None, help=argparse.SUPPRESS)
     demo.add_argument("--target-probability", type=float, default=0.5, help=argparse.SUPPRESS)
     demo.set_defaults(run=_run_demo)
@@ -104,7 +106,7 @@ def _run_forecast(args, series: GrowthSeries | None = None) -> int:
         raise UsageError(f"--target-probability {args.target_probability}: must be between 0 and 1")
     names = ["forecast.csv", "summary.json", "fan_chart.png", "posterior.nc"]
     protect = [args.file] if getattr(args, "file", None) else []
-    with staged_output(args.out, names, protect) as stage:
+    with staged_output(args.out, names, protect, force=args.force) as stage:
         fit = fit_from_args(args, series)
         fc = forecast(fit, args.horizon, levels=args.levels)
         summary = fc.summary(args.target, args.target_probability)

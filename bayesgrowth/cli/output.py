@@ -1,7 +1,18 @@
-"""Atomic output: every file of a run appears together, or none does."""
+"""Output folders: every file of a run appears together or none does, and no file is lost.
+
+A run stages its files in a hidden folder inside ``--out`` and moves them into
+place only when all of them are written, each by an atomic rename. The folder
+keeps a small manifest, :data:`MANIFEST`, with the SHA-256 of every file the tool
+wrote there. A run replaces a file only if the manifest says the tool wrote it
+and it has not changed since; any other file of the same name is left alone and
+the run is refused before any computation (``--force`` replaces it).
+"""
 
 from __future__ import annotations
 
+import argparse
+import hashlib
+import json
 import os
 import shutil
 import tempfile
@@ -11,51 +22,141 @@ from pathlib import Path
 
 from bayesgrowth.data.series import InputError
 
-__all__ = ["staged_output"]
+__all__ = ["MANIFEST", "add_force_option", "check_output", "staged_output"]
+
+#: The manifest of the files the tool wrote into an output folder.
+MANIFEST = ".bayesgrowth-manifest.json"
+STAGE_PREFIX = ".bayesgrowth-stage-"
+
+
+def add_force_option(p: argparse.ArgumentParser) -> None:
+    """Register ``--force`` on a subcommand that writes into ``--out``."""
+    p.add_argument(
+        "--force",
+        action="store_true",
+        help="replace files of the same names in --out even when bayesgrowth did not write "
+        "them (or they changed since); without it such a run stops before any work",
+    )
+
+
+def _sha256(path: Path) -> str:
+    digest = hashlib.sha256()
+    with path.open("rb") as f:
+        for block in iter(lambda: f.read(1 << 20), b""):
+            digest.update(block)
+    return digest.hexdigest()
+
+
+def _read_manifest(out: Path) -> dict[str, str]:
+    try:
+        files = json.loads((out / MANIFEST).read_text())["files"]
+        return {str(k): str(v) for k, v in files.items()}
+    except (OSError, ValueError, KeyError, TypeError, AttributeError):
+        return {}
+
+
+def _write_manifest(out: Path, files: dict[str, str]) -> None:
+    fd, tmp = tempfile.mkstemp(prefix=f"{MANIFEST}.", suffix=".tmp", dir=out)
+    try:
+        with os.fdopen(fd, "w") as f:
+            json.dump({"written_by": "bayesgrowth", "files": dict(sorted(files.items()))}, f,
+                      indent=2)
+            f.write("\n")
+        os.replace(tmp, out / MANIFEST)
+    finally:
+        if os.path.exists(tmp):
+            os.unlink(tmp)
+
+
+def check_output(out_dir: str | Path, names: list[str], protect: list[Path],
+                 force: bool = False) -> None:
+    """Refuse, before any work, names that would overwrite the input, a folder, or a user's file.
+
+    Raises
+    ------
+    InputError
+        Naming ``--out``, the file, and the way out (another folder, or ``--force``).
+    """
+    out = Path(out_dir)
+    protected = {p.resolve() for p in protect}
+    own = _read_manifest(out) if out.is_dir() else {}
+    for name in names:
+        target = out / name
+        if target.resolve() in protected:
+            raise InputError(f"--out {out}: writing {name} there would overwrite the input "
+                             "file; choose another folder")
+        if target.is_dir():
+            raise InputError(f"--out {out}: {name} there is a folder; choose another folder")
+        if target.exists() and not force and own.get(name) != _sha256(target):
+            how = "changed since bayesgrowth wrote it" if name in own else (
+                "not written by bayesgrowth")
+            raise InputError(f"--out {out}: {name} is already there and {how}; choose another "
+                             "folder, or pass --force to replace it")
+
+
+def _make_stage(out: Path) -> tuple[Path, bool]:
+    """Create ``out`` if needed and a staging folder inside it; fail early if not writable."""
+    if out.exists() and not out.is_dir():
+        raise InputError(f"--out {out}: exists and is not a folder; name a folder")
+    created = not out.exists()
+    try:
+        out.mkdir(parents=False, exist_ok=True)
+        return Path(tempfile.mkdtemp(prefix=STAGE_PREFIX, dir=out)), created
+    except FileNotFoundError:
+        raise InputError(
+            f"--out {out}: its parent folder {out.resolve().parent} does not exist; create it "
+            "first"
+        ) from None
+    except OSError as exc:
+        if created and out.is_dir() and not any(out.iterdir()):
+            out.rmdir()
+        raise InputError(f"--out {out}: cannot write there ({exc.strerror}); choose a folder "
+                         "you may write to") from None
 
 
 @contextmanager
-def staged_output(out_dir: str | Path, names: list[str], protect: list[Path]) -> Iterator[Path]:
-    """Stage files in a temporary folder and move them into ``out_dir`` only on success.
+def staged_output(
+    out_dir: str | Path, names: list[str], protect: list[Path], *, force: bool = False
+) -> Iterator[Path]:
+    """Stage files inside ``out_dir`` and move them into place only on success.
 
     Parameters
     ----------
     out_dir : path
-        Destination folder; created if missing (and removed again on failure).
+        Destination folder; created if missing (and removed again on failure when
+        it is still empty).
     names : list of str
-        File names the run will write; checked against ``protect`` first.
+        File names the run will write; checked before any work against ``protect``,
+        folders of those names, and files the tool did not write.
     protect : list of Path
         Files that must never be overwritten (the user's input).
+    force : bool
+        Replace existing files of those names even when the tool did not write them.
 
     Yields
     ------
     Path
-        The staging folder to write into, on the same file system as ``out_dir``.
+        The staging folder to write into (hidden, inside ``out_dir``).
+
+    Raises
+    ------
+    InputError
+        Before the body runs, when the folder cannot take the files; after it, when
+        a file the tool did not write appeared there in the meantime.
     """
     out = Path(out_dir)
-    if out.exists() and not out.is_dir():
-        raise InputError(f"--out {out}: exists and is not a folder; name a folder")
-    protected = {p.resolve() for p in protect}
-    for name in names:
-        if (out / name).resolve() in protected:
-            raise InputError(
-                f"--out {out}: writing {name} there would overwrite the input file; "
-                "choose another folder"
-            )
-    created = not out.exists()
-    parent = out.resolve().parent
-    if not parent.exists():
-        raise InputError(f"--out {out}: parent folder {parent} does not exist")
-    stage = Path(tempfile.mkdtemp(prefix=".bayesgrowth-", dir=parent))
+    check_output(out, names, protect, force)
+    stage, created = _make_stage(out)
     try:
         yield stage
-        out.mkdir(exist_ok=True)
-        for name in names:
-            src = stage / name
-            if src.exists():
-                os.replace(src, out / name)
+        check_output(out, names, protect, force)  # nothing of the user's appeared meanwhile
+        written = {n: _sha256(stage / n) for n in names if (stage / n).exists()}
+        for name in written:
+            os.replace(stage / name, out / name)
+        _write_manifest(out, {**_read_manifest(out), **written})
     except BaseException:
-        if created and out.exists() and not any(out.iterdir()):
+        shutil.rmtree(stage, ignore_errors=True)
+        if created and out.is_dir() and not any(out.iterdir()):
             out.rmdir()
         raise
     finally:

@@ -10,7 +10,7 @@ from pathlib import Path
 
 from bayesgrowth.cli.acceptance import diagnostics_exit
 from bayesgrowth.cli.common import UsageError, add_input, add_model_options, read_input, say
-from bayesgrowth.cli.output import staged_output
+from bayesgrowth.cli.output import add_force_option, staged_output
 from bayesgrowth.cli.text import add_unit_option, unit_from_args
 
 __all__ = ["add_parser"]
@@ -28,6 +28,7 @@ def add_parser(sub) -> None:
     add_model_options(p)
     add_unit_option(p)
     p.add_argument("--out", type=Path, required=True, help="output folder")
+    add_force_option(p)
     p.add_argument("--target", type=float, default=None,
                    help="a budget or guidance value: report the probability of reaching it")
     p.add_argument("--target-probability", type=float, default=0.5, metavar="P",
@@ -53,9 +54,8 @@ def run(args) -> int:
     command = "bayesgrowth " + " ".join(shlex.quote(a) for a in sys.argv[1:])
     names = ["report.html"]
     say(args, f"building the report for {series.name} ({args.engine} engine) ...")
-    with staged_output(args.out, names, [args.file]) as stage, warnings.catch_warnings(
-        record=True
-    ) as caught:
+    staged = staged_output(args.out, names, [args.file], force=args.force)
+    with staged as stage, warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", SamplingWarning)  # the forecast's own fit
         page = build_report(
             series, args.horizon, engine=args.engine, seed=args.seed, priors=priors,

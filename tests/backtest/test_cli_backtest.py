@@ -10,6 +10,7 @@ import pytest
 
 from bayesgrowth.cli.backtest import OUTPUT_FILES
 from bayesgrowth.cli.main import main
+from bayesgrowth.cli.output import MANIFEST
 from bayesgrowth.data.demo import demo_path
 
 
@@ -28,7 +29,7 @@ def test_backtest_writes_every_file_and_prints_verdicts(tmp_path, capsys):
         capsys,
     )
     assert code == 0, stderr
-    assert sorted(p.name for p in out.iterdir()) == sorted(OUTPUT_FILES)
+    assert sorted(p.name for p in out.iterdir()) == sorted([*OUTPUT_FILES, MANIFEST])
     forecasts = pd.read_csv(out / "backtest_forecasts.csv")
     for col in ("method", "origin", "step", "period", "actual", "median", "lower_80",
                 "upper_80", "pit", "crps", "log_score"):

@@ -4,6 +4,7 @@ import pandas as pd
 import pytest
 
 from bayesgrowth.cli import main
+from bayesgrowth.cli.output import MANIFEST
 from bayesgrowth.data.demo import demo_path
 from bayesgrowth.select import registered_models
 
@@ -17,7 +18,7 @@ def test_models_exact_on_the_demo(tmp_path, capsys):
                "exact", "--models", "exponential", "--quiet"])
     assert rc == 0
     assert sorted(p.name for p in out.iterdir()) == [
-        "averaged_forecast.csv", "model_comparison.csv", "models.png"]
+        MANIFEST, "averaged_forecast.csv", "model_comparison.csv", "models.png"]
     comp = pd.read_csv(out / "model_comparison.csv")
     assert comp["model"].tolist() == ["exponential"]
     for col in ("elpd_loo", "se", "elpd_diff", "dse", "p_loo", "weight", "max_pareto_k"):
