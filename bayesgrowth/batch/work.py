@@ -20,7 +20,7 @@ import numpy as np
 import pandas as pd
 
 from bayesgrowth.config import DEFAULT_LEVELS
-from bayesgrowth.data.series import GrowthSeries
+from bayesgrowth.data.series import GrowthSeries, InputError
 from bayesgrowth.priors import Priors
 
 __all__ = ["BatchSettings", "SeriesOutcome", "fit_chunk", "fit_one", "posterior_file_name"]
@@ -167,11 +167,15 @@ def fit_one(series: GrowthSeries, settings: BatchSettings) -> SeriesOutcome:
     outcome = SeriesOutcome(name=series.name, fingerprint=series.fingerprint())
     seed = series_seed(settings.seed, series.name)
     try:
+        series.check_horizon(settings.horizon)  # before fitting: a calendar past 9999
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")  # diagnostics go to the summary instead
             fit = _fit(series, settings, seed)
             fc = forecast(fit, settings.horizon, levels=settings.levels)
             table = fc.table
+    except InputError as exc:  # the series' data or the options: the message says which
+        outcome.failure = f"{series.name}: {exc}"
+        return outcome
     except Exception as exc:  # a series that cannot be fitted must not stop the batch
         outcome.failure = f"{series.name}: {type(exc).__name__}: {exc}"
         return outcome

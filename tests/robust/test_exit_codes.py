@@ -170,3 +170,34 @@ def test_dollar_title_is_drawn_as_typed():
     ax.set_title(literal(r"r$\frac$"))
     fig.canvas.draw()  # raised ValueError (mathtext) before the escape
     plt.close(fig)
+
+
+@pytest.mark.parametrize("command, extra", [
+    ("backtest", ("--min-train", 3)),
+    ("report", ("--engine", "exact")),
+    ("compare", ("--engine", "exact")),
+    ("models", ("--engine", "exact")),
+])
+def test_constant_series_is_a_user_error_everywhere(tmp_path, run_cli, snapshot, user_error,
+                                                    command, extra):
+    data, src = _case(tmp_path, "flat.csv", "period,value\n" + "".join(
+        f"2023Q{q},250\n" for q in (1, 2, 3, 4)))
+    before = snapshot(data)
+    out = tmp_path / "out"
+    proc = run_cli(command, src, "--horizon", 2, "--out", out, *extra)
+    user_error(proc, "flat.csv, column 'value': every value is 250")
+    assert not out.exists()
+    assert snapshot(data) == before
+
+
+def test_batch_series_past_9999_fails_alone_before_fitting(tmp_path, run_cli):
+    src = tmp_path / "panel.csv"
+    rows = [("late", f"9999Q{q}", 100 + 10 * q) for q in (2, 3, 4)]
+    rows += [("early", f"2020Q{q}", 100 + 10 * q) for q in (1, 2, 3)]
+    src.write_text("series,period,value\n" + "".join(f"{s},{p},{v}\n" for s, p, v in rows))
+    out = tmp_path / "out"
+    proc = run_cli("batch", src, "--horizon", 2, "--out", out, "--workers", 1, "--quiet")
+    assert proc.returncode == 3, proc.stderr
+    reason = (out / "failures.csv").read_text().splitlines()[1]
+    assert reason.startswith("late,") and "past the year 9999" in reason
+    assert "Error" not in reason  # no Python exception name
