@@ -10,7 +10,7 @@ from pathlib import Path
 
 from bayesgrowth.cli.acceptance import diagnostics_exit
 from bayesgrowth.cli.common import UsageError, add_input, add_model_options, read_input, say
-from bayesgrowth.cli.output import add_force_option, staged_output
+from bayesgrowth.cli.output import add_force_option, check_output, staged_output
 from bayesgrowth.cli.text import add_unit_option, unit_from_args
 
 __all__ = ["add_parser"]
@@ -53,6 +53,7 @@ def run(args) -> int:
     spec_options = checked_model_options(args, (args.engine,))
     command = "bayesgrowth " + " ".join(shlex.quote(a) for a in sys.argv[1:])
     names = ["report.html"]
+    check_output(args.out, names, [args.file], force=args.force)
     say(args, f"building the report for {series.name} ({args.engine} engine) ...")
     staged = staged_output(args.out, names, [args.file], force=args.force)
     with staged as stage, warnings.catch_warnings(record=True) as caught:

@@ -158,3 +158,22 @@ def test_read_only_parent_with_writable_output_folder(tmp_path, src, run_cli):
         parent.chmod(0o755)
     assert proc.returncode == 0, proc.stderr
     assert (out / "forecast.csv").exists()
+
+
+@pytest.mark.parametrize("command, name, extra", [
+    ("compare", "comparison.csv", ("--engine", "exact")),
+    ("report", "report.html", ("--engine", "exact")),
+    ("backtest", "backtest_scores.csv", ("--min-train", "12")),
+    ("models", "models.png", ("--engine", "exact")),
+])
+def test_every_subcommand_keeps_a_users_file(tmp_path, run_cli, snapshot, user_error, command,
+                                             name, extra):
+    from bayesgrowth.data.demo import demo_path
+
+    out = tmp_path / "out"
+    out.mkdir()
+    (out / name).write_text("mine\n")
+    before = snapshot(out)
+    proc = run_cli(command, demo_path(), "--horizon", 2, "--out", out, *extra)
+    user_error(proc, f"{name} is already there and not written by bayesgrowth", "--force")
+    assert snapshot(out) == before
