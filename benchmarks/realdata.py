@@ -154,6 +154,9 @@ def _parse(argv: Sequence[str] | None) -> argparse.Namespace:
     p.add_argument("--max-per-group", type=int, default=None)
     p.add_argument("--seed", type=int, default=0, help="seed of the subsample and bootstrap")
     p.add_argument("--bootstrap", type=int, default=2000, help="bootstrap resamples")
+    p.add_argument("--keep", type=Path, default=None, metavar="DIR",
+                   help="also summarise the other methods' rows of DIR/scores_by_series.csv "
+                   "(an earlier run on the same series), so slow references need not rerun")
     args = p.parse_args(argv)
     args.methods = _names(args.methods, list(METHODS), "--methods")
     args.collections = _names(args.collections, list(COLLECTIONS), "--collections")
@@ -219,7 +222,13 @@ def main(argv: Sequence[str] | None = None) -> int:
     start = time.perf_counter()
     scores = run_benchmark(records, args.methods, args.jobs)
     wall = time.perf_counter() - start
-    summary = summarise(scores, n_boot=args.bootstrap, seed=args.seed, methods=args.methods)
+    methods = list(args.methods)
+    if args.keep is not None:  # earlier rows of other methods, same series, kept beside
+        earlier = pd.read_csv(args.keep / "scores_by_series.csv")
+        earlier = earlier[~earlier["method"].isin(methods)]
+        methods += [m for m in dict.fromkeys(earlier["method"]) if m not in methods]
+        scores = pd.concat([scores, earlier], ignore_index=True)
+    summary = summarise(scores, n_boot=args.bootstrap, seed=args.seed, methods=methods)
     _write(Path(args.out), scores, summary, _notes(args, records, wall))
     shown = summary[summary["group"] == "pooled"]
     cols = ["method", "series", "failed", "inside_80", "inside_95", "msis", "scaled_crps",
