@@ -208,7 +208,11 @@ def _bayesian_predictor(engine: str, series: GrowthSeries, priors, model_options
         from bayesgrowth.inference import refit as refit_module
 
         if refit_module.supports(options):
-            from bayesgrowth.models.spec import ModelSpec
+            from bayesgrowth.models.spec import ModelSpec, resolve_seasonal
+
+            # one compiled model serves every origin: "auto" seasons decided on the series
+            options["seasonal"] = resolve_seasonal(options.get("seasonal", False), series.axis,
+                                                   series.t, options.get("model", "exponential"))
 
             sampler = {k: options[k] for k in ("tune", "target_accept", "cores") if k in options}
             spec = ModelSpec(**{k: options[k] for k in refit_module.SPEC_OPTIONS if k in options})

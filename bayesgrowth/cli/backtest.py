@@ -7,6 +7,7 @@ import sys
 import warnings
 from pathlib import Path
 
+from bayesgrowth.cli.acceptance import diagnostics_exit
 from bayesgrowth.cli.common import (
     UsageError,
     add_input,
@@ -17,7 +18,7 @@ from bayesgrowth.cli.common import (
     read_input,
     say,
 )
-from bayesgrowth.cli.output import staged_output
+from bayesgrowth.cli.output import add_force_option, check_output, staged_output
 from bayesgrowth.cli.text import add_unit_option, unit_from_args
 from bayesgrowth.data.export import write_csv
 
@@ -75,6 +76,7 @@ def add_parser(subparsers) -> argparse.ArgumentParser:
     p.add_argument("--min-train", type=int, required=True, metavar="N",
                    help="training points at the first origin (at least 3)")
     p.add_argument("--out", type=Path, required=True, help="output folder")
+    add_force_option(p)
     p.add_argument(
         "--methods",
         default=None,
@@ -120,14 +122,14 @@ def _check_settings(args, n: int) -> None:
 
 def _default_methods(args) -> tuple[str, ...]:
     """The default methods, with ``nuts`` for ``exact`` when the model options need NUTS."""
-    from bayesgrowth.models.spec import ModelSpec
+    from bayesgrowth.cli.common import exact_covers, spec_from_options
 
     methods = _methods(DEFAULT_METHODS)
     try:
-        plain = ModelSpec(**model_options_from_args(args)).is_plain_exponential
-    except ValueError:
+        covered = exact_covers(spec_from_options(model_options_from_args(args)))
+    except UsageError:
         return methods  # checked_model_options reports the bad option
-    return methods if plain else tuple("nuts" if m == "exact" else m for m in methods)
+    return methods if covered else tuple("nuts" if m == "exact" else m for m in methods)
 
 
 def run(args) -> int:
@@ -135,6 +137,7 @@ def run(args) -> int:
     methods = _default_methods(args) if args.methods is None else _methods(args.methods)
     series = read_input(args)
     _check_settings(args, series.n)
+    check_output(args.out, OUTPUT_FILES, [args.file], force=args.force)
     priors = priors_from_args(args)
     priors.resolve(series.head(args.min_train))  # a bad --reference-period fails here, early
     spec_options = checked_model_options(args, methods, option="--methods")
@@ -160,7 +163,7 @@ def run(args) -> int:
     for w in caught:
         if issubclass(w.category, UserWarning) and "BLAS" not in str(w.message):
             print(f"WARNING: {w.message}", file=sys.stderr)
-    with staged_output(args.out, OUTPUT_FILES, [args.file]) as stage:
+    with staged_output(args.out, OUTPUT_FILES, [args.file], force=args.force) as stage:
         write_csv(result.forecasts, stage / "backtest_forecasts.csv")
         write_csv(result.scores, stage / "backtest_scores.csv")
         write_csv(result.diagnostics, stage / "backtest_diagnostics.csv")
@@ -170,7 +173,9 @@ def run(args) -> int:
         print(line)
     print(f"caution: {BACKTEST_CAUTION}")
     print(f"wrote {', '.join(OUTPUT_FILES)} to {args.out}")
-    return 0
+    bad = result.diagnostics[~result.diagnostics["ok"].astype(bool)]
+    failed = [f"{r.method} at origin {r.origin}: {r.problems}" for r in bad.itertuples()]
+    return diagnostics_exit(args, failed, args.out)
 
 
 def _save_figures(result, stage: Path, *, unit: str | None = None) -> None:

@@ -12,11 +12,13 @@ import argparse
 import sys
 from pathlib import Path
 
+from bayesgrowth.cli.acceptance import diagnostics_exit
 from bayesgrowth.cli.common import (
     PROG,
     UsageError,
     _positive_int,
     add_model_options,
+    checked_model_options,
     model_options_from_args,
     priors_from_args,
     say,
@@ -43,10 +45,6 @@ def add_parser(subparsers) -> argparse.ArgumentParser:
     p.add_argument("--period-col", default="period", help="name of the period column [period]")
     p.add_argument("--value-col", default="value", help="name of the value column [value]")
     add_model_options(p)
-    for action in p._actions:  # many series: the fast engine by default
-        if action.dest == "engine":
-            action.default = "exact"
-            action.help = (action.help or "").replace("[nuts]", "[exact]")
     p.add_argument("--out", type=Path, required=True, help="output folder (resumed if it "
                    "holds an interrupted batch with the same options)")
     p.add_argument("--executor", choices=("local", "dask"), default="local",
@@ -86,7 +84,6 @@ def run(args) -> int:
     from bayesgrowth.batch.store import OUTPUTS
     from bayesgrowth.batch.work import BatchSettings
     from bayesgrowth.data.panel import quiet_read_panel
-    from bayesgrowth.models.spec import ModelSpec
 
     if args.seed < 0:
         raise UsageError(f"--seed {args.seed}: must be 0 or more")
@@ -98,15 +95,7 @@ def run(args) -> int:
         say(args, f"note: {note}")
     priors = priors_from_args(args)
     options = model_options_from_args(args)
-    try:
-        spec = ModelSpec(**options)
-    except ValueError as exc:
-        raise UsageError(f"model options: {exc}") from None
-    if args.engine == "exact" and not spec.is_plain_exponential:
-        raise UsageError(
-            f"--engine exact covers only the exponential model with independent normal errors "
-            f"and no seasonal factors, not {spec.label()}; add --engine nuts"
-        )
+    checked_model_options(args, (args.engine,))
     settings = BatchSettings(
         horizon=args.horizon, engine=args.engine, seed=args.seed, levels=tuple(args.levels),
         priors=priors, draws=args.draws, chains=args.chains, model_options=options,
@@ -141,4 +130,8 @@ def run(args) -> int:
     if n_bad > 5:
         print(f"... and {n_bad - 5} more in failures.csv", file=sys.stderr)
     print(f"wrote {', '.join(OUTPUTS)} to {args.out}")
-    return EXIT_SOME_FAILED if n_bad else 0
+    if n_bad:
+        return EXIT_SOME_FAILED
+    bad = (result.summary[~result.summary["diagnostics_ok"].astype(bool)]
+           if n_done and "diagnostics_ok" in result.summary else result.summary.iloc[:0])
+    return diagnostics_exit(args, [f"series {s}" for s in bad["series"]], args.out)

@@ -7,7 +7,8 @@ import sys
 import warnings
 from pathlib import Path
 
-from bayesgrowth.config import DEFAULT_LEVELS, check_levels
+from bayesgrowth.cli.acceptance import add_accept_option
+from bayesgrowth.config import DEFAULT_ENGINE, DEFAULT_LEVELS, DEFAULT_MODEL, check_levels
 from bayesgrowth.data.series import GrowthSeries, read_series
 
 PROG = "bayesgrowth"
@@ -60,9 +61,11 @@ def add_model_options(p: argparse.ArgumentParser, *, horizon_required: bool = Tr
     )
     p.add_argument(
         "--engine",
-        choices=("nuts", "exact"),
-        default="nuts",
-        help="nuts: PyMC sampler; exact: same posterior by quadrature, fast [nuts]",
+        choices=("exact", "nuts"),
+        default=DEFAULT_ENGINE,
+        help=f"exact: deterministic integration, milliseconds (the local trend and the "
+        f"exponential curve with independent normal errors); nuts: PyMC sampler, every model "
+        f"[{DEFAULT_ENGINE}]",
     )
     p.add_argument("--seed", type=int, default=1, help="random seed; same seed, same output [1]")
     p.add_argument(
@@ -78,9 +81,13 @@ def add_model_options(p: argparse.ArgumentParser, *, horizon_required: bool = Tr
     m = p.add_argument_group("model (see docs/growth-curves.md)")
     m.add_argument(
         "--model",
-        choices=("exponential", "damped", "logistic", "gompertz", "local-trend"),
-        default="exponential",
-        help="growth curve [exponential]",
+        choices=("local-trend", "exponential", "damped", "logistic", "gompertz"),
+        default=DEFAULT_MODEL["model"],
+        help="growth model. local-trend (default): level and growth rate move over time; its "
+        "bands held close to their stated coverage on real competition series. exponential: "
+        "one fixed curve; with independent errors it assumes deviations do not persist, and "
+        "its bands were far too narrow on real series (docs/benchmark.md) "
+        f"[{DEFAULT_MODEL['model']}]",
     )
     m.add_argument(
         "--errors",
@@ -95,13 +102,22 @@ def add_model_options(p: argparse.ArgumentParser, *, horizon_required: bool = Tr
         help="student-t: heavy tails, one odd period does not bend the curve [normal]",
     )
     m.add_argument(
-        "--seasonal", action="store_true", help="seasonal factors (quarterly or monthly data)"
+        "--seasonal",
+        choices=("auto", "yes", "no"),
+        nargs="?",
+        const="yes",
+        default=DEFAULT_MODEL["seasonal"],
+        help="seasonal factors (quarterly or monthly data). auto: for the local trend when at "
+        "least two full years are observed; other curves only with 'yes' [auto]",
     )
     m.add_argument(
         "--drift",
-        choices=("random-walk", "mean-reverting"),
-        default="random-walk",
-        help="local-trend only: how the growth rate drifts [random-walk]",
+        choices=("mean-reverting", "random-walk", "adaptive"),
+        default=DEFAULT_MODEL["drift"],
+        help="local-trend only: how the growth rate moves. mean-reverting: it drifts and fades "
+        "towards the long-run rate with an uncertain half-life (a damped trend); random-walk: "
+        "it drifts without fading; adaptive: either, weighted by the evidence (exact engine) "
+        f"[{DEFAULT_MODEL['drift']}]",
     )
     g = p.add_argument_group("priors (see docs/user-guide.md)")
     g.add_argument(
@@ -171,7 +187,8 @@ def add_model_options(p: argparse.ArgumentParser, *, horizon_required: bool = Tr
         type=float,
         default=None,
         metavar="PERIODS",
-        help="damped/logistic/gompertz: periods over which growth halves [two years]",
+        help="damped/logistic/gompertz, and the local trend when growth fades: periods over "
+        "which growth halves [two years]",
     )
     g.add_argument(
         "--half-life-factor",
@@ -181,6 +198,7 @@ def add_model_options(p: argparse.ArgumentParser, *, horizon_required: bool = Tr
         help="spread of the half-life prior: within a factor of F [3]",
     )
     p.add_argument("--quiet", action="store_true", help="no progress output")
+    add_accept_option(p)
 
 
 def say(args, message: str) -> None:
@@ -230,51 +248,73 @@ def priors_from_args(args):
 
 def model_options_from_args(args) -> dict:
     """The ``fit_series`` options choosing the model (curve, errors, noise, seasons)."""
+    seasonal = getattr(args, "seasonal", DEFAULT_MODEL["seasonal"])
+    seasonal = {"yes": True, "no": False}.get(seasonal, seasonal) if isinstance(
+        seasonal, str) else bool(seasonal)
     return {
-        "model": getattr(args, "model", "exponential"),
+        "model": getattr(args, "model", DEFAULT_MODEL["model"]),
         "errors": getattr(args, "errors", "independent"),
         "noise": getattr(args, "noise_dist", "normal"),
-        "seasonal": bool(getattr(args, "seasonal", False)),
-        "drift": getattr(args, "drift", "random-walk"),
+        "seasonal": seasonal,
+        "drift": getattr(args, "drift", DEFAULT_MODEL["drift"]),
     }
+
+
+def spec_from_options(options: dict):
+    """The :class:`ModelSpec` of the options, ``seasonal="auto"`` read as no seasons.
+
+    Enough to check what an engine can fit before any series is read.
+    """
+    from bayesgrowth.models.spec import ModelSpec
+
+    try:
+        return ModelSpec(**{**options, "seasonal": options["seasonal"] is True})
+    except ValueError as exc:
+        raise UsageError(f"model options: {exc}") from None
+
+
+def exact_covers(spec) -> bool:
+    """Whether the exact engine fits ``spec``."""
+    return spec.is_plain_exponential or spec.is_state_space
+
+
+def exact_refusal(spec, option: str = "--engine") -> str:
+    """The one-line refusal for a model the exact engine does not fit."""
+    return (
+        f"{option}: the exact engine fits the local trend (normal noise, independent errors) "
+        f"and the exponential curve with independent normal errors and no seasons, not "
+        f"{spec.label()}; use nuts instead of exact"
+    )
 
 
 def checked_model_options(args, engines, option: str = "--engine") -> dict:
     """The curve and error options, refused early where an engine in ``engines`` cannot fit them.
 
-    Returns an empty dict for the plain exponential model (the default), else the options.
+    Returns an empty dict for the plain exponential model, else the options.
     """
-    from bayesgrowth.models.spec import ModelSpec
-
     options = model_options_from_args(args)
-    try:
-        spec = ModelSpec(**options)
-    except ValueError as exc:
-        raise UsageError(f"model options: {exc}") from None
-    if "exact" in engines and not spec.is_plain_exponential:
+    spec = spec_from_options(options)
+    if "exact" in engines and not exact_covers(spec):
+        raise UsageError(exact_refusal(spec, option))
+    if "nuts" in engines and spec.drift == "adaptive" and spec.model == "local-trend":
         raise UsageError(
-            f"{option}: the exact engine covers only the exponential model with independent "
-            f"normal errors, not {spec.label()}; choose nuts instead of exact"
+            f"{option}: --drift adaptive needs the exact engine (it weighs drifting and fading "
+            "growth by their exact evidence); with nuts choose --drift random-walk or "
+            "mean-reverting"
         )
-    return {} if spec.is_plain_exponential else options
+    return {} if spec.is_plain_exponential and options["seasonal"] is not True else options
 
 
 def fit_from_args(args, series):
     """Fit ``series`` with the engine, model and priors the options name; warn on failure."""
     from bayesgrowth.inference.run import fit_series
-    from bayesgrowth.models.spec import ModelSpec
+    from bayesgrowth.models.spec import ModelSpec, resolve_seasonal
 
     priors = priors_from_args(args)
     spec_options = model_options_from_args(args)
-    try:
-        spec = ModelSpec(**spec_options)
-    except ValueError as exc:
-        raise UsageError(f"model options: {exc}") from None
-    if args.engine == "exact" and not spec.is_plain_exponential:
-        raise UsageError(
-            f"--engine exact covers only the exponential model with independent normal "
-            f"errors, not {spec.label()}; use --engine nuts"
-        )
+    checked_model_options(args, (args.engine,))
+    spec = ModelSpec(**{**spec_options, "seasonal": resolve_seasonal(
+        spec_options["seasonal"], series.axis, series.t, spec_options["model"])})
     options = {"draws": args.draws, "chains": args.chains, **spec_options}
     if args.engine == "nuts":
         options["progressbar"] = not args.quiet

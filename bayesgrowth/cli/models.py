@@ -16,7 +16,7 @@ from bayesgrowth.cli.common import (
     read_input,
     say,
 )
-from bayesgrowth.cli.output import staged_output
+from bayesgrowth.cli.output import add_force_option, staged_output
 from bayesgrowth.cli.text import add_unit_option, unit_from_args
 from bayesgrowth.data.export import write_csv
 from bayesgrowth.report.words import band_phrases
@@ -59,14 +59,16 @@ def add_parser(sub) -> None:
     for action in p._actions:  # one curve per fit does not apply here: --models names them
         if "--model" in action.option_strings:
             action.help = argparse.SUPPRESS
+            action.default = None
     p.add_argument("--out", required=True, help="output folder")
+    add_force_option(p)
     p.add_argument(
         "--models",
         default=None,
         metavar="LIST",
         help=f"comma-separated curves to compare, from {available} [all but "
-        f"{', '.join(SLOW_BY_DEFAULT)}, which is slow]. With --engine exact the "
-        "exponential curve uses the exact engine and the others NUTS",
+        f"{', '.join(SLOW_BY_DEFAULT)}]. With --engine exact the exponential curve and the "
+        "local trend use the exact engine and the others NUTS",
     )
     p.set_defaults(run=run)
 
@@ -104,9 +106,9 @@ def _spec_options(args) -> dict:
     return options
 
 
-def _check_models(names: list[str], series, priors, spec_options: dict) -> None:
+def _check_models(names: list[str], series, priors, spec_options: dict, engine: str) -> None:
     """Refuse, before any fitting, combinations the models cannot take."""
-    from bayesgrowth.models.spec import ModelSpec, season_index
+    from bayesgrowth.models.spec import ModelSpec, resolve_seasonal, season_index
 
     try:
         resolved = priors.resolve(series)
@@ -114,11 +116,17 @@ def _check_models(names: list[str], series, priors, spec_options: dict) -> None:
         raise UsageError(f"prior options: {exc}") from None
     for name in names:
         try:
-            spec = ModelSpec(model=name, **spec_options)
+            seasonal = resolve_seasonal(spec_options["seasonal"], series.axis, series.t, name)
+            spec = ModelSpec(model=name, **{**spec_options, "seasonal": seasonal})
             if spec.seasonal:
                 season_index(series.axis, series.t)
         except ValueError as exc:
             raise UsageError(f"--models {name}: {exc}") from None
+        if engine == "nuts" and spec.model == "local-trend" and spec.drift == "adaptive":
+            raise UsageError(
+                "--models local-trend with --engine nuts: --drift adaptive needs the exact "
+                "engine; choose --drift random-walk or mean-reverting, or --engine exact"
+            )
         if spec.model == "local-trend" and resolved.t_ref != int(series.t[0]):
             raise UsageError(
                 "--models local-trend: the local trend anchors its level at the first "
@@ -146,23 +154,23 @@ def run(args) -> int:
     from bayesgrowth.forecast.forecast import CAUTION
     from bayesgrowth.select.averaging import fit_models, model_average
 
-    if getattr(args, "model", None) not in (None, "exponential"):
+    if getattr(args, "model", None) is not None:
         raise UsageError("models compares the curves named by --models; --model does not apply")
     series = read_input(args)
     names = _model_list(args.models)
     priors = priors_from_args(args)
     spec_options = _spec_options(args)
-    _check_models(names, series, priors, spec_options)
     engine = "auto" if args.engine == "exact" else "nuts"
+    _check_models(names, series, priors, spec_options, engine)
     settings = {"draws": args.draws, "chains": args.chains}
     start = time.monotonic()
 
     def progress(name):
-        how = "exact" if engine == "auto" and name == "exponential" else "nuts"
+        how = "exact" if engine == "auto" and name in ("exponential", "local-trend") else "nuts"
         say(args, f"fitting {name} ({how} engine) to {series.name} ... "
                   f"[{time.monotonic() - start:.0f} s]")
 
-    with staged_output(Path(args.out), NAMES, [args.file]) as stage:
+    with staged_output(Path(args.out), NAMES, [args.file], force=args.force) as stage:
         fits = fit_models(series, names, engine=engine, seed=args.seed, priors=priors,
                           on_fit=progress, **spec_options, **settings)
         ma = model_average(fits, args.horizon, levels=args.levels, seed=args.seed)
@@ -180,6 +188,9 @@ def run(args) -> int:
         print(line)
     for msg in comp.messages():
         print(f"warning: {msg}")
+    for name, why in ma.excluded.items():
+        print(f"warning: {name} left out of the comparison and the average: its sampling "
+              f"checks failed ({why})")
     row = avg.table.iloc[-1]
     mixture = ", ".join(f"{m} {w:.0%}" for m, w in comp.weights.items() if w >= 0.005)
     print(f"model-averaged forecast for {row['period']} (stacking weights: {mixture}): "
@@ -191,6 +202,7 @@ def run(args) -> int:
     print(f"wrote {', '.join(NAMES)} to {args.out}")
     failed = [f"{m}: diagnostics failed" for m, ok in zip(table["model"], table["diagnostics_ok"],
                                                           strict=True) if not ok]
+    failed += [f"{m}: diagnostics failed, left out" for m in ma.excluded]
     return diagnostics_exit(args, failed, args.out)
 
 

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import functools
 import math
 from dataclasses import dataclass
 
@@ -109,7 +110,7 @@ class Forecast:
             cols[f"{prefix}upper_{level}"] = q[2 + 2 * i]
         return cols
 
-    @property
+    @functools.cached_property
     def table(self) -> pd.DataFrame:
         """One row per future period: ``period``, ``step``, ``mean``, ``median``, bands.
 

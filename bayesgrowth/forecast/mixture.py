@@ -16,6 +16,20 @@ __all__ = ["mixture_cdf", "mixture_mean_exp", "mixture_quantiles"]
 _ITER = 100
 
 
+#: Components outside the heaviest ones holding all but this mass are dropped before
+#: root-finding: a quantile then moves by less than this in probability.
+_TAIL_MASS = 1e-8
+
+
+def compact(weight: np.ndarray, mean: np.ndarray, sd: np.ndarray):
+    """The heaviest components holding all but ``1e-8`` of the weight, renormalised."""
+    order = np.argsort(weight)[::-1]
+    cum = np.cumsum(weight[order])
+    keep = order[: int(np.searchsorted(cum, 1.0 - _TAIL_MASS)) + 1]
+    w = weight[keep]
+    return w / w.sum(), mean[keep], sd[keep]
+
+
 def mixture_cdf(weight: np.ndarray, mean: np.ndarray, sd: np.ndarray,
                 x: np.ndarray) -> np.ndarray:
     """``P(X <= x)`` per column, for ``mean``/``sd`` ``(G, H)`` and ``x`` ``(..., H)``."""
@@ -41,6 +55,7 @@ def mixture_quantiles(weight: np.ndarray, mean: np.ndarray, sd: np.ndarray,
     probs : sequence of float
         Probabilities strictly between 0 and 1.
     """
+    weight, mean, sd = compact(weight, mean, sd)
     p = np.asarray(probs, dtype=float)[:, None]
     sd = np.maximum(sd, 1e-300)
     lo = np.broadcast_to((mean - 40 * sd).min(axis=0), (p.size, mean.shape[1])).copy()
@@ -57,9 +72,9 @@ def mixture_quantiles(weight: np.ndarray, mean: np.ndarray, sd: np.ndarray,
         with np.errstate(divide="ignore", invalid="ignore"):
             step = np.where(dens > 0, f / dens, np.inf)
         new = x - step
-        outside = ~((new > lo) & (new < hi))
+        outside = ~((new >= lo) & (new <= hi))
         new = np.where(outside, 0.5 * (lo + hi), new)
-        if np.all(np.abs(new - x) < 1e-10 * np.maximum(1.0, np.abs(x))):
+        if np.all(np.abs(new - x) < 1e-9 * np.maximum(1.0, np.abs(x))):
             return new
         x = new
     return x

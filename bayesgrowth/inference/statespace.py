@@ -414,7 +414,9 @@ def _probe_quantiles(post: StateSpacePosterior, t_probe: np.ndarray) -> np.ndarr
     from bayesgrowth.forecast.mixture import mixture_quantiles
 
     pred = post.predictive(t_probe, joint=False)
-    return mixture_quantiles(post.weight, pred["mean"], np.sqrt(pred["value_var"]), _PROBE)
+    ends = [0, t_probe.size - 1]  # the first and the last probe step
+    return mixture_quantiles(post.weight, pred["mean"][:, ends],
+                             np.sqrt(pred["value_var"][:, ends]), _PROBE)
 
 
 def state_space_posterior(series, priors, spec, *, max_refinements: int = 3):
@@ -440,7 +442,7 @@ def state_space_posterior(series, priors, spec, *, max_refinements: int = 3):
         b.box = _locate(b, ctx, _COARSE[len(b.dims) >= 4])
         b.to_fine()
     ppy = series.axis.periods_per_year or 4
-    t_probe = series.t_last + np.arange(1, int(max(4, 2 * round(ppy))) + 1)
+    t_probe = series.t_last + np.arange(1, int(max(4, 2 * round(ppy))) + 1)  # consecutive
     previous, extra = None, 0
     for _ in range(max_refinements + 1):
         def k_of(b, extra=extra):

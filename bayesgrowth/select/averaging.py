@@ -12,7 +12,7 @@ from __future__ import annotations
 
 import warnings
 from collections.abc import Mapping, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 import pandas as pd
@@ -299,13 +299,19 @@ class ModelAverage:
     Attributes
     ----------
     comparison : ModelComparison
+        Of the models whose sampling diagnostics passed.
     forecasts : dict of str to Forecast
+        Of the models in the average.
     averaged : AveragedForecast
+    excluded : dict of str to str
+        Models left out of the comparison and the average because their sampling
+        diagnostics failed, with the failed checks.
     """
 
     comparison: ModelComparison
     forecasts: dict
     averaged: AveragedForecast
+    excluded: dict = field(default_factory=dict)
 
 
 def model_average(
@@ -332,11 +338,24 @@ def model_average(
     Returns
     -------
     ModelAverage
+        Models whose sampling diagnostics failed are left out of the comparison and
+        the average, and named in ``excluded``: a failed fit can look best by
+        PSIS-LOO precisely because its draws are wrong.
     """
     from bayesgrowth.forecast.forecast import forecast
 
-    comparison = compare_models(fits)
+    excluded = {name: "; ".join(fit.diagnostics.problems) or "diagnostics failed"
+                for name, fit in fits.items() if not fit.diagnostics.ok}
+    kept = {name: fit for name, fit in fits.items() if name not in excluded}
+    if not kept:
+        raise ValueError(
+            "every model's sampling diagnostics failed ("
+            + "; ".join(f"{k}: {v}" for k, v in excluded.items())
+            + "); sample longer or fit fewer, simpler models"
+        )
+    comparison = compare_models(kept)
     forecasts = {name: forecast(fit, horizon, levels=levels, seed=seed)
-                 for name, fit in fits.items()}
+                 for name, fit in kept.items()}
     averaged = average_forecasts(forecasts, comparison.weights, n_draws=n_draws, seed=seed)
-    return ModelAverage(comparison=comparison, forecasts=forecasts, averaged=averaged)
+    return ModelAverage(comparison=comparison, forecasts=forecasts, averaged=averaged,
+                        excluded=excluded)

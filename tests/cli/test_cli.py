@@ -8,6 +8,7 @@ import pandas as pd
 import pytest
 
 from bayesgrowth.cli import main
+from bayesgrowth.cli.output import MANIFEST
 from bayesgrowth.data.demo import demo_path
 
 GOOD = "period,value\n2023Q1,100\n2023Q2,108\n2023Q3,119\n2023Q4,127\n2024Q1,140\n2024Q2,150\n"
@@ -30,7 +31,7 @@ def test_forecast_exact_follows_the_contract(tmp_path, good_csv, capsys):
                "exact", "--target", "200", "--quiet"])
     assert rc == 0
     assert sorted(p.name for p in out.iterdir()) == [
-        "fan_chart.png", "forecast.csv", "posterior.nc", "summary.json"]
+        MANIFEST, "fan_chart.png", "forecast.csv", "posterior.nc", "summary.json"]
     fc = pd.read_csv(out / "forecast.csv")
     assert list(fc.columns[:4]) == ["period", "step", "mean", "median"]
     for level in (50, 80, 95):
@@ -188,7 +189,7 @@ def test_exact_engine_refuses_other_curves(tmp_path, command):
                           text=True, check=False)
     assert proc.returncode == 2
     assert len(proc.stderr.strip().splitlines()) == 1
-    assert "exact engine covers only the exponential" in proc.stderr
+    assert "the exact engine fits the local trend" in proc.stderr
     assert not out.exists()
 
 
