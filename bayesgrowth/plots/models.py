@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from bayesgrowth.plots.plain import literal
 from bayesgrowth.plots.style import (
     BAND_SHADES,
     CATEGORICAL,
@@ -102,8 +103,8 @@ def plot_model_bands(forecasts, averaged=None, *, weights=None, level: int = 80,
     mark_forecast_start(ax, t_obs[-1] + 0.5)
     ax.set_xlabel("Period")
     format_value_axis(ax, unit, series)
-    ax.set_title(title or f"{series.name}\nEach model's forecast and their stacking average",
-                 fontsize=11)
+    ax.set_title(title or f"{literal(series.name)}\nEach model's forecast and their stacking "
+                 "average", fontsize=11)
     legend(ax)
     return ax
 
@@ -156,7 +157,7 @@ def plot_prior_predictive(prior, ax=None, *, log_scale: bool = True, title: str 
     format_value_axis(ax, unit, series)
     if log_scale:
         ax.set_ylabel(f"{ax.get_ylabel()} (log scale)")
-    ax.set_title(title or f"{series.name}\nWhat the priors imply before fitting: "
+    ax.set_title(title or f"{literal(series.name)}\nWhat the priors imply before fitting: "
                  f"{prior.spec.label()}", fontsize=11)
     legend_in_reading_order(ax)
     return ax
@@ -200,7 +201,7 @@ def plot_sensitivity(result, axes=None, *, title: str | None = None):
     if not tab["diagnostics_ok"].all():
         axes[0].plot([], [], "X", mfc="white", mec=HISTORY, label="sampling diagnostics failed")
     legend(axes[0], loc="best", fontsize=7.5)
-    fig.suptitle(title or f"{result.series_name}: prior sensitivity of the forecast for "
+    fig.suptitle(title or f"{literal(result.series_name)}: prior sensitivity of the forecast for "
                  f"{result.period} ({result.model})", fontsize=11)
     return axes
 

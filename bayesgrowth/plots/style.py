@@ -24,6 +24,7 @@ import numpy as np
 from matplotlib.axes import Axes
 from matplotlib.ticker import Formatter, FuncFormatter, NullFormatter
 
+from bayesgrowth.plots.plain import literal
 from bayesgrowth.report.words import fmt_number
 
 __all__ = [
@@ -132,11 +133,11 @@ class ValueFormatter(Formatter):
 def unit_label(unit: str | None = None, series=None) -> str:
     """The y-axis label: ``unit``, else the series' value column if it is known, else "Value"."""
     if unit:
-        return str(unit)
+        return literal(unit)
     for name in ("unit", "value_col", "value_name"):
         known = getattr(series, name, None)
         if isinstance(known, str) and known.strip() and known.strip().lower() != "value":
-            return known.strip()
+            return literal(known.strip())
     return "Value"
 
 
