@@ -34,7 +34,14 @@ from realdata_data import (
     load_growing,
     subsample,
 )
-from realdata_methods import arima011, bayesgrowth_method, ets_damped, rw_drift, theta
+from realdata_methods import (
+    arima011,
+    bayesgrowth_method,
+    ets_damped,
+    rw_drift,
+    shared_prior_method,
+    theta,
+)
 from realdata_scores import PROBS, SCORE_COLUMNS, score_series, summarise
 
 __all__ = ["METHODS", "main", "run_benchmark", "run_one"]
@@ -53,6 +60,8 @@ METHODS = {
                                       seasonal="auto"),
     "adaptive": bayesgrowth_method(engine="exact", model="local-trend", drift="adaptive",
                                    seasonal="auto"),
+    # the default with its prior scales learned per frequency (benchmarks/shared_prior.py)
+    "shared-prior": shared_prior_method(),
 }
 
 _THREAD_VARS = ("OMP_NUM_THREADS", "OPENBLAS_NUM_THREADS", "MKL_NUM_THREADS")

@@ -258,3 +258,24 @@ def bayesgrowth_method(**fit_kwargs) -> Callable[[np.ndarray, int, int], Predict
             return SamplePredictive(forecast(fit, h).draws)
 
     return method
+
+
+def shared_prior_method(path=None) -> Callable[[np.ndarray, int, int], Predictive]:
+    """The default model with the prior learned per frequency by benchmarks/shared_prior.py."""
+    import json
+    import math
+    from pathlib import Path
+
+    path = Path(path or Path(__file__).parent.parent / "docs" / "benchmark" / "shared_prior.json")
+    names = {1: "yearly", 4: "quarterly", 12: "monthly"}
+
+    def method(train: np.ndarray, h: int, period: int) -> Predictive:
+        from bayesgrowth.priors import LocalTrendPrior, Priors
+
+        learned = json.loads(path.read_text(encoding="utf-8"))[names[period]]
+        priors = Priors(local_trend=LocalTrendPrior(
+            level_shock_pct=learned["level_factor"] * 10.0 / math.sqrt(period),
+            growth_drift_pts=learned["drift_factor"] * 4.0 / period**1.5))
+        return bayesgrowth_method(priors=priors)(train, h, period)
+
+    return method

@@ -345,26 +345,14 @@ def forecast(
 
 
 def _state_space_draws(fit: Fit, t: np.ndarray, rng: np.random.Generator):
-    """Joint predictive draws from the grid posterior, one per posterior draw's node.
+    """Joint predictive draws, one path per posterior draw (its node and coefficients).
 
     Returns the log value draws, the log level draws and the mixture description.
     """
     post = fit.state_space
     marginal = post.predictive(t, joint=False)
     nodes = fit.extra["nodes"].reshape(-1)
-    used, inverse = np.unique(nodes, return_inverse=True)
-    joint = post.predictive(t, joint=True, nodes=used)
-    cov = joint["curve_cov"]
-    ev, evec = np.linalg.eigh(0.5 * (cov + np.swapaxes(cov, 1, 2)))
-    root = evec * np.sqrt(np.clip(ev, 0, None))[:, None, :]
-    h = t.size
-    curve = np.empty((nodes.size, h))
-    for lo in range(0, nodes.size, 1000):
-        nd = inverse[lo:lo + 1000]
-        z = rng.standard_normal((nd.size, h))
-        curve[lo:lo + 1000] = joint["mean"][nd] + np.einsum("sij,sj->si", root[nd], z)
-    sigma = post.params["sigma"][nodes][:, None]
-    values = curve + sigma * rng.standard_normal(curve.shape)
+    curve, values = post.simulate(t, nodes, post.beta_of(fit.flat()), rng)
     exact = {
         "weight": post.weight,
         "mean": marginal["mean"],

@@ -82,4 +82,5 @@ def mixture_quantiles(weight: np.ndarray, mean: np.ndarray, sd: np.ndarray,
 
 def mixture_mean_exp(weight: np.ndarray, mean: np.ndarray, sd: np.ndarray) -> np.ndarray:
     """``E[exp(X)]`` per column: the mean of the log-normal mixture."""
-    return weight @ np.exp(mean + 0.5 * sd**2)
+    with np.errstate(over="ignore"):  # a very wide component has an infinite mean, honestly
+        return weight @ np.exp(mean + 0.5 * sd**2)

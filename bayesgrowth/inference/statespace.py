@@ -111,23 +111,39 @@ def _integrate(gram, logf, n: int, ctx: _Context):
     return loglik, mu0 + s * z, s[:, None] * minv * s[None, :]
 
 
+#: Below this many node-observations the filter runs in numpy: compiling (or loading the
+#: compiled kernel, about a second with numba's import) costs more than it saves.
+_COMPILE_ABOVE = 150_000
+
+
 def _evaluate(ctx: _Context, params: dict) -> dict:
-    """Filter every node (compiled) and integrate ``beta`` out."""
-    gram, logf, state, state_cov = gram_filter(
-        ctx.y, ctx.season, ctx.idx, params["rho"], params["sigma_level"],
-        params["sigma_growth"], params["sigma"], ctx.long_run)
+    """Filter every node and integrate ``beta`` out."""
+    if params["sigma"].size * ctx.y.size <= _COMPILE_ABOVE:
+        innov, var = _innovations(ctx, params, keep_state=True)
+        v, f, state, state_cov = innov
+        gram = np.einsum("gni,gnj->gij", v / f[..., None], v)
+        logf = np.log(f).sum(axis=1)
+    else:
+        gram, logf, state, state_cov = gram_filter(
+            ctx.y, ctx.season, ctx.idx, params["rho"], params["sigma_level"],
+            params["sigma_growth"], params["sigma"], ctx.long_run)
     loglik, bm, bc = _integrate(gram, logf, ctx.y.size, ctx)
     return {"loglik": loglik, "beta_mean": bm, "beta_cov": bc, "state": state,
             "state_cov": state_cov}
 
 
-def _innovations(ctx: _Context, params: dict):
-    """Innovations and variances of ``[y, X]`` per node (the plain filter, for log densities)."""
+def _innovations(ctx: _Context, params: dict, keep_state: bool = False):
+    """Innovations and variances of ``[y, X]`` per node (the plain numpy filter).
+
+    With ``keep_state`` the first item is ``(innovations, variances, state, state_cov)``.
+    """
     x = _design(ctx, params["rho"], ctx.idx, ctx.season)
     data = np.concatenate([np.broadcast_to(ctx.y, (x.shape[0], ctx.y.size))[..., None], x],
                           axis=-1)
     res = augmented_filter(data, ctx.idx, params["rho"], params["sigma_level"],
                            params["sigma_growth"], params["sigma"])
+    if keep_state:
+        return (res.innovations, res.variance, res.state, res.state_cov), None
     return res.innovations, res.variance
 
 
@@ -289,22 +305,67 @@ class StateSpacePosterior:
         mean = (g @ beta_mean[..., None])[..., 0] + (z @ ay[..., None])[..., 0]
         gb = g @ beta_cov
         s = steps.astype(float)
-        # loading of the growth shock at future step i on the level at step h (i <= h)
-        d = s[:, None] - s[None, :]
-        on = (d >= 0).astype(float)
-        r = rho[:, None, None]
-        with np.errstate(divide="ignore", invalid="ignore"):
-            af = np.where(r == 1.0, d + 1, (1 - r ** (d + 1)) / (1 - r)) * on
-        sg2 = (p["sigma_growth"] ** 2)[:, None, None]
-        sl2 = (p["sigma_level"] ** 2)[:, None, None]
+        sg2 = p["sigma_growth"] ** 2
+        sl2 = p["sigma_level"] ** 2
         if joint:
+            # loading of the growth shock at future step i on the level at step h (i <= h)
+            d = s[:, None] - s[None, :]
+            on = (d >= 0).astype(float)
+            r = rho[:, None, None]
+            with np.errstate(divide="ignore", invalid="ignore"):
+                af = np.where(r == 1.0, d + 1, (1 - r ** (d + 1)) / (1 - r)) * on
             cov = (gb @ np.swapaxes(g, 1, 2) + z @ state_cov @ np.swapaxes(z, 1, 2)
-                   + sg2 * (af @ np.swapaxes(af, 1, 2)) + sl2 * (on @ on.T)[None])
+                   + sg2[:, None, None] * (af @ np.swapaxes(af, 1, 2))
+                   + sl2[:, None, None] * (on @ on.T)[None])
             noise = (p["sigma"] ** 2)[:, None, None] * np.eye(s.size)[None]
             return {"mean": mean, "curve_cov": cov, "value_cov": cov + noise}
+        # the same diagonal without (G, H, H) arrays: a growth shock k steps before h
+        # loads (1 - rho^k) / (1 - rho) on the level, so the shocks add a cumulative sum
+        r = rho[:, None]
+        k = np.arange(1, int(s.max()) + 1, dtype=float)[None, :]
+        with np.errstate(divide="ignore", invalid="ignore"):
+            load = np.where(r == 1.0, k, (1 - r**k) / (1 - r))
+        shocks = np.cumsum(load**2, axis=1)[:, steps - 1]
         var = ((gb * g).sum(-1) + np.einsum("ghi,gij,ghj->gh", z, state_cov, z)
-               + sg2[..., 0] * (af**2).sum(-1) + sl2[..., 0] * on.sum(-1)[None])
+               + sg2[:, None] * shocks + sl2[:, None] * s[None, :])
         return {"mean": mean, "curve_var": var, "value_var": var + p["sigma"][:, None] ** 2}
+
+    def simulate(self, t_future: np.ndarray, nodes: np.ndarray, beta: np.ndarray,
+                 rng: np.random.Generator) -> tuple[np.ndarray, np.ndarray]:
+        """Joint predictive paths by running the state forward, one per ``(node, beta)``.
+
+        Given a node's parameters and ``beta``, the state at the last observation is
+        normal (the filter's), and each future period adds its shocks; memory grows
+        with draws times horizon only.
+
+        Returns
+        -------
+        level, value : numpy.ndarray, shape (S, H)
+            Log level (the trend, seasons included) and log value (plus noise).
+        """
+        ctx, p = self._ctx, {k: v[nodes] for k, v in self.params.items()}
+        jf = np.asarray(t_future, dtype=int) - self.t_ref
+        steps = jf - int(ctx.idx[-1])
+        if np.any(np.diff(np.concatenate([[0], steps])) != 1):
+            raise ValueError("simulate needs the consecutive periods after the last one")
+        state, cov = self._state[nodes], self._state_cov[nodes]
+        mean = state[:, :, 0] - np.einsum("sip,sp->si", state[:, :, 1:], beta)
+        c00 = np.sqrt(np.clip(cov[:, 0, 0], 0, None))
+        c10 = np.where(c00 > 0, cov[:, 1, 0] / np.where(c00 > 0, c00, 1), 0.0)
+        c11 = np.sqrt(np.clip(cov[:, 1, 1] - c10**2, 0, None))
+        z = rng.standard_normal((2, nodes.size))
+        dev = mean[:, 0] + c00 * z[0]
+        grow = mean[:, 1] + c10 * z[0] + c11 * z[1]
+        season = self._season_rows(t_future)
+        level = np.empty((nodes.size, steps.size))
+        rho = p["rho"]
+        for h in range(steps.size):
+            grow = rho * grow + p["sigma_growth"] * rng.standard_normal(nodes.size)
+            dev = dev + grow + p["sigma_level"] * rng.standard_normal(nodes.size)
+            x = _design(ctx, rho, jf[h:h + 1], None if season is None else season[h:h + 1])
+            level[:, h] = np.einsum("sp,sp->s", x[:, 0, :], beta) + dev
+        value = level + p["sigma"][:, None] * rng.standard_normal(level.shape)
+        return level, value
 
     def latest_growth(self) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         """Growth (log scale) in the last observed period: loading on ``beta``, shift, variance.

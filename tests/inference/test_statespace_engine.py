@@ -108,3 +108,30 @@ def test_log_likelihood_matches_the_dense_gaussian(demo_fit):
         dense = local_trend.log_likelihood(spec, d, s.t, resid, demo_fit.priors.t_ref)
         np.testing.assert_allclose(ll[rows].sum(axis=1),
                                    dense.sum(axis=1) - np.log(s.values).sum(), rtol=1e-6)
+
+
+def test_compiled_and_numpy_routes_give_the_same_posterior(monkeypatch):
+    s = bg.load_demo()
+    pr = Priors().resolve(s)
+    spec = ModelSpec(model="local-trend", drift="mean-reverting", seasonal=True)
+    monkeypatch.setattr(ss, "_COMPILE_ABOVE", 10**12)
+    plain = ss.state_space_posterior(s, pr, spec)
+    monkeypatch.setattr(ss, "_COMPILE_ABOVE", 0)
+    compiled = ss.state_space_posterior(s, pr, spec)
+    assert compiled.log_evidence == pytest.approx(plain.log_evidence, abs=1e-9)
+    np.testing.assert_allclose(compiled.weight, plain.weight, rtol=1e-8, atol=1e-14)
+
+
+def test_long_horizons_need_memory_in_proportion_to_the_horizon(demo_fit):
+    import tracemalloc
+
+    tracemalloc.start()
+    fc = bg.forecast(demo_fit, 250)
+    _, peak = tracemalloc.get_traced_memory()
+    tracemalloc.stop()
+    assert fc.draws.shape == (demo_fit.n_draws, 250)
+    # draws (4000 x 250) and a few per-node arrays: far below the 1.8 GB a joint
+    # (nodes, H, H) covariance would take
+    assert peak < 400e6
+    tab = fc.table
+    assert np.all(np.diff(tab["upper_95"] - tab["lower_95"]) > 0)
