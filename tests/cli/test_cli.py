@@ -169,12 +169,14 @@ def test_help_documents_every_option(capsys):
 @pytest.mark.slow
 def test_forecast_nuts_end_to_end(tmp_path, good_csv):
     out = tmp_path / "nuts"
-    assert _run(["forecast", str(good_csv), "-H", "3", "--out", str(out), "--quiet"]) == 0
+    nuts = ["--engine", "nuts", "--model", "exponential"]
+    assert _run(["forecast", str(good_csv), "-H", "3", "--out", str(out), "--quiet", *nuts]) == 0
     summary = json.loads((out / "summary.json").read_text())
     assert summary["engine"] == "nuts"
     assert summary["diagnostics"]["ok"] is True
     again = tmp_path / "nuts2"
-    assert _run(["forecast", str(good_csv), "-H", "3", "--out", str(again), "--quiet"]) == 0
+    assert _run(["forecast", str(good_csv), "-H", "3", "--out", str(again), "--quiet",
+                 *nuts]) == 0
     assert (out / "forecast.csv").read_bytes() == (again / "forecast.csv").read_bytes()
 
 
@@ -205,3 +207,20 @@ def test_backtest_defaults_to_nuts_when_a_model_option_needs_it(tmp_path, monkey
     plain = build_parser().parse_args(["backtest", str(demo_path()), "-H", "2", "--min-train",
                                        "16", "--out", str(tmp_path / "o")])
     assert cli_backtest._default_methods(plain) == ("exact", "log-linear", "naive")
+
+
+def test_one_recommended_default_in_the_api_and_the_cli(tmp_path):
+    # the damped local trend on the exact engine, seasons on a quarterly calendar with two
+    # full years observed (bayesgrowth.config.DEFAULT_MODEL), in Python and on the command line
+    import bayesgrowth as bg
+
+    expected = {"model": "local-trend", "drift": "mean-reverting", "seasonal": True,
+                "errors": "independent", "noise": "normal"}
+    fit = bg.GrowthModel(seed=1).fit(bg.load_demo()).fit_
+    assert fit.engine == "exact" and fit.spec.to_dict() == expected
+    out = tmp_path / "default"
+    assert _run(["forecast", str(demo_path()), "-H", "4", "--out", str(out), "--quiet"]) == 0
+    summary = json.loads((out / "summary.json").read_text())
+    assert summary["engine"] == "exact"
+    assert summary["model_options"] == expected
+    assert 0 < summary["growth_fades"]["probability"] <= 1
