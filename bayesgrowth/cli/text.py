@@ -87,6 +87,9 @@ def forecast_lines(fc, summary: dict) -> list[str]:
         lines.append(f"  target {fmt_number(tg['value'])}: probability "
                      f"{fmt_probability(p_last)} of reaching it by {fin['period']}; {first}")
     d = summary["diagnostics"]
-    lines.append("  sampling checks: passed" if d["ok"] else
-                 "  sampling checks: FAILED - " + "; ".join(d["problems"]))
+    if summary.get("engine") == "exact":
+        lines.append("  computed exactly (no sampling, so no sampling checks are needed)")
+    else:
+        lines.append("  sampling checks: passed" if d["ok"] else
+                     "  sampling checks: FAILED - " + "; ".join(d["problems"]))
     return lines
