@@ -17,27 +17,26 @@ timings that led to that design.
 from __future__ import annotations
 
 import warnings
-from dataclasses import dataclass, field
 
 import numpy as np
 import pandas as pd
 
-from bayesgrowth.backtest.methods import (
-    BAYESIAN,
-    check_methods,
-    make_predictor,
-    score_prediction,
+from bayesgrowth.backtest.methods import make_predictor, score_prediction
+from bayesgrowth.backtest.models import (
+    DEFAULT_MODELS,
+    SAMPLER_KEYS,
+    ModelChoice,
+    choices_from_methods,
+    resolve_models,
 )
+from bayesgrowth.backtest.result import NO_BANDS, BacktestResult
 from bayesgrowth.backtest.split import RollingOrigin
 from bayesgrowth.config import DEFAULT_LEVELS, check_levels
 from bayesgrowth.data.series import MIN_OBSERVATIONS, GrowthSeries
 from bayesgrowth.inference.diagnostics import SamplingWarning
-from bayesgrowth.scoring import ALL_STEPS, score_table
+from bayesgrowth.scoring import score_table
 
 __all__ = ["BACKTEST_CAUTION", "NO_BANDS", "BacktestResult", "backtest", "origin_seed"]
-
-#: Verdict of a method that gives a point forecast only.
-NO_BANDS = "no bands (point forecast)"
 
 #: The standing caution printed with every backtest.
 BACKTEST_CAUTION = (
@@ -69,92 +68,6 @@ def origin_seed(seed: int, origin: int) -> int:
     return int(np.random.SeedSequence([int(seed), int(origin)]).generate_state(1)[0])
 
 
-@dataclass
-class BacktestResult:
-    """Forecasts and scores of a rolling-origin backtest.
-
-    Attributes
-    ----------
-    forecasts : pandas.DataFrame
-        One row per method, origin and step: ``method``, ``origin`` (label of
-        the last training period), ``step`` (periods after the origin), ``period``
-        (label of the target), ``actual``, ``median``, ``lower_L``/``upper_L``
-        for each level, ``pit``, ``crps``, ``log_score``, then ``n_train``
-        (training points used).
-    scores : pandas.DataFrame
-        :func:`bayesgrowth.scoring.score_table` of the forecasts: one row per
-        method and step plus an ``"all"`` step, with ``n``, ``coverage_L`` and
-        its binomial interval, ``crps``, ``log_score``, ``abs_pct_error_median``,
-        ``verdict`` and more.
-    diagnostics : pandas.DataFrame
-        One row per origin of each Bayesian method: ``origin``, ``method``,
-        ``ok``, ``max_rhat``, ``min_ess_bulk``, ``min_ess_tail``,
-        ``divergences``, ``problems``.
-    series : GrowthSeries
-        The series backtested.
-    levels : tuple of int
-        Band levels in percent.
-    settings : dict
-        The run's settings (methods, horizon, min_train, stride, window, seed, n_draws).
-    """
-
-    forecasts: pd.DataFrame
-    scores: pd.DataFrame
-    diagnostics: pd.DataFrame
-    series: GrowthSeries
-    levels: tuple[int, ...]
-    settings: dict = field(default_factory=dict)
-
-    @property
-    def methods(self) -> tuple[str, ...]:
-        """Methods in the order they were run."""
-        return tuple(self.settings["methods"])
-
-    def _overall(self, method: str) -> pd.Series:
-        rows = self.scores[(self.scores["method"] == method) & (self.scores["step"] == ALL_STEPS)]
-        return rows.iloc[0]
-
-    def has_bands(self, method: str) -> bool:
-        """Whether ``method`` gave bands (False for a point forecast)."""
-        rows = self.forecasts[self.forecasts["method"] == method]
-        return bool(rows[f"lower_{self.levels[0]}"].notna().any())
-
-    def verdicts(self) -> dict[str, str]:
-        """Calibration verdict of each method over all steps, in plain words.
-
-        Returns
-        -------
-        dict of str to str
-            ``"calibrated"``, ``"bands too narrow"``, ``"bands too wide"``,
-            ``"mixed"`` (too narrow at one level, too wide at another), ``"too few
-            outcomes"`` or, for a point forecast, ``"no bands (point forecast)"``.
-            Decided by whether each stated level lies inside the binomial
-            interval of the observed coverage
-            (:func:`bayesgrowth.scoring.calibration_verdict`).
-        """
-        return {
-            m: self._overall(m)["verdict"] if self.has_bands(m) else NO_BANDS
-            for m in self.methods
-        }
-
-    def verdict_lines(self) -> list[str]:
-        """One sentence per method: its verdict, coverage per level and mean CRPS."""
-        lines = []
-        for method, verdict in self.verdicts().items():
-            row = self._overall(method)
-            crps = f"mean CRPS {row['crps']:,.4g}"
-            if verdict == NO_BANDS:
-                lines.append(f"{method}: {verdict}; {crps} (the mean absolute error)")
-                continue
-            held = ", ".join(
-                f"{lev}% bands held {row[f'coverage_{lev}']:.0%} "
-                f"(interval {row[f'coverage_{lev}_low']:.0%}-{row[f'coverage_{lev}_high']:.0%})"
-                for lev in self.levels
-            )
-            lines.append(f"{method}: {verdict}: {held} of {int(row['n'])} outcomes; {crps}")
-        return lines
-
-
 def _check_min(value: int | None, name: str) -> None:
     if value is not None and value < MIN_OBSERVATIONS:
         raise ValueError(
@@ -166,7 +79,8 @@ def _check_min(value: int | None, name: str) -> None:
 def backtest(
     series: GrowthSeries,
     *,
-    methods=("exact", "log-linear", "naive"),
+    models=None,
+    methods=None,
     horizon: int,
     min_train: int,
     stride: int = 1,
@@ -178,16 +92,27 @@ def backtest(
     n_draws: int = 4000,
     progress: bool = False,
 ) -> BacktestResult:
-    """Rolling-origin backtest of forecasting methods on one series.
+    """Rolling-origin backtest of several models on one series, on the same origins.
 
     Parameters
     ----------
     series : GrowthSeries
         The series; gaps keep their place in time.
-    methods : sequence of str
-        Any of ``"nuts"``, ``"exact"`` (the Bayesian engines), ``"log-linear"``,
+    models : str, mapping or sequence, optional
+        The models to compare, each under its name (which labels every row, score
+        and plot): names such as ``"default,exponential,log-linear"`` or
+        ``["default", "exponential/ar1", "naive"]``, a mapping of names to specs such
+        as ``{"default": {}, "exponential": {"model": "exponential"},
+        "log-linear": "log-linear"}``, or :class:`~bayesgrowth.backtest.models.ModelChoice`
+        objects; see :mod:`bayesgrowth.backtest.models`. Default
+        ``("default", "exponential", "log-linear")`` unless ``methods`` is given.
+    methods : sequence of str, optional
+        The earlier form, instead of ``models``: method names ``"nuts"``,
+        ``"exact"`` (the Bayesian engines, both fitting the model ``model_options``
+        describe, by default the exponential curve), ``"log-linear"``,
         ``"log-linear, anchored"`` (alias ``"log-linear-anchored"``),
         ``"revenue-scale"`` and ``"naive"``; see :mod:`bayesgrowth.backtest.methods`.
+        Rows are labelled by method.
     horizon : int
         Periods forecast from each origin. Targets are the observations at most
         ``horizon`` periods after the last training period (fewer near the end of
@@ -205,13 +130,15 @@ def backtest(
         Seed of the whole run; each origin's fits get a seed derived from it
         (:func:`origin_seed`).
     priors : Priors, optional
-        Priors of the Bayesian methods, resolved afresh on each training set.
+        Priors of the Bayesian models, resolved afresh on each training set.
     model_options : dict, optional
-        Keyword options passed through to :func:`bayesgrowth.inference.fit_series`
-        by the Bayesian methods (for example ``tune``, ``target_accept``, a model).
-        ``draws`` and ``chains`` default to ``n_draws`` spread over 4 chains.
+        With ``methods``: options passed to :func:`bayesgrowth.inference.fit_series`
+        by the Bayesian methods (a model, ``tune``, ``target_accept``, ...). With
+        ``models``: sampler settings only (``draws``, ``chains``, ``tune``,
+        ``target_accept``, ``cores``), shared by every Bayesian model. ``draws`` and
+        ``chains`` default to ``n_draws`` spread over 4 chains.
     n_draws : int, default 4000
-        Predictive draws per forecast, the same for every method (CRPS depends on it).
+        Predictive draws per forecast, the same for every model (CRPS depends on it).
     progress : bool, default False
         Show a progress bar over the origins.
 
@@ -222,8 +149,8 @@ def backtest(
     Raises
     ------
     ValueError
-        If a method is unknown, a setting is out of range, or the series is too
-        short for one origin; the message names the setting.
+        If a model or method is unknown, both are given, a setting is out of range,
+        or the series is too short for one origin; the message names the setting.
 
     Warns
     -----
@@ -231,7 +158,7 @@ def backtest(
         When a Bayesian fit fails its diagnostics at some origins (see
         :attr:`BacktestResult.diagnostics`).
     """
-    methods = check_methods(methods)
+    choices = _choices(models, methods, model_options)
     levels = check_levels(levels)
     splitter = RollingOrigin(horizon, min_train, stride=stride, window=window)
     _check_min(min_train, "min_train")
@@ -239,69 +166,87 @@ def backtest(
     if isinstance(n_draws, bool) or not isinstance(n_draws, (int, np.integer)) or n_draws < 2:
         raise ValueError(f"n_draws must be a whole number of at least 2, got {n_draws!r}")
     splits = list(splitter.split(series.n))
-    predictors = {
-        m: make_predictor(m, series, priors=priors, model_options=model_options,
-                          n_draws=int(n_draws), horizon=splitter.horizon)
-        for m in methods
-    }
-    labels = series.labels
-    iterator = splits
     if progress:
         from tqdm.auto import tqdm
 
-        iterator = tqdm(splits, desc="backtest origins", unit="origin")
+        splits = tqdm(splits, desc="backtest origins", unit="origin")
+    blocks, diag_rows = _run_origins(series, choices, splits, splitter.horizon, levels,
+                                     seed=seed, priors=priors, n_draws=int(n_draws))
+    forecasts = _forecast_frame(blocks, levels)
+    diagnostics = pd.DataFrame(diag_rows, columns=DIAGNOSTIC_COLUMNS)
+    _warn_failed(diagnostics, choices)
+    settings = {
+        "methods": [c.name for c in choices], "horizon": splitter.horizon,
+        "min_train": splitter.min_train, "stride": splitter.stride, "window": splitter.window,
+        "seed": int(seed), "n_draws": int(n_draws),
+        "n_origins": int(forecasts["origin"].nunique()),
+        "model_options": dict(model_options or {}),
+        "models": [{"name": c.name, "method": c.method, "options": dict(c.options),
+                    "description": c.describe()} for c in choices],
+    }
+    return BacktestResult(forecasts=forecasts, scores=score_table(forecasts, levels),
+                          diagnostics=diagnostics, series=series, levels=levels,
+                          settings=settings)
+
+
+#: Columns of :attr:`BacktestResult.diagnostics`.
+DIAGNOSTIC_COLUMNS = ["origin", "method", "ok", "max_rhat", "min_ess_bulk", "min_ess_tail",
+                      "divergences", "problems"]
+
+
+def _choices(models, methods, model_options) -> tuple[ModelChoice, ...]:
+    """The models to run, from ``models`` or the earlier ``methods`` form."""
+    if models is not None and methods is not None:
+        raise ValueError("give models or methods, not both")
+    if models is None and methods is not None:
+        return choices_from_methods(methods, model_options)
+    choices = resolve_models(DEFAULT_MODELS if models is None else models)
+    extra = [k for k in (model_options or {}) if k not in SAMPLER_KEYS]
+    if extra:
+        raise ValueError(
+            f"model_options: {extra[0]!r} belongs in a model's own options when models are "
+            f"named (model_options holds only sampler settings: {', '.join(SAMPLER_KEYS)})"
+        )
+    shared = dict(model_options or {})
+    return tuple(ModelChoice(c.name, c.method, {**shared, **c.options}) if c.bayesian else c
+                 for c in choices)
+
+
+def _run_origins(series, choices, splits, horizon, levels, *, seed, priors, n_draws):
+    """Fit every model at every origin; forecast rows and diagnostics rows."""
+    predictors = {
+        c.name: make_predictor(c.method, series, priors=priors, model_options=c.options,
+                               n_draws=n_draws, horizon=horizon)
+        for c in choices
+    }
+    labels = series.labels
     blocks: list[dict] = []
     diag_rows: list[dict] = []
-    for train_idx, test_idx in iterator:
+    for train_idx, test_idx in splits:
         train = series.take(train_idx)
-        steps = series.t[test_idx] - train.t_last
-        test_idx = test_idx[steps <= splitter.horizon]
+        test_idx = test_idx[series.t[test_idx] - train.t_last <= horizon]
         if test_idx.size == 0:
             continue
         target_t = series.t[test_idx]
         actual = series.values[test_idx]
         origin = labels[train_idx[-1]]
         seed_k = origin_seed(seed, int(train_idx[-1]) + 1)
-        for method in methods:
-            pred = predictors[method](train_idx, train, target_t, seed_k)
-            scored = score_prediction(pred, actual, levels, int(n_draws))
+        for c in choices:
+            pred = predictors[c.name](train_idx, train, target_t, seed_k)
             blocks.append({
-                "method": method,
-                "origin": origin,
+                "method": c.name, "origin": origin,
                 "step": (target_t - train.t_last).astype(int),
-                "period": [labels[i] for i in test_idx],
-                "actual": actual,
-                **scored,
-                "n_train": train.n,
+                "period": [labels[i] for i in test_idx], "actual": actual,
+                **score_prediction(pred, actual, levels, n_draws), "n_train": train.n,
             })
             if pred.diagnostics is not None:
                 d = pred.diagnostics
                 diag_rows.append({
-                    "origin": origin, "method": method, "ok": d.ok, "max_rhat": d.max_rhat,
+                    "origin": origin, "method": c.name, "ok": d.ok, "max_rhat": d.max_rhat,
                     "min_ess_bulk": d.min_ess_bulk, "min_ess_tail": d.min_ess_tail,
                     "divergences": d.divergences, "problems": "; ".join(d.problems),
                 })
-    forecasts = _forecast_frame(blocks, levels)
-    diagnostics = pd.DataFrame(
-        diag_rows,
-        columns=["origin", "method", "ok", "max_rhat", "min_ess_bulk", "min_ess_tail",
-                 "divergences", "problems"],
-    )
-    _warn_failed(diagnostics)
-    settings = {
-        "methods": list(methods), "horizon": splitter.horizon, "min_train": splitter.min_train,
-        "stride": splitter.stride, "window": splitter.window, "seed": int(seed),
-        "n_draws": int(n_draws), "n_origins": int(forecasts["origin"].nunique()),
-        "model_options": dict(model_options or {}),
-    }
-    return BacktestResult(
-        forecasts=forecasts,
-        scores=score_table(forecasts, levels),
-        diagnostics=diagnostics,
-        series=series,
-        levels=levels,
-        settings=settings,
-    )
+    return blocks, diag_rows
 
 
 def _forecast_frame(blocks: list[dict], levels: tuple[int, ...]) -> pd.DataFrame:
@@ -312,13 +257,13 @@ def _forecast_frame(blocks: list[dict], levels: tuple[int, ...]) -> pd.DataFrame
     return frame.astype({"step": int, "n_train": int})
 
 
-def _warn_failed(diagnostics: pd.DataFrame) -> None:
-    for method in BAYESIAN:
-        rows = diagnostics[diagnostics["method"] == method]
+def _warn_failed(diagnostics: pd.DataFrame, choices) -> None:
+    for c in (c for c in choices if c.bayesian):
+        rows = diagnostics[diagnostics["method"] == c.name]
         bad = rows[~rows["ok"].astype(bool)]
         if len(bad):
             warnings.warn(
-                f"{method}: sampling diagnostics failed at {len(bad)} of {len(rows)} origins "
+                f"{c.name}: sampling diagnostics failed at {len(bad)} of {len(rows)} origins "
                 f"(first {bad['origin'].iloc[0]}: {bad['problems'].iloc[0]}); see "
                 "BacktestResult.diagnostics and treat those forecasts with care",
                 SamplingWarning,

@@ -20,7 +20,7 @@ from bayesgrowth.plots.style import (
     style_axes,
 )
 
-__all__ = ["calibration_figure", "fans_figure", "plot_backtest_fans"]
+__all__ = ["calibration_figure", "fans_figure", "model_figure", "plot_backtest_fans"]
 
 #: Colour of outcomes that fall outside their band (Okabe & Ito vermillion).
 MISS_COLOR = TARGET
@@ -157,4 +157,46 @@ def calibration_figure(result) -> Figure:
     fig.suptitle(f"{literal(result.series.name)}: calibration over {n_origins} origins\n"
                  "PIT histogram shapes: U = bands too narrow, hump = too wide, slope = bias",
                  fontsize=11)
+    return fig
+
+
+def model_figure(result, method: str, level: int = 80, unit: str | None = None) -> Figure:
+    """One model's backtest on one figure: its fans over the actuals, coverage and PIT.
+
+    The title names the model and what it is; a model without bands (a point
+    forecast) gets the fan panel only.
+
+    Parameters
+    ----------
+    result : BacktestResult
+    method : str
+        The model's name (a value of the forecasts' ``method`` column).
+    level : int, default 80
+        Band level of the fans; one of the backtest's levels.
+    unit : str, optional
+        Y-axis label of the fans (default: the series' value column if known).
+
+    Returns
+    -------
+    matplotlib.figure.Figure
+
+    Raises
+    ------
+    ValueError
+        If the model or level is not in the result.
+    """
+    banded = method in result.methods and result.has_bands(method)
+    layout = [["fans", "fans"], ["coverage", "pit"]] if banded else [["fans"]]
+    fig, axes = plt.subplot_mosaic(layout, figsize=(9.0, 7.6 if banded else 4.4),
+                                   height_ratios=[1.15, 1] if banded else None,
+                                   layout="constrained")
+    plot_backtest_fans(result, method, level=level, ax=axes["fans"], unit=unit)
+    if banded:
+        scores = result.scores[result.scores["method"] == method]
+        plot_coverage(scores, result.levels, ax=axes["coverage"])
+        pit = result.forecasts.loc[result.forecasts["method"] == method, "pit"]
+        plot_pit_histogram(pit.to_numpy(dtype=float), ax=axes["pit"], label=method)
+    about = result.descriptions.get(method)
+    title = f"{literal(result.series.name)}: backtest of {literal(method)}"
+    fig.suptitle(title + (f"\n{literal(about)}" if about else ""), fontsize=11)
     return fig

@@ -8,7 +8,7 @@ import sys
 import pandas as pd
 import pytest
 
-from bayesgrowth.cli.backtest import OUTPUT_FILES
+from bayesgrowth.cli.backtest import OUTPUT_FILES, output_files
 from bayesgrowth.cli.main import main
 from bayesgrowth.cli.output import MANIFEST
 from bayesgrowth.data.demo import demo_path
@@ -29,7 +29,10 @@ def test_backtest_writes_every_file_and_prints_verdicts(tmp_path, capsys):
         capsys,
     )
     assert code == 0, stderr
-    assert sorted(p.name for p in out.iterdir()) == sorted([*OUTPUT_FILES, MANIFEST])
+    methods = ["exact", "log-linear, anchored", "revenue-scale", "naive"]
+    assert sorted(p.name for p in out.iterdir()) == sorted([*output_files(methods), MANIFEST])
+    assert set(OUTPUT_FILES) < set(output_files(methods))
+    assert "backtest_model_log-linear-anchored.png" in output_files(methods)
     forecasts = pd.read_csv(out / "backtest_forecasts.csv")
     for col in ("method", "origin", "step", "period", "actual", "median", "lower_80",
                 "upper_80", "pit", "crps", "log_score"):
@@ -45,14 +48,76 @@ def test_backtest_writes_every_file_and_prints_verdicts(tmp_path, capsys):
     assert set(scores["step"].astype(str)) == {"1", "2", "3", "all"}
     diagnostics = pd.read_csv(out / "backtest_diagnostics.csv")
     assert set(diagnostics["method"]) == {"exact"} and len(diagnostics) == 10
-    for png in ("calibration.png", "backtest_fans.png"):
+    for png in (n for n in output_files(methods) if n.endswith(".png")):
         assert (out / png).read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
     for method in ("exact", "log-linear, anchored", "naive"):
-        assert any(line.startswith(f"{method}: ") and "80% bands held" in line
+        assert any(line.strip().startswith(f"{method}: ") and "80% bands held" in line
                    for line in stdout.splitlines())
     assert "revenue-scale: no bands (point forecast)" in stdout
     assert "caution:" in stdout and "not investment advice" in stdout
     assert "overlapping origins" in stdout
+
+
+def test_default_models_are_compared_ranked_and_drawn_one_figure_each(tmp_path, capsys):
+    out = tmp_path / "bt"
+    code, stdout, stderr = _run(
+        ["backtest", str(demo_path()), "-H", "2", "--min-train", "14", "--out", str(out),
+         "--quiet"], capsys)
+    assert code == 0, stderr
+    names = ["default", "exponential", "log-linear"]
+    assert sorted(p.name for p in out.iterdir()) == sorted([*output_files(names), MANIFEST])
+    for png in ("backtest_model_default.png", "backtest_model_exponential.png",
+                "backtest_model_log-linear.png"):
+        assert (out / png).read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+    forecasts = pd.read_csv(out / "backtest_forecasts.csv")
+    assert list(pd.unique(forecasts["method"])) == names
+    ranking = pd.read_csv(out / "backtest_ranking.csv")
+    top = ranking[ranking["step"].astype(str) == "all"]
+    assert sorted(top["method"]) == sorted(names) and top["rank"].tolist() == [1, 2, 3]
+    for col in ("score", "mean", "diff", "diff_se", "dm_stat", "p_value", "verdict"):
+        assert col in ranking.columns
+    bias = pd.read_csv(out / "backtest_bias.csv")
+    assert set(bias["method"]) == set(names) and {"share_below", "p_value"} <= set(bias)
+    lines = stdout.splitlines()
+    assert any(line.startswith("ranking by mean CRPS") for line in lines)
+    assert any(line.strip().startswith("1. ") and "(best)" in line for line in lines)
+    assert "  default: local-trend (mean-reverting)" in stdout
+    assert any("80% band:" in line and "binomial test" in line for line in lines)
+
+
+def test_named_models_label_every_file(tmp_path, capsys):
+    out = tmp_path / "bt"
+    code, stdout, stderr = _run(
+        ["backtest", str(demo_path()), "-H", "1", "--min-train", "16", "--out", str(out),
+         "--models", "exponential,naive,log-linear-anchored", "--quiet"], capsys)
+    assert code == 0, stderr
+    names = ["exponential", "naive", "log-linear-anchored"]
+    assert sorted(p.name for p in out.iterdir()) == sorted([*output_files(names), MANIFEST])
+    for table in ("forecasts", "scores", "ranking"):
+        frame = pd.read_csv(out / f"backtest_{table}.csv")
+        assert set(frame["method"]) == set(names), table
+    assert set(pd.read_csv(out / "backtest_diagnostics.csv")["method"]) == {"exponential"}
+
+
+@pytest.mark.parametrize(
+    ("extra", "needle"),
+    [
+        (["--models", "default", "--methods", "exact"], "--models and --methods"),
+        (["--models", "exact,naive"], "--models 'exact,naive': unknown model 'exact'"),
+        (["--models", "default/sideways"], "unknown modifier 'sideways'"),
+        (["--models", "logistic/exact"], "logistic/nuts"),
+        (["--models", "naive,naive"], "appears twice"),
+        (["--models", "default,naive", "--model", "logistic"], "--models: name each model"),
+    ],
+)
+def test_bad_models_exit_2_with_one_line(tmp_path, capsys, extra, needle):
+    out = tmp_path / "never"
+    code, stdout, stderr = _run(["backtest", str(demo_path()), "-H", "2", "--min-train", "10",
+                                 "--out", str(out), "--quiet", *extra], capsys)
+    assert code == 2
+    lines = stderr.strip().splitlines()
+    assert len(lines) == 1 and needle in lines[0], stderr
+    assert not out.exists()
 
 
 @pytest.mark.parametrize(

@@ -196,17 +196,22 @@ def test_exact_engine_refuses_other_curves(tmp_path, command):
 
 
 def test_backtest_defaults_to_nuts_when_a_model_option_needs_it(tmp_path, monkeypatch):
-    # With --errors ar1 and no --methods, the default methods put nuts in place of exact rather
-    # than refusing the run (the options are parsed, the run itself is not started here).
+    # With --errors ar1 and neither --models nor --methods, the first default model is the one
+    # the options describe, on nuts (the exact engine does not fit AR(1) errors) rather than a
+    # refusal (the options are parsed, the run itself is not started here).
     from bayesgrowth.cli import backtest as cli_backtest
     from bayesgrowth.cli.main import build_parser
 
     args = build_parser().parse_args(["backtest", str(demo_path()), "-H", "2", "--min-train",
                                       "16", "--out", str(tmp_path / "o"), "--errors", "ar1"])
-    assert cli_backtest._default_methods(args) == ("nuts", "log-linear", "naive")
+    choices, _ = cli_backtest._choices(args)
+    assert [(c.name, c.method) for c in choices] == [
+        ("default/ar1", "nuts"), ("exponential", "exact"), ("log-linear", "log-linear")]
     plain = build_parser().parse_args(["backtest", str(demo_path()), "-H", "2", "--min-train",
                                        "16", "--out", str(tmp_path / "o")])
-    assert cli_backtest._default_methods(plain) == ("exact", "log-linear", "naive")
+    choices, _ = cli_backtest._choices(plain)
+    assert [(c.name, c.method) for c in choices] == [
+        ("default", "exact"), ("exponential", "exact"), ("log-linear", "log-linear")]
 
 
 def test_one_recommended_default_in_the_api_and_the_cli(tmp_path):

@@ -1,0 +1,318 @@
+"""Named models for a backtest: which curve, errors and engine each compared forecast uses.
+
+A backtest compares *models*, each under a name that labels its rows, scores
+and plots. A model is a :class:`ModelChoice`: a name, the method that forecasts
+(a Bayesian engine, ``"exact"`` or ``"nuts"``, or a least-squares or baseline
+method of :mod:`bayesgrowth.backtest.methods`) and, for the engines, the model
+options passed to :func:`bayesgrowth.inference.fit_series`.
+
+Models are named in a short text form, ``BASE[/MODIFIER...]``:
+
+``default``
+    The package's default: the damped local trend (growth fades towards a
+    long-run rate), seasonal factors when the calendar allows (exact engine).
+``local-trend``
+    The local trend whose growth rate drifts without fading.
+``exponential``, ``damped``, ``logistic``, ``gompertz``
+    The growth curves of :mod:`bayesgrowth.models.spec`.
+``log-linear``, ``log-linear-anchored``, ``revenue-scale``, ``naive``
+    The least-squares fits and the naive baseline (no modifiers).
+
+Modifiers: ``ar1`` (deviations persist), ``student-t`` (heavy-tailed noise),
+``seasonal`` / ``no-seasons`` (force seasonal factors on or off),
+``random-walk`` / ``mean-reverting`` / ``adaptive`` (how a local trend's growth
+drifts), and ``exact`` / ``nuts`` (the engine). Without an engine modifier a
+model uses the exact engine when it covers the model, else NUTS. Examples:
+``exponential/ar1``, ``default/nuts``, ``logistic/student-t``.
+"""
+
+from __future__ import annotations
+
+import re
+from collections.abc import Iterable, Mapping
+from dataclasses import dataclass, field
+
+from bayesgrowth.backtest.methods import ALIASES, BAYESIAN, METHODS, check_methods
+from bayesgrowth.config import DEFAULT_MODEL
+
+__all__ = [
+    "DEFAULT_MODELS",
+    "ModelChoice",
+    "choices_from_methods",
+    "file_stem",
+    "label_for_options",
+    "parse_model",
+    "resolve_models",
+]
+
+#: The models a backtest compares unless told otherwise.
+DEFAULT_MODELS = ("default", "exponential", "log-linear")
+
+#: Model options each text base stands for (merged over :data:`DEFAULT_MODEL`).
+_CURVES = {
+    "default": {},
+    "local-trend": {"model": "local-trend", "drift": "random-walk"},
+    "exponential": {"model": "exponential"},
+    "damped": {"model": "damped"},
+    "logistic": {"model": "logistic"},
+    "gompertz": {"model": "gompertz"},
+}
+#: What each modifier sets.
+_MODIFIERS = {
+    "ar1": ("errors", "ar1"),
+    "student-t": ("noise", "student-t"),
+    "seasonal": ("seasonal", True),
+    "no-seasons": ("seasonal", False),
+    "random-walk": ("drift", "random-walk"),
+    "mean-reverting": ("drift", "mean-reverting"),
+    "adaptive": ("drift", "adaptive"),
+    "exact": ("engine", "exact"),
+    "nuts": ("engine", "nuts"),
+}
+#: Keys of a model given as a dict: model options, the engine, and sampler settings.
+MODEL_KEYS = ("model", "errors", "noise", "seasonal", "drift")
+SAMPLER_KEYS = ("draws", "chains", "tune", "target_accept", "cores")
+
+
+@dataclass(frozen=True)
+class ModelChoice:
+    """One model of a backtest: its name, the method that forecasts, and its options.
+
+    Attributes
+    ----------
+    name : str
+        The label of the model's rows, scores and plots.
+    method : str
+        One of :data:`bayesgrowth.backtest.methods.METHODS`.
+    options : dict
+        For the Bayesian methods, options passed to
+        :func:`bayesgrowth.inference.fit_series` (model and sampler settings);
+        empty otherwise.
+    """
+
+    name: str
+    method: str
+    options: dict = field(default_factory=dict)
+
+    @property
+    def bayesian(self) -> bool:
+        """Whether the model is fitted by a Bayesian engine (and has sampling diagnostics)."""
+        return self.method in BAYESIAN
+
+    def describe(self) -> str:
+        """The model in words, e.g. ``"exponential, independent errors, ... (exact engine)"``."""
+        if not self.bayesian:
+            return {"log-linear": "least squares on the log values",
+                    "log-linear, anchored": "least squares on the log values, through the "
+                    "first value",
+                    "revenue-scale": "least squares on the values (point forecast)",
+                    "naive": "last value carried forward (random walk on the log scale)",
+                    }[self.method]
+        return f"{_spec(self.options).label()} ({self.method} engine)"
+
+
+def _spec(options: Mapping):
+    """The :class:`ModelSpec` of model options, ``seasonal="auto"`` read as no seasons."""
+    from bayesgrowth.models.spec import ModelSpec
+
+    keys = {k: options[k] for k in MODEL_KEYS if k in options}
+    keys["seasonal"] = keys.get("seasonal", False) is True
+    return ModelSpec(**keys)
+
+
+def _engine_for(name: str, options: dict, engine: str | None) -> str:
+    """The engine of a Bayesian model: as asked, else exact where it covers the model."""
+    spec = _spec(options)
+    covered = spec.is_plain_exponential or spec.is_state_space
+    if engine is None:
+        engine = "exact" if covered else "nuts"
+    if engine == "exact" and not covered:
+        raise ValueError(
+            f"model {name!r}: the exact engine fits the local trend (normal noise, independent "
+            f"errors) and the exponential curve with independent normal errors, not "
+            f"{spec.label()}; use the nuts engine ({_nuts_name(name)})"
+        )
+    if engine == "nuts" and spec.model == "local-trend" and spec.drift == "adaptive":
+        raise ValueError(f"model {name!r}: adaptive drift needs the exact engine")
+    return engine
+
+
+def _nuts_name(name: str) -> str:
+    """How to ask for the NUTS engine: the text name with ``/nuts``, or the dict key."""
+    parts = name.split("/")
+    if parts[0] in _CURVES:
+        return "/".join([p for p in parts if p != "exact"] + ["nuts"])
+    return "engine='nuts' in its options"
+
+
+def _from_options(name: str, given: Mapping) -> ModelChoice:
+    allowed = (*MODEL_KEYS, "engine", *SAMPLER_KEYS)
+    unknown = [k for k in given if k not in allowed]
+    if unknown:
+        raise ValueError(f"model {name!r}: unknown option {unknown[0]!r}; use "
+                         f"{', '.join(allowed)}")
+    options = {**DEFAULT_MODEL, **{k: v for k, v in given.items() if k != "engine"}}
+    engine = given.get("engine")
+    if engine is not None and engine not in BAYESIAN:
+        raise ValueError(f"model {name!r}: engine must be exact or nuts, got {engine!r}")
+    try:
+        if _spec(options).model != "local-trend":
+            options.pop("drift")  # only the local trend's growth drifts
+        return ModelChoice(name, _engine_for(name, options, engine), options)
+    except ValueError as exc:
+        text = str(exc)
+        prefix = f"model {name!r}"
+        raise ValueError(text if text.startswith(prefix) else f"{prefix}: {text}") from None
+
+
+def parse_model(text: str) -> ModelChoice:
+    """The model a text such as ``"exponential/ar1"`` names (see the module docstring).
+
+    Parameters
+    ----------
+    text : str
+        ``BASE[/MODIFIER...]``; case and surrounding blanks are ignored.
+
+    Returns
+    -------
+    ModelChoice
+        Named by the text (lowercased, without blanks).
+
+    Raises
+    ------
+    ValueError
+        Naming the unknown part and the allowed ones.
+    """
+    name = re.sub(r"\s*/\s*", "/", str(text).strip().lower())
+    base, *mods = name.split("/")
+    method = ALIASES.get(base, base)
+    if method in METHODS and method not in BAYESIAN:
+        if mods:
+            raise ValueError(f"model {name!r}: {base} takes no modifiers")
+        return ModelChoice(name, method)
+    if base not in _CURVES:
+        names = [*_CURVES, *(m for m in METHODS if m not in BAYESIAN and "," not in m),
+                 "log-linear-anchored"]
+        hint = " (name a model; the engine is a modifier, e.g. default/nuts)" if (
+            base in BAYESIAN) else ""
+        raise ValueError(f"unknown model {base!r}{hint}; choose from {', '.join(names)}")
+    options = dict(_CURVES[base])
+    for mod in mods:
+        if mod not in _MODIFIERS:
+            raise ValueError(f"model {name!r}: unknown modifier {mod!r}; choose from "
+                             f"{', '.join(_MODIFIERS)}")
+        key, value = _MODIFIERS[mod]
+        options[key] = value
+    return _from_options(name, options)
+
+
+def label_for_options(options: Mapping) -> str:
+    """The text name of Bayesian model options, e.g. ``"logistic/ar1"``.
+
+    :func:`parse_model` of the name gives the same model; the engine is left to
+    its default choice (exact where it covers the model).
+
+    Parameters
+    ----------
+    options : mapping
+        Model options (``model``, ``errors``, ``noise``, ``seasonal``, ``drift``),
+        missing ones taken from :data:`bayesgrowth.config.DEFAULT_MODEL`.
+
+    Returns
+    -------
+    str
+    """
+    spec = _spec({**DEFAULT_MODEL, **options})
+    seasonal = options.get("seasonal", DEFAULT_MODEL["seasonal"])
+    if spec.model == "local-trend":
+        base = {"mean-reverting": "default", "random-walk": "local-trend",
+                "adaptive": "default/adaptive"}[spec.drift]
+    else:
+        base = spec.model
+    mods = [m for m, on in (("ar1", spec.errors == "ar1"), ("student-t", spec.noise != "normal"),
+                            ("seasonal", seasonal is True),
+                            ("no-seasons", seasonal is False and spec.model == "local-trend"))
+            if on]
+    return "/".join([base, *mods])
+
+
+def _one(name: str | None, spec) -> ModelChoice:
+    if isinstance(spec, ModelChoice):
+        choice = spec
+    elif isinstance(spec, str):
+        choice = parse_model(spec)
+    elif isinstance(spec, Mapping):
+        if name is None:
+            raise ValueError("a model given as options needs a name: pass {name: options}")
+        return _from_options(str(name), spec)
+    else:
+        raise ValueError(f"a model is a name, a dict of options or a ModelChoice, got {spec!r}")
+    return choice if name is None else ModelChoice(str(name), choice.method, choice.options)
+
+
+def resolve_models(models) -> tuple[ModelChoice, ...]:
+    """The models of a backtest, from any of the accepted forms, in order, named uniquely.
+
+    Parameters
+    ----------
+    models : str, mapping or iterable
+        A text such as ``"default,exponential,log-linear"``; a mapping of names to
+        specs (a text name such as ``"log-linear"``, a dict of model options with an
+        optional ``engine``, e.g. ``{"model": "exponential"}``, merged over
+        :data:`bayesgrowth.config.DEFAULT_MODEL`, or a :class:`ModelChoice`); or an
+        iterable of text names and :class:`ModelChoice` objects.
+
+    Returns
+    -------
+    tuple of ModelChoice
+
+    Raises
+    ------
+    ValueError
+        If a model is unknown or invalid, two models share a name, or none is given.
+    """
+    if isinstance(models, str):
+        models = [m for m in models.split(",") if m.strip()]
+    if isinstance(models, Mapping):
+        choices = [_one(name, spec) for name, spec in models.items()]
+    elif isinstance(models, Iterable):
+        choices = [_one(None, spec) for spec in models]
+    else:
+        raise ValueError(f"models must be names, a mapping or a list, got {models!r}")
+    if not choices:
+        raise ValueError(f"name at least one model, e.g. {','.join(DEFAULT_MODELS)}")
+    seen: set[str] = set()
+    for c in choices:
+        if not c.name.strip():
+            raise ValueError("a model name is empty; name every model")
+        if c.name in seen:
+            raise ValueError(f"model name {c.name!r} appears twice; name every model once")
+        seen.add(c.name)
+    return tuple(choices)
+
+
+def choices_from_methods(methods, model_options: dict | None) -> tuple[ModelChoice, ...]:
+    """One model per method name, each named by its method, sharing ``model_options``."""
+    return tuple(ModelChoice(m, m, dict(model_options or {}) if m in BAYESIAN else {})
+                 for m in check_methods(methods))
+
+
+def file_stem(names: Iterable[str]) -> dict[str, str]:
+    """A file-name stem per model name: lowercase letters, digits and dashes, unique.
+
+    Parameters
+    ----------
+    names : iterable of str
+
+    Returns
+    -------
+    dict of str to str
+    """
+    out: dict[str, str] = {}
+    for name in names:
+        stem = re.sub(r"[^a-z0-9]+", "-", name.lower()).strip("-") or "model"
+        base, k = stem, 2
+        while stem in out.values():
+            stem, k = f"{base}-{k}", k + 1
+        out[name] = stem
+    return out
