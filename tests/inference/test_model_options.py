@@ -20,8 +20,9 @@ from bayesgrowth.models import general
 from bayesgrowth.models.spec import ModelSpec
 from bayesgrowth.priors import LocalTrendPrior, Priors
 
-#: The local trend of the NUTS sampler-health measurements: no level shocks.
-NO_LEVEL_SHOCKS = Priors(local_trend=LocalTrendPrior(level_shock_pct=0))
+#: The local trend of the NUTS sampler-health measurements: no level shocks, growth drift
+#: about 1 point per period (the priors before the exact engine's real-data defaults).
+NO_LEVEL_SHOCKS = Priors(local_trend=LocalTrendPrior(level_shock_pct=0, growth_drift_pts=1.0))
 
 pytestmark = pytest.mark.slow
 

@@ -20,7 +20,8 @@ def test_exact_engine_agrees_with_nuts_on_the_local_trend():
     # shocks and noise (minutes per fit), which the exact engine does not have to walk
     series = bg.load_demo().head(14)
     opts = {"model": "local-trend", "drift": "random-walk", "seasonal": False,
-            "priors": Priors(local_trend=LocalTrendPrior(level_shock_pct=0))}
+            "priors": Priors(local_trend=LocalTrendPrior(level_shock_pct=0,
+                                                         growth_drift_pts=1.0))}
     exact = fit_series(series, engine="exact", seed=5, **opts)
     nuts = fit_series(series, engine="nuts", seed=5, draws=1000, chains=2, **opts)
     assert nuts.diagnostics.ok
