@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import argparse
+import os
 import sys
 import warnings
 from pathlib import Path
@@ -30,6 +31,16 @@ def _levels(text: str) -> tuple[int, ...]:
         return check_levels(float(x) for x in text.split(",") if x.strip())
     except ValueError as exc:
         raise argparse.ArgumentTypeError(f"--levels {text!r}: {exc}") from None
+
+
+def _probability(text: str) -> float:
+    try:
+        value = float(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a number") from None
+    if not 0 < value < 1:
+        raise argparse.ArgumentTypeError(f"{text!r} must be between 0 and 1 (exclusive)")
+    return value
 
 
 def _positive_int(text: str) -> int:
@@ -78,6 +89,12 @@ def add_model_options(p: argparse.ArgumentParser, *, horizon_required: bool = Tr
         "--draws", type=_positive_int, default=1000, help="posterior draws per chain [1000]"
     )
     p.add_argument("--chains", type=_positive_int, default=4, help="chains [4]")
+    p.add_argument("--target-accept", type=_probability, default=None, metavar="P",
+                   help="nuts: step-size target between 0 and 1; raise it (e.g. 0.99) when "
+                   "divergent transitions are reported [0.95 for the ceiling curves and "
+                   "series of 6 points or fewer, else 0.9]")
+    p.add_argument("--cores", type=_positive_int, default=1, metavar="N",
+                   help="nuts: chains sampled in parallel, up to the cores available [1]")
     m = p.add_argument_group("model (see docs/growth-curves.md)")
     m.add_argument(
         "--model",
@@ -318,6 +335,8 @@ def fit_from_args(args, series):
     options = {"draws": args.draws, "chains": args.chains, **spec_options}
     if args.engine == "nuts":
         options["progressbar"] = not args.quiet
+        options["target_accept"] = getattr(args, "target_accept", None)
+        options["cores"] = min(getattr(args, "cores", 1), os.cpu_count() or 1)
     say(
         args,
         f"fitting {series.name} ({series.n} {series.axis.frequency} observations) "
