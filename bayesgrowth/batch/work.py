@@ -60,6 +60,11 @@ class BatchSettings:
         Folder for per-series posterior files; ``None`` saves none.
     threads : int
         Threads a NUTS fit may use for its chains.
+    recalibration : dict, optional
+        Per frequency, a recalibration map and where it was learned,
+        ``{frequency: (QuantileMap, source)}``
+        (:func:`bayesgrowth.forecast.recalibrated.apply_map`); each forecast is
+        recalibrated with its frequency's map. ``None`` recalibrates nothing.
     """
 
     horizon: int
@@ -74,12 +79,13 @@ class BatchSettings:
     padded_length: int = 0
     posterior_dir: str | None = None
     threads: int = 1
+    recalibration: dict | None = None
 
     def to_record(self) -> dict:
         """The settings that decide the results, JSON-ready (to check a resumed run)."""
         from dataclasses import asdict
 
-        return {
+        record = {
             "horizon": self.horizon, "engine": self.engine, "seed": self.seed,
             "levels": list(self.levels),
             "priors": None if self.priors is None else asdict(self.priors),
@@ -87,6 +93,10 @@ class BatchSettings:
             "tune": self.tune if self.engine == "nuts" else None,
             "model_options": dict(sorted(self.model_options.items())),
         }
+        if self.recalibration is not None:  # the maps' fingerprints: same maps, same results
+            record["recalibration"] = {freq: qmap.fingerprint() for freq, (qmap, _)
+                                       in sorted(self.recalibration.items())}
+        return record
 
     def uses_compiled_nuts(self) -> bool:
         """Whether NUTS fits go through one compiled model (nutpie, plain exponential)."""
@@ -149,6 +159,17 @@ def _fit(series: GrowthSeries, settings: BatchSettings, seed: int):
     )
 
 
+def _recalibrated(fc, maps: dict):
+    """``fc`` recalibrated with its frequency's map (an input error if there is none)."""
+    from bayesgrowth.forecast.recalibrated import apply_map
+
+    freq = fc.fit.series.axis.frequency
+    if freq not in maps:
+        raise InputError(f"no backtest of a {freq} series gave outcomes to recalibrate from")
+    qmap, source = maps[freq]
+    return apply_map(fc, qmap, source)
+
+
 def fit_one(series: GrowthSeries, settings: BatchSettings) -> SeriesOutcome:
     """Fit and forecast one series; any error becomes the outcome's failure reason.
 
@@ -172,6 +193,8 @@ def fit_one(series: GrowthSeries, settings: BatchSettings) -> SeriesOutcome:
             warnings.simplefilter("ignore")  # diagnostics go to the summary instead
             fit = _fit(series, settings, seed)
             fc = forecast(fit, settings.horizon, levels=settings.levels)
+            if settings.recalibration is not None:
+                fc = _recalibrated(fc, settings.recalibration)
             table = fc.table
     except InputError as exc:  # the series' data or the options: the message says which
         outcome.failure = f"{series.name}: {exc}"
@@ -195,6 +218,8 @@ def fit_one(series: GrowthSeries, settings: BatchSettings) -> SeriesOutcome:
         "min_ess_bulk": diag.min_ess_bulk, "divergences": diag.divergences,
         "engine": fit.engine, "seed": seed,
     }
+    if settings.recalibration is not None:
+        outcome.summary["recalibration_outcomes"] = fc.recalibrated["n_outcomes"]
     if settings.posterior_dir is not None:
         folder = Path(settings.posterior_dir)
         target = folder / posterior_file_name(series.name)

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import argparse
 import sys
+from dataclasses import replace
 from pathlib import Path
 
 from bayesgrowth.cli.acceptance import diagnostics_exit
@@ -22,6 +23,12 @@ from bayesgrowth.cli.common import (
     model_options_from_args,
     priors_from_args,
     say,
+)
+from bayesgrowth.cli.recalibration import (
+    add_recalibrate_options,
+    check_batch_out,
+    panel_recalibration,
+    recalibration_line,
 )
 
 __all__ = ["add_parser", "EXIT_SOME_FAILED"]
@@ -58,6 +65,7 @@ def add_parser(subparsers) -> argparse.ArgumentParser:
                    help="series per unit of work, the most an interruption loses [automatic]")
     p.add_argument("--save-posteriors", action="store_true",
                    help="also write each series' posterior to posteriors/ (NetCDF)")
+    add_recalibrate_options(p, panel=True)
     p.set_defaults(run=run)
     return p
 
@@ -87,6 +95,8 @@ def run(args) -> int:
 
     if args.seed < 0:
         raise UsageError(f"--seed {args.seed}: must be 0 or more")
+    if args.min_train is not None and not args.recalibrate:
+        raise UsageError("--min-train: only with --recalibrate")
     panel, bad, notes = quiet_read_panel(
         args.file, series_col=args.series_col, period_col=args.period_col,
         value_col=args.value_col,
@@ -103,8 +113,13 @@ def run(args) -> int:
     order = list(dict.fromkeys([*panel, *(name for name, _ in bad)]))
     say(args, f"{len(order)} series in {args.file.name}: {len(panel)} to fit, "
         f"{len(bad)} refused at reading; engine {args.engine}, executor {args.executor}")
+    if args.recalibrate:
+        check_batch_out(args.out, [args.file])
     executor = _executor(args)
     try:
+        if args.recalibrate:
+            settings = replace(settings, recalibration=panel_recalibration(
+                args, panel, settings, executor))
         result = run_batch(
             panel, args.out, settings, executor=executor, read_failures=bad, order=order,
             protect=[args.file], chunk_size=args.chunk_size,
@@ -120,6 +135,8 @@ def run(args) -> int:
     n_done = len(result.summary)
     print(f"{n_done} of {len(order)} series forecast ({result.n_fitted} fitted now, "
           f"{result.n_skipped} finished earlier), {n_bad} failed")
+    for freq, (qmap, source) in sorted((settings.recalibration or {}).items()):
+        print(recalibration_line({**qmap.describe(), **source}, prefix=f"{freq} series: "))
     if n_done and "diagnostics_ok" in result.summary:
         n_diag = int((~result.summary["diagnostics_ok"].astype(bool)).sum())
         if n_diag:

@@ -27,6 +27,12 @@ from bayesgrowth.cli.common import (
     say,
 )
 from bayesgrowth.cli.output import add_force_option, staged_output
+from bayesgrowth.cli.recalibration import (
+    add_recalibrate_options,
+    check_min_train,
+    recalibrate_forecast,
+    recalibration_line,
+)
 from bayesgrowth.cli.text import add_unit_option, forecast_lines, unit_from_args
 from bayesgrowth.data.export import NOT_AVAILABLE_KEY, json_ready, json_text, write_csv
 from bayesgrowth.data.series import GrowthSeries, InputError
@@ -68,6 +74,7 @@ def build_parser() -> argparse.ArgumentParser:
         metavar="P",
         help="probability at which the target counts as reached [0.5]",
     )
+    add_recalibrate_options(fc)
     fc.set_defaults(run=_run_forecast)
 
     demo = sub.add_parser(
@@ -86,6 +93,7 @@ def build_parser() -> argparse.ArgumentParser:
     add_force_option(demo)
     demo.add_argument("--target", type=float, default=None, help=argparse.SUPPRESS)
     demo.add_argument("--target-probability", type=float, default=0.5, help=argparse.SUPPRESS)
+    add_recalibrate_options(demo)
     demo.set_defaults(run=_run_demo)
     compare.add_parser(sub)
     backtest.add_parser(sub)
@@ -104,11 +112,14 @@ def _run_forecast(args, series: GrowthSeries | None = None) -> int:
         raise UsageError(f"--target {args.target}: must be a finite value above 0")
     if not 0 < args.target_probability < 1:
         raise UsageError(f"--target-probability {args.target_probability}: must be between 0 and 1")
+    min_train = check_min_train(args, series.n)
     names = ["forecast.csv", "summary.json", "fan_chart.png", "posterior.nc"]
     protect = [args.file] if getattr(args, "file", None) else []
     with staged_output(args.out, names, protect, force=args.force) as stage:
         fit = fit_from_args(args, series)
         fc = forecast(fit, args.horizon, levels=args.levels)
+        if min_train is not None:
+            fc = recalibrate_forecast(args, fc, min_train)
         summary = fc.summary(args.target, args.target_probability)
         write_csv(fc.table, stage / "forecast.csv")
         (stage / "summary.json").write_text(json_text(summary))
@@ -116,6 +127,8 @@ def _run_forecast(args, series: GrowthSeries | None = None) -> int:
         fit.to_netcdf(stage / "posterior.nc", fc.predictive_groups())
     for line in forecast_lines(fc, summary):
         print(line)
+    if "recalibrated" in summary:
+        print(recalibration_line(summary["recalibrated"]))
     for caution in summary["cautions"]:
         print(f"caution: {caution}")
     missing = json_ready(summary)[1]

@@ -50,7 +50,9 @@ __all__ = [
     "default_min_train",
     "map_from_backtest",
     "outcomes_of",
+    "pit_coverage",
     "pooled_maps",
+    "pooled_source",
     "priors_of",
     "recalibrate",
     "recalibrate_panel",
@@ -222,11 +224,27 @@ def pooled_maps(results: Sequence, *, method: str | None = None, horizon: int | 
     return maps
 
 
-def _own_source(result) -> dict:
+def pit_coverage(pit, levels) -> dict[str, float]:
+    """Share of outcomes inside each central band before recalibration, from their PIT values.
+
+    An outcome is inside the central ``L`` band when its PIT lies in ``[a, 1 - a]``,
+    ``a = (1 - L/100)/2``. Keys are the levels as text (JSON-ready).
+    """
+    u = np.asarray(pit, dtype=float)
+    u = u[np.isfinite(u)]
+    if not u.size:
+        return {}
+    return {str(lev): float(np.mean((u >= (100 - lev) / 200) & (u <= 1 - (100 - lev) / 200)))
+            for lev in levels}
+
+
+def _own_source(result, method: str | None) -> dict:
     s = result.settings
     return {"where": f"{s['n_origins']} rolling origins of this series, first training "
                      f"set {s['min_train']} points", "origins": int(s["n_origins"]),
-            "min_train": int(s["min_train"]), "backtest_horizon": int(s["horizon"])}
+            "min_train": int(s["min_train"]), "backtest_horizon": int(s["horizon"]),
+            "backtest_coverage": pit_coverage(outcomes_of(result, method)["pit"],
+                                              result.levels)}
 
 
 def recalibrate(fc: Forecast, series: GrowthSeries | None = None, *,
@@ -280,11 +298,11 @@ def recalibrate(fc: Forecast, series: GrowthSeries | None = None, *,
         result = backtest_model(fc.fit, series, horizon=horizon or fc.horizon,
                                 min_train=min_train, stride=stride, window=window, seed=seed,
                                 priors=priors, n_draws=n_draws, progress=progress)
-    qmap = map_from_backtest(result, method=fc.fit.engine
-                             if fc.fit.engine in set(result.forecasts["method"]) else None,
+    method = fc.fit.engine if fc.fit.engine in set(result.forecasts["method"]) else None
+    qmap = map_from_backtest(result, method=method,
                              horizon=max(fc.horizon, int(result.settings["horizon"])),
                              pseudo_count=pseudo_count, min_outcomes=min_outcomes)
-    return apply_map(fc, qmap, _own_source(result))
+    return apply_map(fc, qmap, _own_source(result, method))
 
 
 def recalibrate_panel(forecasts: Sequence[Forecast], results: Sequence, *,
@@ -314,14 +332,23 @@ def recalibrate_panel(forecasts: Sequence[Forecast], results: Sequence, *,
     horizon = max([fc.horizon for fc in forecasts] + [int(r.settings["horizon"]) for r in results])
     maps = pooled_maps(results, method=method, horizon=horizon, pseudo_count=pseudo_count,
                        min_outcomes=min_outcomes)
-    counts = pd.Series([r.series.axis.frequency for r in results]).value_counts()
+    sources = {}
+    for freq in maps:
+        members = [r for r in results if r.series.axis.frequency == freq]
+        pit = np.concatenate([outcomes_of(r, method)["pit"].to_numpy(dtype=float)
+                              for r in members])
+        sources[freq] = pooled_source(freq, len(members), pit, members[0].levels)
     out = []
     for fc in forecasts:
         freq = fc.fit.series.axis.frequency
         if freq not in maps:
             raise ValueError(f"no backtest of a {freq} series to learn {fc.fit.series.name}'s "
                              "map from")
-        source = {"where": f"backtests of {int(counts[freq])} {freq} series pooled",
-                  "series_pooled": int(counts[freq])}
-        out.append(apply_map(fc, maps[freq], source))
+        out.append(apply_map(fc, maps[freq], sources[freq]))
     return out
+
+
+def pooled_source(frequency: str, n_series: int, pit, levels) -> dict:
+    """How a pooled map was learned, for the ``recalibrated`` entry of each forecast."""
+    return {"where": f"backtests of {n_series} {frequency} series pooled",
+            "series_pooled": int(n_series), "backtest_coverage": pit_coverage(pit, levels)}
