@@ -10,8 +10,8 @@ import numpy as np
 import pandas as pd
 
 from bayesgrowth.config import DEFAULT_LEVELS, check_levels
-from bayesgrowth.forecast.mixture import mixture_cdf, mixture_mean_exp, mixture_quantiles
 from bayesgrowth.inference.fit import Fit
+from bayesgrowth.inference.mixture import mixture_cdf, mixture_mean_exp, mixture_quantiles
 from bayesgrowth.models import exponential, general
 
 __all__ = ["Forecast", "band_columns", "forecast", "extrapolation_caution", "CAUTION"]
@@ -85,7 +85,7 @@ class Forecast:
         For fits by the exact state-space engine: the predictive as a mixture of
         normals on the log scale (``weight`` ``(G,)``, ``mean``, ``value_sd``,
         ``curve_sd`` ``(G, H)``). Bands, medians, means and probabilities then come
-        from the mixture itself (:mod:`bayesgrowth.forecast.mixture`), not the draws.
+        from the mixture itself (:mod:`bayesgrowth.inference.mixture`), not the draws.
     """
 
     fit: Fit

@@ -18,7 +18,7 @@ over that box carries the weights (prior times likelihood, midpoint rule in
 transformed coordinates), and the grid is refined until the forecast's
 quantiles stop moving. The posterior predictive is a finite mixture of
 log-normals, so quantiles and exceedance probabilities are exact up to the grid
-(:mod:`bayesgrowth.forecast.mixture`); draws are made only where a consumer
+(:mod:`bayesgrowth.inference.mixture`); draws are made only where a consumer
 needs them.
 
 With ``drift="adaptive"`` the growth rate either drifts freely (``rho = 1``) or
@@ -472,7 +472,7 @@ def _on_grid(ctx, branches, k_of) -> tuple[dict, np.ndarray, dict, float, list]:
 
 
 def _probe_quantiles(post: StateSpacePosterior, t_probe: np.ndarray) -> np.ndarray:
-    from bayesgrowth.forecast.mixture import mixture_quantiles
+    from bayesgrowth.inference.mixture import mixture_quantiles
 
     pred = post.predictive(t_probe, joint=False)
     ends = [0, t_probe.size - 1]  # the first and the last probe step

@@ -7,8 +7,8 @@ import pytest
 from scipy import stats
 
 import bayesgrowth as bg
-from bayesgrowth.forecast.mixture import mixture_cdf, mixture_quantiles
 from bayesgrowth.inference import statespace as ss
+from bayesgrowth.inference.mixture import mixture_cdf, mixture_quantiles
 from bayesgrowth.inference.run import fit_series
 from bayesgrowth.inference.theta import _Gamma2, _HalfNormal, _LogNormal
 from bayesgrowth.models.spec import ModelSpec
