@@ -9,7 +9,7 @@ the fitted model's mean curve alone) are the model's own and are left unchanged.
 - **Bands and median.** The band at level ``L`` runs between the original predictive's
   quantiles at ``R^-1((1 - L)/2)`` and ``R^-1((1 + L)/2)``; the median is its quantile
   at ``R^-1(1/2)``. For the exact engine these quantiles come from the log-normal
-  mixture itself (:func:`~bayesgrowth.forecast.mixture.mixture_quantiles`), otherwise
+  mixture itself (:func:`~bayesgrowth.inference.mixture.mixture_quantiles`), otherwise
   from the draws.
 - **Probabilities.** ``P(value >= target) = 1 - R(F(target))``.
 - **Draws.** Each step's draws are moved monotonically: a draw at rank position
@@ -27,8 +27,8 @@ import numpy as np
 import pandas as pd
 
 from bayesgrowth.forecast.forecast import Forecast
-from bayesgrowth.forecast.mixture import mixture_quantiles
 from bayesgrowth.forecast.recalibration_map import QuantileMap
+from bayesgrowth.inference.mixture import mixture_quantiles
 
 __all__ = ["RecalibratedForecast", "apply_map", "base_quantiles"]
 
