@@ -105,6 +105,7 @@ def build_parser() -> argparse.ArgumentParser:
 
 def _run_forecast(args, series: GrowthSeries | None = None) -> int:
     from bayesgrowth.forecast.forecast import forecast
+    from bayesgrowth.forecast.misfit import misfit_lines
 
     series = series or read_input(args)
     series.check_horizon(args.horizon)
@@ -118,6 +119,7 @@ def _run_forecast(args, series: GrowthSeries | None = None) -> int:
     with staged_output(args.out, names, protect, force=args.force) as stage:
         fit = fit_from_args(args, series)
         fc = forecast(fit, args.horizon, levels=args.levels)
+        misfit = misfit_lines(fc)  # the model's own bands, before any recalibration
         if min_train is not None:
             fc = recalibrate_forecast(args, fc, min_train)
         summary = fc.summary(args.target, args.target_probability)
@@ -131,6 +133,8 @@ def _run_forecast(args, series: GrowthSeries | None = None) -> int:
         print(recalibration_line(summary["recalibrated"]))
     for caution in summary["cautions"]:
         print(f"caution: {caution}")
+    for line in misfit:
+        print(line)
     missing = json_ready(summary)[1]
     if missing:
         print(f"caution: {len(missing)} number(s) of the summary do not exist (first "

@@ -15,7 +15,12 @@ latest year-on-year growth (last value over the value ``P`` periods earlier), so
 seasons do not pass for a slowdown.
 
 *Warning.* When the value at the recent pace falls below the lower edge of the
-model's central ``level``% band (default 80%) for the first forecast period. The
+model's central ``level``% band (default 80%) for the first forecast period; or
+when it falls below the central 50% band while the model's median runs more than
+10% ahead of it (a curve that misfits a slowing series also has a wide band,
+which can hide the very gap this check is for: an exponential curve whose first
+step ran 13% ahead of a 1%-a-quarter pace still held that pace inside its 80%
+band). The
 band holds the model's own predictive spread, so the warning says: had growth
 simply continued as of late, the model would call that outcome unlikely (it
 gives an outcome that low a probability under ``(100 - level) / 2`` percent,
@@ -37,6 +42,8 @@ __all__ = ["RECENT_PERIODS", "Slowdown", "misfit_lines", "slowdown_check", "slow
 
 #: Periods the recent growth is measured over without seasonal factors (a year of quarters).
 RECENT_PERIODS = 4
+#: A median this far ahead of the recent pace, with the pace below the 50% band, also warns.
+FAR_AHEAD = 0.10
 
 
 @dataclass(frozen=True)
@@ -74,11 +81,14 @@ class Slowdown:
     lower: float
     upper: float
     level: int
+    lower_50: float = math.nan
 
     @property
     def flagged(self) -> bool:
-        """Whether the value at the recent pace falls below the band."""
-        return self.pace_value < self.lower
+        """Whether the value at the recent pace falls below the band (see the module rule)."""
+        far_ahead = (self.pace_value < self.lower_50
+                     and self.median > (1 + FAR_AHEAD) * self.pace_value)
+        return self.pace_value < self.lower or far_ahead
 
 
 def _pace(t: np.ndarray, log_y: np.ndarray, t_next: int, recent: int,
@@ -143,12 +153,13 @@ def slowdown_check(forecast, *, recent: int = RECENT_PERIODS, level: int = 80
         return None
     pace_log, growth, base_log, window, basis = pace
     median, lower, upper = _first_step_band(forecast, level)
+    lower_50 = _first_step_band(forecast, 50)[1]
     steps = 1 if basis == "year on year" else int(forecast.t[0]) - int(series.t[-1])
     implied = (math.log(median) - base_log) / steps
     return Slowdown(period=forecast.periods[0], basis=basis, window=window,
                     recent_growth=math.expm1(growth), implied_growth=math.expm1(implied),
                     pace_value=math.exp(pace_log), median=median, lower=lower, upper=upper,
-                    level=int(level))
+                    level=int(level), lower_50=lower_50)
 
 
 def _num(v: float) -> str:
@@ -187,8 +198,12 @@ def slowdown_warning(forecast, *, recent: int = RECENT_PERIODS, level: int = 80)
                        f"{s.period} is {s.implied_growth:.1%} above the last value")
     return (
         f"slowdown: {recent_text}. At the recent pace {s.period} would come to "
-        f"{_num(s.pace_value)}, below the model's {s.level}% band ({_num(s.lower)} to "
-        f"{_num(s.upper)}). The model may be running ahead of a slowdown: compare a model whose "
+        f"{_num(s.pace_value)}, "
+        + (f"below the model's {s.level}% band ({_num(s.lower)} to {_num(s.upper)})."
+           if s.pace_value < s.lower else
+           f"below the model's 50% band, and its median ({_num(s.median)}) runs more than "
+           f"{FAR_AHEAD:.0%} ahead of it.")
+        + " The model may be running ahead of a slowdown: compare a model whose "
         "growth can change (the default damped local trend) and check its bands with a backtest."
     )
 

@@ -113,3 +113,24 @@ def test_bad_settings():
     with pytest.raises(ValueError, match="recent must be at least 1"):
         slowdown_check(fc, recent=0)
     assert math.isfinite(slowdown_check(fc, recent=1).recent_growth)
+
+
+def test_a_wide_band_does_not_hide_a_median_far_ahead_of_the_recent_pace():
+    # growth fading smoothly from 13% to about 1% a quarter (invented): the exponential
+    # curve's band is wide enough to hold the recent pace, but its median runs >10% ahead
+    import bayesgrowth as bg
+    from bayesgrowth.data.periods import PeriodAxis
+    from bayesgrowth.data.series import GrowthSeries
+
+    v, values = 1000.0, []
+    for i in range(24):
+        v *= 1 + 0.12 * math.exp(-i / 5) + 0.01
+        values.append(v)
+    s = GrowthSeries(values=np.asarray(values), t=np.arange(24),
+                     axis=PeriodAxis(style="quarter", step=1, origin=2019 * 4))
+    fc = bg.GrowthModel(model="exponential", seasonal=False, seed=1).fit(s).forecast(4)
+    c = slowdown_check(fc)
+    assert c.pace_value >= c.lower  # inside the 80% band ...
+    assert c.pace_value < c.lower_50 and c.median > 1.1 * c.pace_value  # ... yet far behind
+    assert c.flagged and "runs more than 10% ahead" in slowdown_warning(fc)
+    assert slowdown_warning(bg.GrowthModel(seed=1).fit(s).forecast(4)) is None
