@@ -33,7 +33,7 @@ from bayesgrowth.cli.recalibration import (
     recalibrate_forecast,
     recalibration_line,
 )
-from bayesgrowth.cli.text import add_unit_option, forecast_lines, unit_from_args
+from bayesgrowth.cli.text import add_unit_option, forecast_lines, outlook_lines, unit_from_args
 from bayesgrowth.data.export import NOT_AVAILABLE_KEY, json_ready, json_text, write_csv
 from bayesgrowth.data.series import GrowthSeries, InputError
 
@@ -128,6 +128,8 @@ def _run_forecast(args, series: GrowthSeries | None = None) -> int:
         _save_fan(fc, stage / "fan_chart.png", unit=unit_from_args(args), target=args.target)
         fit.to_netcdf(stage / "posterior.nc", fc.predictive_groups())
     for line in forecast_lines(fc, summary):
+        print(line)
+    for line in outlook_lines(fc, summary):  # time to target, band sources
         print(line)
     if "recalibrated" in summary:
         print(recalibration_line(summary["recalibrated"]))

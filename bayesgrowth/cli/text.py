@@ -17,7 +17,8 @@ from bayesgrowth.report.words import (
     period_noun,
 )
 
-__all__ = ["add_unit_option", "forecast_lines", "growth_phrase", "unit_from_args"]
+__all__ = ["add_unit_option", "forecast_lines", "growth_phrase", "outlook_lines",
+           "unit_from_args"]
 
 
 def add_unit_option(p: argparse.ArgumentParser) -> None:
@@ -92,4 +93,30 @@ def forecast_lines(fc, summary: dict) -> list[str]:
     else:
         lines.append("  sampling checks: passed" if d["ok"] else
                      "  sampling checks: FAILED - " + "; ".join(d["problems"]))
+    return lines
+
+
+def outlook_lines(fc, summary: dict) -> list[str]:
+    """Time to the target (when one is given) and, for state-space fits, the band's sources.
+
+    Parameters
+    ----------
+    fc : Forecast
+    summary : dict
+        ``fc.summary(...)``.
+
+    Returns
+    -------
+    list of str
+        Zero to two indented lines.
+    """
+    from bayesgrowth.report.outlook import band_sources_phrase, time_to_target_phrase
+
+    lines = []
+    if "time_to_target" in summary:
+        lines.append("  " + time_to_target_phrase(summary["time_to_target"]))
+    if getattr(fc.fit, "state_space", None) is not None:
+        from bayesgrowth.forecast.band_sources import band_sources
+
+        lines.append("  " + band_sources_phrase(band_sources(fc)))
     return lines

@@ -173,6 +173,20 @@ class Forecast:
         hits = np.flatnonzero(p >= probability)
         return self.periods[int(hits[0])] if hits.size else None
 
+    def time_to_target(self, target: float):
+        """When the value first reaches ``target``: probability by each period, from paths.
+
+        See :mod:`bayesgrowth.forecast.target` (first passage needs the joint paths,
+        not the per-period bands).
+
+        Returns
+        -------
+        TimeToTarget
+        """
+        from bayesgrowth.forecast.target import time_to_target
+
+        return time_to_target(self, target)
+
     def value_draws(self, period: str | int | None = None) -> np.ndarray:
         """Predictive draws for one future period (a label or a step; default the last)."""
         return self.draws[:, self._column(period)]
@@ -249,6 +263,8 @@ class Forecast:
                 "probability": target_probability,
                 "first_period_reaching": self.first_period_reaching(target, target_probability),
             }
+            out["time_to_target"] = self.time_to_target(target).to_dict(
+                (0.5, 0.8, target_probability))
         fit = self.fit
         out["diagnostics"] = fit.diagnostics.to_dict()
         out["priors"] = {

@@ -19,6 +19,7 @@ import pandas as pd
 
 from bayesgrowth._version import __version__
 from bayesgrowth.forecast.forecast import CAUTION, Forecast
+from bayesgrowth.report.outlook import outlook_html
 from bayesgrowth.report.words import (
     band_phrases,
     fmt_number,
@@ -329,7 +330,8 @@ def render_report(p: ReportParts) -> str:
     section = {
         "headline": ("Forecast in one paragraph", _headline(p, summary)),
         "fan-chart": ("Fan chart", f'<figure><img alt="Fan chart of {name}" src="{p.fan_chart}">'
-                      f"<figcaption>{_fan_caption(p)}</figcaption></figure>"),
+                      f"<figcaption>{_fan_caption(p)}</figcaption></figure>"
+                      + outlook_html(fc, summary, figure_data_uri)),
         "forecast-table": (
             f"Forecast table ({_e(p.unit or 'values in the input’s units')}; "
             f"{_e(fc.fit.series.axis.frequency)} periods)",
