@@ -53,11 +53,36 @@ def _positive_int(text: str) -> int:
     return value
 
 
+def _month(text: str) -> int:
+    from bayesgrowth.data.fiscal import month_number
+
+    month = month_number(text)
+    if month is None:
+        raise argparse.ArgumentTypeError(
+            f"{text!r} is not a month; give its number 1-12 (4 for April) or its name")
+    return month
+
+
+def add_format_options(p: argparse.ArgumentParser) -> None:
+    """How the input writes numbers and fiscal periods: ``--decimal`` and ``--fiscal-start``."""
+    p.add_argument("--decimal", choices=("auto", ".", ","), default="auto",
+                   help="decimal mark of the values. auto: told from the values, and a column "
+                   "where every value reads either way (1,234) is refused; '.' reads 1,234.5; "
+                   "',' reads 1.234,5 [auto]")
+    p.add_argument("--fiscal-start", type=_month, default=None, metavar="MONTH",
+                   help="month the fiscal year starts in (1-12 or a name), needed for labels "
+                   "like 'FY24 Q1'; a fiscal year is named by the year it ends in: with "
+                   "--fiscal-start 4, FY24 runs April 2023 to March 2024 and FY24 Q1 is "
+                   "April-June 2023")
+
+
 def add_input(p: argparse.ArgumentParser) -> None:
-    """Options naming the input file and its columns."""
-    p.add_argument("file", type=Path, help="CSV file with a period column and a value column")
+    """Options naming the input file and its columns, and how it writes numbers and periods."""
+    p.add_argument("file", type=Path, help="CSV file (comma, semicolon or tab separated) or "
+                   ".xlsx workbook with a period column and a value column")
     p.add_argument("--period-col", default="period", help="name of the period column [period]")
     p.add_argument("--value-col", default="value", help="name of the value column [value]")
+    add_format_options(p)
 
 
 def add_model_options(p: argparse.ArgumentParser, *, horizon_required: bool = True) -> None:
@@ -228,7 +253,9 @@ def read_input(args) -> GrowthSeries:
     """Read the input series; data warnings (gaps) become notes on stderr."""
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
-        series = read_series(args.file, period_col=args.period_col, value_col=args.value_col)
+        series = read_series(args.file, period_col=args.period_col, value_col=args.value_col,
+                             decimal=getattr(args, "decimal", "auto"),
+                             fiscal_start=getattr(args, "fiscal_start", None))
     for w in caught:
         say(args, f"note: {w.message}")
     return series

@@ -10,9 +10,11 @@ from pathlib import Path
 
 import pandas as pd
 
+from bayesgrowth.data.excel import EXCEL_SUFFIXES, read_excel_file
+from bayesgrowth.data.formats import detect_separator
 from bayesgrowth.data.series import InputError
 
-__all__ = ["read_csv_file"]
+__all__ = ["read_csv_file", "separator_of"]
 
 _FIELDS = re.compile(r"Expected (\d+) fields in line (\d+), saw (\d+)")
 _OPEN_QUOTE = re.compile(r"EOF inside string starting at row (\d+)")
@@ -33,10 +35,10 @@ def _parser_problem(source: str, exc: Exception) -> str:
     return f"{source}: not a readable CSV file ({text.strip()}); save it again as CSV"
 
 
-def _check_header(path: Path, source: str) -> None:
+def _check_header(path: Path, source: str, sep: str = ",") -> None:
     """Refuse a header that names a column twice (pandas would rename the second one)."""
     head = pd.read_csv(path, header=None, nrows=1, dtype=str, keep_default_na=False,
-                       skipinitialspace=True)
+                       skipinitialspace=True, sep=sep)
     names = [str(c).strip() for c in head.iloc[0].tolist()]
     seen: dict[str, int] = {}
     for i, name in enumerate(names, start=1):
@@ -48,8 +50,25 @@ def _check_header(path: Path, source: str) -> None:
         seen.setdefault(name, i)
 
 
+def separator_of(path: str | Path) -> str:
+    """The column separator of a CSV file (comma, semicolon or tab), told from its header.
+
+    Raises
+    ------
+    InputError
+        When the header does not tell (see :func:`bayesgrowth.data.formats.detect_separator`).
+    """
+    path = Path(path)
+    with open(path, encoding="utf-8-sig", newline="") as handle:
+        head = handle.read(64 * 1024)
+    return detect_separator(head, path.name)
+
+
 def read_csv_file(path: str | Path) -> pd.DataFrame:
     """The cells of a CSV file with a header row, all as text, column names stripped.
+
+    The separator (comma, semicolon or tab) is told from the header line; an
+    ``.xlsx`` workbook is read from its first sheet (with the optional Excel reader).
 
     Parameters
     ----------
@@ -73,9 +92,16 @@ def read_csv_file(path: str | Path) -> pd.DataFrame:
         raise InputError(f"{path}: no such file")
     if path.is_dir():
         raise InputError(f"{path}: is a folder, not a CSV file")
+    if path.suffix.lower() in EXCEL_SUFFIXES:
+        return read_excel_file(path)
+    if path.suffix.lower() == ".xls":
+        raise InputError(f"{source}: an old-style Excel file (.xls); open it in a spreadsheet "
+                         "and save it as .xlsx or as CSV")
     try:
-        frame = pd.read_csv(path, dtype=str, keep_default_na=False, skipinitialspace=True)
-        _check_header(path, source)
+        sep = separator_of(path)
+        frame = pd.read_csv(path, dtype=str, keep_default_na=False, skipinitialspace=True,
+                            sep=sep)
+        _check_header(path, source, sep)
     except UnicodeDecodeError:
         raise InputError(
             f"{source}: not a text CSV file (could not decode it as UTF-8); save it as CSV "
@@ -91,4 +117,5 @@ def read_csv_file(path: str | Path) -> pd.DataFrame:
             "you may read it"
         ) from None
     frame.columns = [str(c).strip() for c in frame.columns]
+    frame.attrs["separator"] = sep
     return frame

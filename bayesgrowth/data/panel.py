@@ -16,7 +16,8 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from bayesgrowth.data.csvfile import read_csv_file
+from bayesgrowth.data.csvfile import read_csv_file, separator_of
+from bayesgrowth.data.excel import EXCEL_SUFFIXES
 from bayesgrowth.data.series import GrowthSeries, InputError, _from_columns
 
 __all__ = ["read_panel", "Panel", "invented_panel", "panel_frame"]
@@ -32,8 +33,10 @@ def _names_as_written(path: Path, frame: pd.DataFrame, series_col: str) -> list[
     differently (a quoted cell after a space), the names as first read are kept.
     """
     names = frame[series_col].astype(str).tolist()
+    if path.suffix.lower() in EXCEL_SUFFIXES:
+        return names
     try:
-        raw = pd.read_csv(path, dtype=str, keep_default_na=False)
+        raw = pd.read_csv(path, dtype=str, keep_default_na=False, sep=separator_of(path))
     except (ValueError, OSError):
         return names
     if raw.shape != frame.shape:
@@ -61,6 +64,8 @@ def read_panel(
     series_col: str = "series",
     period_col: str = "period",
     value_col: str = "value",
+    decimal: str = "auto",
+    fiscal_start: int | None = None,
 ) -> tuple[Panel, list[tuple[str, str]]]:
     """Read many series from a long-format CSV file or DataFrame.
 
@@ -71,6 +76,9 @@ def read_panel(
         and period.
     series_col, period_col, value_col : str
         Column names of the series name, the period and the value.
+    decimal, fiscal_start
+        The values' decimal mark and the fiscal-year start month, as in
+        :func:`bayesgrowth.data.series.read_series`.
 
     Returns
     -------
@@ -144,6 +152,9 @@ def read_panel(
                 period_col=period_col,
                 value_col=value_col,
                 name=name,
+                decimal=decimal,
+                fiscal_start=fiscal_start,
+                separator=frame.attrs.get("separator", ","),
             )
         except InputError as exc:
             failures.append((name, str(exc)))

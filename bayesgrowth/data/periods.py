@@ -231,7 +231,8 @@ def _styles(labels: list[str]) -> str:
         if style is None:
             raise PeriodError(
                 i,
-                f"period {label!r} is not a quarter (2024Q1), month (2024-01), "
+                f"period {label!r} is not a quarter (2024Q1, Q1 2024, FY24 Q1), month "
+                "(2024-01, Jan 2024, 01/2024), "
                 "ISO date (2024-03-31), year or whole number (digits 0-9)",
             )
         styles.append(style)

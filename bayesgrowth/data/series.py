@@ -3,8 +3,6 @@
 from __future__ import annotations
 
 import hashlib
-import math
-import re
 import warnings
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -22,9 +20,6 @@ MIN_OBSERVATIONS = 3
 #: Largest value accepted. Far above any business quantity, and far enough below the
 #: largest double (about 1.8e308) that forecast draws do not overflow to infinity.
 MAX_VALUE = 1e100
-
-#: A number as people write it in a CSV file: ASCII digits, optional sign, point, exponent.
-_NUMBER = re.compile(r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?", re.ASCII)
 
 
 class InputError(ValueError):
@@ -174,22 +169,6 @@ def _where(source: str, row: int | None, column: str | None) -> str:
     return ", ".join(parts)
 
 
-def _number(text: str, where: str) -> float:
-    """A value cell as a float: plain ASCII digits only (no ``1_100``, no other scripts)."""
-    if _NUMBER.fullmatch(text):
-        return float(text)
-    try:
-        value = float(text)
-    except ValueError:
-        value = 0.0
-    if not math.isfinite(value):
-        raise InputError(f"{where}: {text!r} is not a finite number")
-    raise InputError(
-        f"{where}: {text!r} is not a number; write it with the digits 0-9, an optional sign "
-        "and a decimal point (like 1100 or 1100.5)"
-    )
-
-
 def _from_columns(
     periods: list[str],
     raw_values: list[str],
@@ -199,16 +178,27 @@ def _from_columns(
     period_col: str,
     value_col: str,
     name: str,
+    decimal: str = "auto",
+    fiscal_start: int | None = None,
+    separator: str = ",",
 ) -> GrowthSeries:
-    """Validate raw cells and build a series; ``rows`` are the rows as the user counts them."""
+    """Validate raw cells and build a series; ``rows`` are the rows as the user counts them.
+
+    ``decimal`` and ``fiscal_start`` are as in :func:`read_series`; ``separator`` is
+    the file's column separator (see :func:`bayesgrowth.data.formats.decimal_mark`).
+    """
+    from bayesgrowth.data.fiscal import read_labels, restyle
+    from bayesgrowth.data.formats import amount, decimal_mark
+
+    wheres = [_where(source, row, value_col) for row in rows]
+    mark = decimal_mark([str(v).strip() for v in raw_values], wheres, decimal, separator)
+    currencies: dict[str, str] = {}
     values = []
-    for raw, row in zip(raw_values, rows, strict=True):
+    for raw, row, where in zip(raw_values, rows, wheres, strict=True):
         text = str(raw).strip()
         if text == "" or text.lower() in ("nan", "na", "none", "null"):
-            raise InputError(
-                f"{_where(source, row, value_col)}: value is missing; fill it in or delete the row"
-            )
-        value = _number(text, _where(source, row, value_col))
+            raise InputError(f"{where}: value is missing; fill it in or delete the row")
+        value = amount(text, mark, where, currencies)
         if value <= 0:
             raise InputError(
                 f"{_where(source, row, value_col)}: value {text} is not above zero; the growth "
@@ -236,9 +226,11 @@ def _from_columns(
             "width; check that this is the right column"
         )
     try:
-        axis, t = parse_periods([str(p).strip() for p in periods])
+        canonical, style = read_labels([str(p).strip() for p in periods], fiscal_start)
+        axis, t = parse_periods(canonical)
     except PeriodError as exc:
         raise InputError(f"{_where(source, rows[exc.position], period_col)}: {exc}") from None
+    axis = restyle(axis, style)
     t_arr = np.asarray(t, dtype=int)
     order = np.argsort(t_arr, kind="stable")
     t_sorted = t_arr[order]
@@ -275,8 +267,10 @@ def read_series(
     period_col: str = "period",
     value_col: str = "value",
     name: str | None = None,
+    decimal: str = "auto",
+    fiscal_start: int | None = None,
 ) -> GrowthSeries:
-    """Read one growth series from a CSV file, a DataFrame or a Series.
+    """Read one growth series from a CSV or Excel file, a DataFrame or a Series.
 
     Parameters
     ----------
@@ -287,6 +281,12 @@ def read_series(
         Column names of the periods and the values.
     name : str, optional
         Display name; defaults to the file's stem or the Series' name.
+    decimal : {"auto", ".", ","}
+        Decimal mark of the values; ``"auto"`` tells it from the cells and refuses
+        a column whose cells read either way (see :mod:`bayesgrowth.data.formats`).
+    fiscal_start : int, optional
+        Month (1-12) the fiscal year starts in, for labels like ``FY24 Q1``; FY24
+        is the fiscal year ending in 2024 (see :mod:`bayesgrowth.data.fiscal`).
 
     Returns
     -------
@@ -311,16 +311,19 @@ def read_series(
         frame = pd.DataFrame({period_col: data.index.astype(str), value_col: data.to_numpy()})
         source = "Series"
         name = name or (str(data.name) if data.name is not None else "series")
-        return _frame_to_series(frame, source, period_col, value_col, name, header_offset=0)
+        return _frame_to_series(frame, source, period_col, value_col, name, header_offset=0,
+                                decimal=decimal, fiscal_start=fiscal_start)
     if isinstance(data, pd.DataFrame):
         return _frame_to_series(
-            data, "DataFrame", period_col, value_col, name or "series", header_offset=0
+            data, "DataFrame", period_col, value_col, name or "series", header_offset=0,
+            decimal=decimal, fiscal_start=fiscal_start,
         )
     from bayesgrowth.data.csvfile import read_csv_file
 
     path = Path(data)
     frame = read_csv_file(path)
-    return _frame_to_series(frame, path.name, period_col, value_col, name or path.stem, 2)
+    return _frame_to_series(frame, path.name, period_col, value_col, name or path.stem, 2,
+                            decimal=decimal, fiscal_start=fiscal_start)
 
 
 def _frame_to_series(
@@ -330,6 +333,8 @@ def _frame_to_series(
     value_col: str,
     name: str,
     header_offset: int,
+    decimal: str = "auto",
+    fiscal_start: int | None = None,
 ) -> GrowthSeries:
     for col, option in ((period_col, "--period-col"), (value_col, "--value-col")):
         if col not in frame.columns:
@@ -348,6 +353,9 @@ def _frame_to_series(
         period_col=period_col,
         value_col=value_col,
         name=name,
+        decimal=decimal,
+        fiscal_start=fiscal_start,
+        separator=frame.attrs.get("separator", ","),
     )
 
 
