@@ -52,11 +52,14 @@ def band_columns(draws: np.ndarray, levels, prefix: str = "") -> dict:
 
 
 def _interval(x: np.ndarray, levels=(80, 95)) -> dict:
-    out = {"median": float(np.median(x)), "mean": float(np.mean(x))}
-    for level in levels:
-        lo, hi = np.quantile(x, [(100 - level) / 200, 1 - (100 - level) / 200])
-        out[f"lower_{level}"] = float(lo)
-        out[f"upper_{level}"] = float(hi)
+    # draws may be infinite (a doubling time where growth is not positive): the quantiles
+    # then are too, and numpy's interpolation between two infinities warns; say it in JSON
+    with np.errstate(invalid="ignore"):
+        out = {"median": float(np.median(x)), "mean": float(np.mean(x))}
+        for level in levels:
+            lo, hi = np.quantile(x, [(100 - level) / 200, 1 - (100 - level) / 200])
+            out[f"lower_{level}"] = float(lo)
+            out[f"upper_{level}"] = float(hi)
     return out
 
 
