@@ -135,6 +135,8 @@ def backtest_model(fit, series: GrowthSeries | None = None, *, horizon: int,
     if fit.engine == "nuts":
         options.update({k: fit.settings[k] for k in ("draws", "chains", "tune")
                         if k in fit.settings})
+        if "draws" in options and "chains" in options:  # no more draws than the sampler gives
+            n_draws = min(n_draws, int(options["draws"]) * int(options["chains"]))
     return backtest(
         series, methods=(fit.engine,), horizon=int(horizon), min_train=min_train,
         stride=stride, window=window, seed=fit.seed if seed is None else int(seed),
