@@ -340,19 +340,17 @@ def model_average(
     ModelAverage
         Models whose sampling diagnostics failed are left out of the comparison and
         the average, and named in ``excluded``: a failed fit can look best by
-        PSIS-LOO precisely because its draws are wrong.
+        PSIS-LOO precisely because its draws are wrong. When every model failed,
+        all are kept (nothing else could be averaged) and the comparison table
+        flags each; the command line then exits non-zero unless accepted.
     """
     from bayesgrowth.forecast.forecast import forecast
 
     excluded = {name: "; ".join(fit.diagnostics.problems) or "diagnostics failed"
                 for name, fit in fits.items() if not fit.diagnostics.ok}
+    if len(excluded) == len(fits):  # nothing left to average: keep all, each flagged failed
+        excluded = {}
     kept = {name: fit for name, fit in fits.items() if name not in excluded}
-    if not kept:
-        raise ValueError(
-            "every model's sampling diagnostics failed ("
-            + "; ".join(f"{k}: {v}" for k, v in excluded.items())
-            + "); sample longer or fit fewer, simpler models"
-        )
     comparison = compare_models(kept)
     forecasts = {name: forecast(fit, horizon, levels=levels, seed=seed)
                  for name, fit in kept.items()}

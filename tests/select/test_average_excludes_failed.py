@@ -25,9 +25,10 @@ def test_failed_fit_is_left_out_and_named():
     assert dict(ma.comparison.weights) == pytest.approx({"local-trend": 1.0})
 
 
-def test_all_failed_is_refused_with_the_reasons():
+def test_when_all_failed_all_are_kept_and_flagged():
     s = bg.load_demo()
     fit = fit_series(s, engine="exact", model="exponential", seed=1)
     bad = dataclasses.replace(fit, diagnostics=Diagnostics.from_values(1.3, 10, 10, 3, "nuts"))
-    with pytest.raises(ValueError, match="every model's sampling diagnostics failed"):
-        model_average({"exponential": bad}, 4)
+    ma = model_average({"exponential": bad}, 4)
+    assert ma.excluded == {}
+    assert not bool(ma.comparison.table["diagnostics_ok"].iloc[0])

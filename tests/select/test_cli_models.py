@@ -92,7 +92,8 @@ def test_models_nuts_two_curves_on_the_demo(tmp_path, capsys):
         pytest.skip("the logistic curve is not registered yet")
     out = tmp_path / "out"
     rc = main(["models", str(demo_path()), "-H", "8", "--out", str(out), "--models",
-               "exponential,logistic", "--draws", "300", "--chains", "2", "--quiet"])
+               "exponential,logistic", "--engine", "nuts", "--draws", "300", "--chains", "2",
+               "--accept-warnings", "--quiet"])
     assert rc == 0
     comp = pd.read_csv(out / "model_comparison.csv")
     assert sorted(comp["model"]) == ["exponential", "logistic"]
