@@ -6,7 +6,7 @@ and each model (the package's default and the exponential curve, both on the exa
 1. **Learn, inside the training part only.** A rolling-origin backtest of the model on the
    series' training part (first training set half of it, at most :data:`MAX_ORIGINS`
    origins spread evenly, horizon the collection's), through
-   :func:`bayesgrowth.forecast.recalibrate.backtest_model`. Its PIT values feed two maps:
+   :func:`bayesgrowth.backtest.recalibrate.backtest_model`. Its PIT values feed two maps:
    the series' own (:func:`~bayesgrowth.forecast.recalibration_map.learn_map`, what
    ``forecast --recalibrate`` does) and one pooled over every series of the same frequency
    (what ``batch --recalibrate`` does).
@@ -68,7 +68,7 @@ def _fit(record: SeriesRecord, model: str):
 
 def backtest_task(task: tuple[SeriesRecord, str]) -> dict:
     """Backtest one model inside one series' training part: its steps and PIT values."""
-    from bayesgrowth.forecast.recalibrate import backtest_model, default_min_train
+    from bayesgrowth.backtest.recalibrate import backtest_model, default_min_train
 
     record, model = task
     out = {"key": (record.collection, record.name, model), "step": np.zeros(0, int),

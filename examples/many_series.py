@@ -48,7 +48,7 @@ def main() -> None:
         group = {name: (s.head(5) if i < 4 else s) for i, (name, s) in enumerate(panel.items())}
         pooled = bg.fit_pooled(group, seed=1)
         print("pooled diagnostics ok:", pooled.diagnostics.ok)
-        fc = pooled.forecast(4)
+        fc = bg.forecast(pooled, 4)
         if fc.total is not None:
             print("group total:")
             print(fc.total[["period", "median", "lower_80", "upper_80"]].round(0))

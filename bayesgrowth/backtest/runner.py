@@ -35,8 +35,9 @@ from bayesgrowth.config import DEFAULT_LEVELS, check_levels
 from bayesgrowth.data.series import MIN_OBSERVATIONS, GrowthSeries
 from bayesgrowth.inference.diagnostics import SamplingWarning
 from bayesgrowth.scoring import score_table
+from bayesgrowth.seeds import origin_seed
 
-__all__ = ["BACKTEST_CAUTION", "NO_BANDS", "BacktestResult", "backtest", "origin_seed"]
+__all__ = ["BACKTEST_CAUTION", "NO_BANDS", "BacktestResult", "backtest"]
 
 #: The standing caution printed with every backtest.
 BACKTEST_CAUTION = (
@@ -45,27 +46,6 @@ BACKTEST_CAUTION = (
     "intervals behind the verdicts are narrower than they should be. A backtest describes how "
     "the methods did on this history; it is not investment advice."
 )
-
-
-def origin_seed(seed: int, origin: int) -> int:
-    """Seed of the fits at one origin, from the run's seed and the origin's position.
-
-    It depends on the origin, not on how many origins come before it, so a
-    change of ``stride`` keeps the fits at the origins both runs share.
-
-    Parameters
-    ----------
-    seed : int
-        The backtest's seed.
-    origin : int
-        Position of the origin (its number of the first test point).
-
-    Returns
-    -------
-    int
-        A 32-bit seed.
-    """
-    return int(np.random.SeedSequence([int(seed), int(origin)]).generate_state(1)[0])
 
 
 def _check_min(value: int | None, name: str) -> None:
@@ -128,7 +108,7 @@ def backtest(
         Central band levels in percent.
     seed : int, default 1
         Seed of the whole run; each origin's fits get a seed derived from it
-        (:func:`origin_seed`).
+        (:func:`bayesgrowth.seeds.origin_seed`).
     priors : Priors, optional
         Priors of the Bayesian models, resolved afresh on each training set.
     model_options : dict, optional

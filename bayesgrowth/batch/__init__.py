@@ -9,8 +9,8 @@ results as it finishes, and merges them into ``forecast.csv``, ``summary.csv`` a
 
 from bayesgrowth.batch.executors import DaskExecutor, Executor, LocalExecutor, make_executor
 from bayesgrowth.batch.runner import BatchResult, run_batch
-from bayesgrowth.batch.seeds import series_seed
 from bayesgrowth.batch.work import BatchSettings
+from bayesgrowth.seeds import series_seed
 
 __all__ = [
     "BatchResult",

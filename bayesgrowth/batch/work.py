@@ -182,8 +182,8 @@ def fit_one(series: GrowthSeries, settings: BatchSettings) -> SeriesOutcome:
     -------
     SeriesOutcome
     """
-    from bayesgrowth.batch.seeds import series_seed
     from bayesgrowth.forecast.forecast import forecast
+    from bayesgrowth.seeds import series_seed
 
     outcome = SeriesOutcome(name=series.name, fingerprint=series.fingerprint())
     seed = series_seed(settings.seed, series.name)

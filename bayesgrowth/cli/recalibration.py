@@ -3,7 +3,7 @@
 The option runs a rolling-origin backtest of the chosen model on each series' own
 history (first training set ``--min-train`` points, by default half the history; the
 backtest's horizon is ``--horizon``) and applies the quantile recalibration map learned
-from its outcomes (:mod:`bayesgrowth.forecast.recalibrate`). ``batch`` learns one map
+from its outcomes (:mod:`bayesgrowth.backtest.recalibrate`). ``batch`` learns one map
 per frequency from every series' backtest together and applies it to each series.
 """
 
@@ -58,7 +58,7 @@ def check_min_train(args, n: int, name: str | None = None) -> int | None:
         If ``--min-train`` is given without ``--recalibrate``, is below 3, or leaves
         fewer than two points to backtest on.
     """
-    from bayesgrowth.forecast.recalibrate import MIN_ORIGINS, default_min_train
+    from bayesgrowth.backtest.recalibrate import MIN_ORIGINS, default_min_train
 
     if not getattr(args, "recalibrate", False):
         if getattr(args, "min_train", None) is not None:
@@ -81,7 +81,7 @@ def recalibrate_forecast(args, fc, min_train: int):
     """Backtest the forecast's model on its series and return the recalibrated forecast."""
     import warnings
 
-    from bayesgrowth.forecast.recalibrate import recalibrate
+    from bayesgrowth.backtest.recalibrate import recalibrate
 
     series = fc.fit.series
     say(args, f"recalibrating: backtest of the same model from {series.n - min_train} "
@@ -125,7 +125,7 @@ def backtest_chunk(chunk: list, settings) -> list:
     import warnings
 
     from bayesgrowth.backtest import backtest
-    from bayesgrowth.forecast.recalibrate import outcomes_of
+    from bayesgrowth.backtest.recalibrate import outcomes_of
 
     out = []
     for series, min_train, seed in chunk:
@@ -170,8 +170,8 @@ def check_batch_out(out: Path, protect: list[Path]) -> None:
 
 
 def _backtest_plan(args, panel: dict, settings) -> list[list]:
-    from bayesgrowth.batch.seeds import series_seed
-    from bayesgrowth.forecast.recalibrate import MIN_ORIGINS, default_min_train
+    from bayesgrowth.backtest.recalibrate import MIN_ORIGINS, default_min_train
+    from bayesgrowth.seeds import series_seed
 
     if args.min_train is not None and args.min_train < MIN_OBSERVATIONS:
         raise UsageError(f"--min-train {args.min_train}: must be at least {MIN_OBSERVATIONS}")
@@ -202,7 +202,7 @@ def panel_recalibration(args, panel: dict, settings, executor) -> dict:
     """
     import pandas as pd
 
-    from bayesgrowth.forecast.recalibrate import pooled_source
+    from bayesgrowth.backtest.recalibrate import pooled_source
     from bayesgrowth.forecast.recalibration_map import learn_map
 
     chunks = _backtest_plan(args, panel, settings)

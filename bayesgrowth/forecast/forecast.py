@@ -12,7 +12,9 @@ import pandas as pd
 from bayesgrowth.config import DEFAULT_LEVELS, check_levels
 from bayesgrowth.inference.fit import Fit
 from bayesgrowth.inference.mixture import mixture_cdf, mixture_mean_exp, mixture_quantiles
+from bayesgrowth.inference.pooled import PooledFit
 from bayesgrowth.models import exponential, general
+from bayesgrowth.seeds import stream
 
 __all__ = ["Forecast", "band_columns", "forecast", "extrapolation_caution", "CAUTION"]
 
@@ -38,6 +40,13 @@ def extrapolation_caution(n_history_periods: int, horizon: int) -> str | None:
             "saturation, competition and shocks, so treat the later periods as scenarios."
         )
     return None
+
+
+def check_horizon(horizon) -> int:
+    """Validate a horizon: a whole number of periods >= 1."""
+    if int(horizon) != horizon or horizon < 1:
+        raise ValueError(f"horizon must be a whole number of periods >= 1, got {horizon}")
+    return int(horizon)
 
 
 def band_columns(draws: np.ndarray, levels, prefix: str = "") -> dict:
@@ -330,13 +339,18 @@ def forecast(
     Returns
     -------
     Forecast
+        Or, for a :class:`~bayesgrowth.inference.pooled.PooledFit`, a
+        :class:`~bayesgrowth.forecast.pooled.PooledForecast` of every series and
+        their total (:func:`~bayesgrowth.forecast.pooled.forecast_pooled`).
     """
-    if int(horizon) != horizon or horizon < 1:
-        raise ValueError(f"horizon must be a whole number of periods >= 1, got {horizon}")
-    horizon = int(horizon)
+    if isinstance(fit, PooledFit):
+        from bayesgrowth.forecast.pooled import forecast_pooled
+
+        return forecast_pooled(fit, horizon, levels=levels, seed=seed)
+    horizon = check_horizon(horizon)
     levels = check_levels(levels)
     seed = fit.seed if seed is None else int(seed)
-    rng = np.random.default_rng([seed, 1])
+    rng = stream(seed, "forecast")
     t = fit.series.future_t(horizon)
     exact = None
     if fit.state_space is not None:

@@ -30,6 +30,7 @@ from bayesgrowth.forecast.forecast import band_columns
 from bayesgrowth.models import exponential, general, linear
 from bayesgrowth.models.spec import ModelSpec
 from bayesgrowth.priors import Priors, ResolvedPriors
+from bayesgrowth.seeds import stream
 
 __all__ = ["PriorPredictive", "band_columns", "prior_predictive", "sample_prior"]
 
@@ -172,11 +173,11 @@ def _pymc_prior(spec: ModelSpec, priors: ResolvedPriors, series: GrowthSeries, d
         out[name] = v
     # coefficients the PyMC model integrates out come from their prior here
     return general.complete_draws(spec, priors, out, np.array([], dtype=int), np.array([]),
-                                  series.axis, np.random.default_rng([seed, 5]))
+                                  series.axis, stream(seed, "prior_completion"))
 
 
 def _numpy_prior(priors: ResolvedPriors, draws: int, seed: int) -> dict:
-    rng = np.random.default_rng([seed, 3])
+    rng = stream(seed, "prior_parameters")
     log_a = (
         np.full(draws, priors.log_a_mu) if priors.fixed_initial
         else rng.normal(priors.log_a_mu, priors.log_a_sd, draws)
@@ -328,7 +329,7 @@ def prior_predictive(
             "leave the reference period unset"
         )
     params, used = sample_prior(spec, resolved, series, draws=draws, seed=seed, sampler=sampler)
-    rng = np.random.default_rng([seed, 4])
+    rng = stream(seed, "prior_paths")
     t = np.arange(int(series.t[0]), series.t_last + horizon + 1)
     t_ref = resolved.t_ref
     if spec.is_plain_exponential:

@@ -13,6 +13,7 @@ from bayesgrowth.inference.fit import Fit
 from bayesgrowth.models import exponential, general, linear
 from bayesgrowth.models.spec import ModelSpec
 from bayesgrowth.priors import ResolvedPriors
+from bayesgrowth.seeds import stream
 
 __all__ = ["complete_posterior", "default_target_accept", "fit_nuts"]
 
@@ -145,5 +146,5 @@ def complete_posterior(spec, priors, series, posterior: dict, seed: int) -> dict
     flat = {k: np.broadcast_to(v, shape + np.shape(v)[len(shape):]).reshape(-1, *np.shape(v)[2:])
             for k, v in posterior.items()}
     done = general.complete_draws(spec, priors, flat, series.t, series.log_values, series.axis,
-                                  np.random.default_rng([seed, 7]))
+                                  stream(seed, "posterior_completion"))
     return {k: np.asarray(v).reshape(*shape, *np.shape(v)[1:]) for k, v in done.items()}

@@ -4,9 +4,8 @@
 group's growth centre and spread (see :mod:`bayesgrowth.models.hierarchical`).
 :meth:`PooledFit.fit_for` gives one series' marginal posterior as an ordinary
 :class:`~bayesgrowth.inference.fit.Fit`, so the single-series forecast, summaries
-and plots apply to it; :meth:`PooledFit.forecast` forecasts every series and the
-group total, summing the series' predictive draws draw by draw (bands of a sum are
-not sums of bands).
+and plots apply to it; :func:`bayesgrowth.forecast.pooled.forecast_pooled` forecasts
+every series and the group total.
 """
 
 from __future__ import annotations
@@ -19,7 +18,6 @@ from dataclasses import dataclass, replace
 import numpy as np
 import pandas as pd
 
-from bayesgrowth.config import DEFAULT_LEVELS, check_levels
 from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.inference.diagnostics import Diagnostics
 from bayesgrowth.inference.fit import Fit
@@ -28,7 +26,7 @@ from bayesgrowth.models.hierarchical import ERRORS, GroupPrior, build_pymc_model
 from bayesgrowth.models.spec import ModelSpec
 from bayesgrowth.priors import Priors, ResolvedPriors
 
-__all__ = ["PooledFit", "PooledForecast", "fit_pooled"]
+__all__ = ["PooledFit", "fit_pooled"]
 
 #: Step-size target: the group spread makes a funnel-shaped posterior when the
 #: group is tight; a small step keeps NUTS out of divergences there.
@@ -38,57 +36,6 @@ TARGET_ACCEPT = 0.95
 #: 24 simulated series (12 of 4-6 points): at 0.95 R-hat 1.010 and tail ESS 352 for a
 #: 4-point series' level; at 0.99 R-hat 1.00 and tail ESS 563.
 TARGET_ACCEPT_SHORT = 0.99
-
-
-def _quantile_frame(draws: np.ndarray, levels: tuple[int, ...]) -> dict:
-    cols = {"mean": draws.mean(axis=0), "median": np.median(draws, axis=0)}
-    for level in levels:
-        lo, hi = (100 - level) / 200, 1 - (100 - level) / 200
-        q = np.quantile(draws, [lo, hi], axis=0)
-        cols[f"lower_{level}"], cols[f"upper_{level}"] = q[0], q[1]
-    return cols
-
-
-@dataclass
-class PooledForecast:
-    """Forecasts of every series of a pooled fit and of their total.
-
-    Attributes
-    ----------
-    forecasts : dict of str to Forecast
-        Each series' forecast (its next ``horizon`` periods), as for one series.
-    total : pandas.DataFrame or None
-        The group total for the ``horizon`` periods after the latest last
-        observation: ``period``, ``step``, ``mean``, ``median``, ``lower_L``,
-        ``upper_L``. ``None`` when the series do not share a calendar.
-    total_draws : numpy.ndarray or None
-        Predictive draws of the total, ``(n_draws, horizon)``.
-    aligned : dict of str to numpy.ndarray
-        Each series' predictive draws at the total's periods, ``(n_draws, horizon)``;
-        ``total_draws`` is their sum, draw by draw.
-    note : str or None
-        Why there is no total, if there is none.
-    """
-
-    forecasts: dict
-    total: pd.DataFrame | None
-    total_draws: np.ndarray | None
-    aligned: dict | None = None
-    note: str | None = None
-
-    @property
-    def table(self) -> pd.DataFrame:
-        """Every series' forecast table, one below the other, with a ``series`` column."""
-        parts = []
-        for name, fc in self.forecasts.items():
-            t = fc.table
-            t.insert(0, "series", name)
-            parts.append(t)
-        return pd.concat(parts, ignore_index=True)
-
-    def tables(self) -> dict[str, pd.DataFrame]:
-        """Each series' forecast table, by name."""
-        return {name: fc.table for name, fc in self.forecasts.items()}
 
 
 @dataclass
@@ -165,57 +112,6 @@ class PooledFit:
             rows.append({"series": name, "n_observations": s.n, "growth_median": med,
                          "growth_lower_95": lo, "growth_upper_95": hi})
         return pd.DataFrame(rows)
-
-    def forecast(
-        self, horizon: int, *, levels=DEFAULT_LEVELS, seed: int | None = None
-    ) -> PooledForecast:
-        """Forecast every series ``horizon`` periods ahead, and the group total.
-
-        Parameters
-        ----------
-        horizon : int
-        levels : sequence of int
-            Band levels in percent.
-        seed : int, optional
-            Seed of the predictive noise (default the fit's); each series gets its
-            own stream.
-
-        Returns
-        -------
-        PooledForecast
-        """
-        from bayesgrowth.batch.seeds import series_seed
-        from bayesgrowth.forecast.forecast import forecast
-
-        if int(horizon) != horizon or horizon < 1:
-            raise ValueError(f"horizon must be a whole number of periods >= 1, got {horizon}")
-        horizon, levels = int(horizon), check_levels(levels)
-        seed = self.seed if seed is None else int(seed)
-        axes = {(s.axis.style, s.axis.step) for s in self.series.values()}
-        ordinal = {n: s.axis.origin + s.t_last * s.axis.step for n, s in self.series.items()}
-        shared = len(axes) == 1
-        step = next(iter(axes))[1]
-        latest = max(ordinal.values())
-        forecasts, aligned = {}, {}
-        for name in self.series:
-            behind = (latest - ordinal[name]) // step if shared else 0
-            full = forecast(self.fit_for(name), horizon + behind, levels=levels,
-                            seed=series_seed(seed, name))
-            forecasts[name] = replace(
-                full, horizon=horizon, periods=full.periods[:horizon], t=full.t[:horizon],
-                draws=full.draws[:, :horizon], curve_draws=full.curve_draws[:, :horizon],
-            )
-            if shared:
-                aligned[name] = full.draws[:, behind:behind + horizon]
-                periods = full.periods[behind:behind + horizon]
-        if not shared:
-            note = ("the series are on different calendars "
-                    f"({', '.join(sorted(f'{a}/{b}' for a, b in axes))}); no group total")
-            return PooledForecast(forecasts, None, None, None, note)
-        total_draws = np.sum(list(aligned.values()), axis=0)
-        total = pd.DataFrame({"period": periods, "step": np.arange(1, horizon + 1),
-                              **_quantile_frame(total_draws, levels)})
-        return PooledForecast(forecasts, total, total_draws, aligned)
 
 
 def _sample_pymc(model, *, seed, draws, tune, chains, cores, target_accept, progressbar):

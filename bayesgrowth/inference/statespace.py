@@ -36,6 +36,7 @@ import numpy as np
 from bayesgrowth.inference.kalman import augmented_filter, gram_filter
 from bayesgrowth.inference.theta import ThetaDim, rho_of, theta_dims
 from bayesgrowth.models import linear
+from bayesgrowth.seeds import stream
 
 __all__ = ["StateSpacePosterior", "state_space_posterior"]
 
@@ -547,7 +548,7 @@ def fit_state_space(series, priors, spec, *, seed: int, draws: int = 1000, chain
     from bayesgrowth.inference.fit import Fit
 
     post = state_space_posterior(series, priors, spec)
-    rng = np.random.default_rng([seed, 7])
+    rng = stream(seed, "posterior_completion")
     n = chains * draws
     nodes, flat = post.sample(n, rng)
     latest = flat.pop("latest_log_growth")

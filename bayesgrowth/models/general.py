@@ -43,6 +43,7 @@ from scipy.special import gammaln
 
 from bayesgrowth.models import linear, local_trend
 from bayesgrowth.models.spec import ModelSpec, season_index
+from bayesgrowth.seeds import stream
 
 __all__ = [
     "curve_log_mean",
@@ -174,7 +175,7 @@ def latest_growth(
         t = series.t[series.t <= t_last]
         y = series.log_values[: t.size][None, :] - _seasons(spec, draws, t, series.axis)
         y = np.broadcast_to(y, (np.asarray(draws["sigma"]).size, t.size))
-        rng = np.random.default_rng([seed, 2])
+        rng = stream(seed, "latest_growth")
         return local_trend.conditional_draws(spec, draws, t, y, np.array([], int), t_ref, rng)[2]
     t = np.array([t_last - 1, t_last], dtype=float)
     m = log_trend(spec, draws, t, t_ref, seasonal=False)

@@ -5,6 +5,7 @@ from __future__ import annotations
 import numpy as np
 from matplotlib.axes import Axes
 
+from bayesgrowth.display import fmt_number, fmt_probability
 from bayesgrowth.plots.plain import literal
 from bayesgrowth.plots.style import (
     BAND_SHADES,
@@ -19,7 +20,6 @@ from bayesgrowth.plots.style import (
     set_period_ticks,
     style_axes,
 )
-from bayesgrowth.report.words import fmt_number, fmt_probability
 
 __all__ = ["BAND_COLOR", "DATA_COLOR", "describe_model", "fitted_curve", "plot_fan",
            "set_period_ticks"]

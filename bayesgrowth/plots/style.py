@@ -24,8 +24,8 @@ import numpy as np
 from matplotlib.axes import Axes
 from matplotlib.ticker import Formatter, FuncFormatter, NullFormatter
 
+from bayesgrowth.display import fmt_number
 from bayesgrowth.plots.plain import literal
-from bayesgrowth.report.words import fmt_number
 
 __all__ = [
     "BAND_SHADES",

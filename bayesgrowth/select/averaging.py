@@ -20,6 +20,7 @@ import pandas as pd
 from bayesgrowth.config import DEFAULT_LEVELS
 from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.forecast.prior import band_columns
+from bayesgrowth.seeds import stream
 from bayesgrowth.select.loo import ModelComparison, compare_models
 
 __all__ = [
@@ -264,7 +265,7 @@ def average_forecasts(
     if n < 1:
         raise ValueError(f"n_draws must be >= 1, got {n_draws}")
     seed = int(first.seed if seed is None else seed)
-    rng = np.random.default_rng([seed, 2])
+    rng = stream(seed, "model_average")
     counts = rng.multinomial(n, w)
     values, curves, source = [], [], []
     for k, (name, count) in enumerate(zip(names, counts, strict=True)):

@@ -11,8 +11,9 @@ import pytest
 from scipy import stats
 
 from bayesgrowth.backtest import METHODS, BacktestResult, backtest
-from bayesgrowth.backtest.runner import NO_BANDS, origin_seed
+from bayesgrowth.backtest.runner import NO_BANDS
 from bayesgrowth.data import read_series
+from bayesgrowth.seeds import origin_seed
 
 LEVELS = (50, 80, 95)
 

@@ -44,7 +44,7 @@ def test_forecast_recalibrate_matches_the_python_api(tmp_path):
     import warnings
 
     import bayesgrowth as bg
-    from bayesgrowth.forecast.recalibrate import recalibrate
+    from bayesgrowth.backtest.recalibrate import recalibrate
 
     out = tmp_path / "out"
     assert main(["forecast", str(demo_path()), "-H", "3", "--out", str(out), "--recalibrate",

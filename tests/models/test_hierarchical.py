@@ -12,6 +12,7 @@ from scipy import stats
 
 from bayesgrowth.data.panel import read_panel
 from bayesgrowth.data.periods import parse_periods
+from bayesgrowth.forecast import forecast
 from bayesgrowth.models.hierarchical import GroupPrior, choose_centred, stack_panel
 from bayesgrowth.priors import Priors
 
@@ -112,7 +113,7 @@ def test_pooled_intervals_and_bands_keep_near_nominal_coverage(pooled_runs):
     # 0.058, 3 sd gives 0.63. The upper limit catches bands far too wide (all 48 in).
     hits_g, hits_fc = [], []
     for _, truth, future, pooled, _ in pooled_runs:
-        fc = pooled.forecast(HORIZON, levels=(80,))
+        fc = forecast(pooled, HORIZON, levels=(80,))
         for i, name in enumerate(pooled.names):
             g = np.expm1(pooled.posterior["log1p_g"][:, :, i].ravel())
             lo, hi = np.quantile(g, [0.05, 0.95])
@@ -128,7 +129,7 @@ def test_pooled_intervals_and_bands_keep_near_nominal_coverage(pooled_runs):
 @pytest.mark.slow
 def test_group_total_sums_draws_not_bands(pooled_runs):
     _, _, _, pooled, _ = pooled_runs[0]
-    fc = pooled.forecast(3, levels=(95,))
+    fc = forecast(pooled, 3, levels=(95,))
     assert fc.total is not None
     # Series end in different quarters; the total starts after the latest of them.
     last = max(s.axis.origin + s.t_last for s in pooled.series.values())

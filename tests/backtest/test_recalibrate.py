@@ -188,9 +188,9 @@ def _simulated_panel(rng, n_series: int, length: int):
 def test_recalibration_restores_coverage_on_held_out_periods(rng):
     import warnings
 
+    from bayesgrowth.backtest.recalibrate import backtest_model, recalibrate_panel
+    from bayesgrowth.backtest.recalibration_check import nested_evaluation
     from bayesgrowth.forecast.forecast import forecast
-    from bayesgrowth.forecast.recalibrate import backtest_model, recalibrate_panel
-    from bayesgrowth.forecast.recalibration_check import nested_evaluation
     from bayesgrowth.inference.run import fit_series
     from bayesgrowth.priors import NoisePrior, Priors
 

@@ -24,7 +24,7 @@ from collections.abc import Sequence
 import numpy as np
 import pandas as pd
 
-from bayesgrowth.forecast.recalibrate import outcomes_of
+from bayesgrowth.backtest.recalibrate import outcomes_of
 from bayesgrowth.forecast.recalibration_map import MIN_OUTCOMES, PSEUDO_COUNT, learn_map
 from bayesgrowth.scoring import coverage_interval
 
@@ -43,7 +43,7 @@ def split_outcomes(result, *, learn_share: float = 0.5,
         position ``ceil(learn_share * n_origins)`` in time order.
     method : str, optional
         The method whose rows to take (see
-        :func:`~bayesgrowth.forecast.recalibrate.outcomes_of`).
+        :func:`~bayesgrowth.backtest.recalibrate.outcomes_of`).
 
     Returns
     -------
@@ -101,13 +101,13 @@ def nested_evaluation(results, *, learn_share: float = 0.5, levels=(50, 80, 95),
     ----------
     results : BacktestResult or sequence of BacktestResult
         One backtest, or the backtests of a panel's series (the map is then pooled
-        per frequency, as :func:`~bayesgrowth.forecast.recalibrate.pooled_maps` does).
+        per frequency, as :func:`~bayesgrowth.backtest.recalibrate.pooled_maps` does).
     learn_share : float, default 0.5
         See :func:`split_outcomes`.
     levels : sequence of int, default (50, 80, 95)
         Band levels in percent.
     method, pseudo_count, min_outcomes :
-        As in :func:`~bayesgrowth.forecast.recalibrate.map_from_backtest`.
+        As in :func:`~bayesgrowth.backtest.recalibrate.map_from_backtest`.
 
     Returns
     -------

@@ -290,7 +290,7 @@ def recalibrate(fc: Forecast, series: GrowthSeries | None = None, *,
     Examples
     --------
     >>> import bayesgrowth as bg
-    >>> from bayesgrowth.forecast.recalibrate import recalibrate
+    >>> from bayesgrowth.backtest.recalibrate import recalibrate
     >>> fc = bg.GrowthModel(seed=1).fit(bg.load_demo()).forecast(4)
     >>> fixed = recalibrate(fc, min_train=10)
     >>> fixed.recalibrated["n_outcomes"]

@@ -1,0 +1,128 @@
+"""How numbers and probabilities are written for people: in the CLI, the report and the charts.
+
+One helper per kind of number, so that a value prints the same way wherever it
+appears: :func:`fmt_number` for values (significant figures with thousands
+separators), :func:`fmt_interval` for intervals (rounded outward),
+:func:`fmt_probability` for probabilities ("> 99%" rather than a rounded 100%)
+and :func:`fmt_percent` for growth rates. It imports nothing of the package, so
+every layer that writes for people can use it.
+"""
+
+from __future__ import annotations
+
+import math
+from decimal import ROUND_CEILING, ROUND_FLOOR, ROUND_HALF_UP, Decimal
+
+__all__ = ["MISSING", "SIGNIFICANT", "fmt_interval", "fmt_number", "fmt_percent",
+           "fmt_probability"]
+
+#: Significant figures of every value printed for people.
+SIGNIFICANT = 3
+
+#: Written for a value that is missing or not finite.
+MISSING = "–"
+
+def _missing(v) -> bool:
+    if v is None:
+        return True
+    try:
+        return not math.isfinite(float(v))
+    except (TypeError, ValueError):
+        return True
+
+
+_ROUNDING = {"nearest": ROUND_HALF_UP, "down": ROUND_FLOOR, "up": ROUND_CEILING}
+
+
+def _round_sig(v: float, sig: int, direction: str = "nearest") -> Decimal:
+    """``v`` rounded to ``sig`` significant figures of its shortest decimal form."""
+    d = Decimal(repr(float(v)))
+    if d == 0:
+        return Decimal(0)
+    quantum = Decimal(1).scaleb(d.adjusted() - sig + 1)
+    return d.quantize(quantum, rounding=_ROUNDING[direction])
+
+
+def fmt_number(v, sig: int = SIGNIFICANT, *, direction: str = "nearest") -> str:
+    """A value for people: ``sig`` significant figures with thousands separators.
+
+    Parameters
+    ----------
+    v : float or None
+        The value; ``None``, NaN and infinities print as "–".
+    sig : int, default 3
+        Significant figures.
+    direction : {"nearest", "down", "up"}
+        Rounding of the value's shortest decimal form: "nearest" rounds half up
+        (2.675 prints as 2.68, as a reader rounding the digits would);
+        :func:`fmt_interval` rounds a lower bound down and an upper bound up so
+        that the printed interval contains the computed one.
+
+    Returns
+    -------
+    str
+        For example ``9,800``, ``10,600``, ``123,000``, ``4.57``, ``0.0123``, ``42``
+        (at most ``sig`` figures: trailing zeros after the point are dropped).
+
+    Examples
+    --------
+    >>> fmt_number(9797.6)
+    '9,800'
+    >>> fmt_number(0.012345)
+    '0.0123'
+    """
+    if _missing(v):
+        return MISSING
+    if sig < 1:
+        raise ValueError(f"sig must be at least 1, got {sig}")
+    if direction not in ("nearest", "down", "up"):
+        raise ValueError(f"direction must be nearest, down or up, got {direction!r}")
+    text = f"{_round_sig(float(v), sig, direction):,f}"
+    if "." in text:  # at most ``sig`` figures: 42, not 42.0
+        text = text.rstrip("0").rstrip(".")
+    return "0" if text in ("-0", "0") else text
+
+
+def fmt_interval(lower, upper, sig: int = SIGNIFICANT, joiner: str = " to ") -> str:
+    """An interval rounded outward (lower bound down, upper bound up).
+
+    The printed interval always contains the computed one, so a value that
+    lies outside the computed interval is never shown inside the printed one.
+
+    Examples
+    --------
+    >>> fmt_interval(9054.2, 10598.0)
+    '9,050 to 10,600'
+    """
+    return (fmt_number(lower, sig, direction="down") + joiner
+            + fmt_number(upper, sig, direction="up"))
+
+
+def fmt_probability(p) -> str:
+    """A probability in whole percent, never a rounded 0% or 100%.
+
+    Below 0.5% prints as "< 1%" and from 99.5% up as "> 99%": a probability
+    estimated from a finite number of draws is never certain.
+
+    Examples
+    --------
+    >>> fmt_probability(1.0), fmt_probability(0.0), fmt_probability(0.914)
+    ('> 99%', '< 1%', '91%')
+    """
+    if _missing(p):
+        return MISSING
+    p = float(p)
+    if not -1e-12 <= p <= 1 + 1e-12:
+        raise ValueError(f"a probability lies between 0 and 1, got {p}")
+    if p >= 0.995:
+        return "> 99%"
+    if p < 0.005:
+        return "< 1%"
+    return f"{min(99, max(1, math.floor(100 * p + 0.5)))}%"
+
+
+def fmt_percent(x, decimals: int = 1) -> str:
+    """A rate such as growth (0.366 is 36.6%); "–" when missing."""
+    if _missing(x):
+        return MISSING
+    return f"{100 * float(x):,.{decimals}f}%"
