@@ -30,7 +30,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-__all__ = ["FilterResult", "augmented_filter", "transition"]
+__all__ = ["FilterResult", "augmented_filter", "gram_filter", "integrate_compiled", "transition"]
 
 
 @dataclass(frozen=True)
@@ -240,3 +240,84 @@ def gram_filter(y, season, grid_index, rho, sigma_level, sigma_growth, sigma, lo
               np.ascontiguousarray(sigma_growth, float), np.ascontiguousarray(sigma, float),
               bool(long_run), gram, logf, state, state_cov)
     return gram, logf, state, state_cov
+
+
+def _integrate_kernel(gram, logf, n, mu0, sd0, loglik, beta_mean, beta_cov):  # pragma: no cover
+    """Per node, what :func:`bayesgrowth.inference.statespace._integrate` computes in numpy.
+
+    A Cholesky factor ``L`` of ``M = I + S A S`` gives ``log|M|``, ``z = M^-1 S b``
+    and ``M^-1 = L^-T L^-1``.
+    """
+    p = mu0.size
+    log2pi = np.log(2.0 * np.pi)
+    m = np.empty((p, p))
+    chol = np.empty((p, p))
+    linv = np.empty((p, p))
+    sb = np.empty(p)
+    z = np.empty(p)
+    for g in range(gram.shape[0]):
+        rr = gram[g, 0, 0]
+        for i in range(p):
+            amu = 0.0
+            for j in range(p):
+                amu += gram[g, 1 + i, 1 + j] * mu0[j]
+                m[i, j] = sd0[i] * gram[g, 1 + i, 1 + j] * sd0[j]
+            m[i, i] += 1.0
+            rr += -2.0 * gram[g, 1 + i, 0] * mu0[i] + amu * mu0[i]
+            sb[i] = sd0[i] * (gram[g, 1 + i, 0] - amu)
+        logdet = 0.0
+        for i in range(p):
+            for j in range(i + 1):
+                acc = m[i, j]
+                for c in range(j):
+                    acc -= chol[i, c] * chol[j, c]
+                if i == j:
+                    chol[i, i] = np.sqrt(acc)
+                else:
+                    chol[i, j] = acc / chol[j, j]
+            logdet += 2.0 * np.log(chol[i, i])
+        for j in range(p):  # L^-1, lower triangular, column by column
+            for i in range(p):
+                if i < j:
+                    linv[i, j] = 0.0
+                    continue
+                acc = 1.0 if i == j else 0.0
+                for c in range(j, i):
+                    acc -= chol[i, c] * linv[c, j]
+                linv[i, j] = acc / chol[i, i]
+        quad = rr
+        for i in range(p):
+            acc = 0.0
+            for j in range(p):
+                minv = 0.0
+                for c in range(max(i, j), p):
+                    minv += linv[c, i] * linv[c, j]
+                beta_cov[g, i, j] = sd0[i] * minv * sd0[j]
+                acc += minv * sb[j]
+            z[i] = acc
+            quad -= sb[i] * acc
+            beta_mean[g, i] = mu0[i] + sd0[i] * acc
+        loglik[g] = -0.5 * (n * log2pi + logf[g] + logdet + quad)
+
+
+_INTEGRATE = None
+
+
+def integrate_compiled(gram, logf, n, mu0, var0):
+    """Marginal log likelihood and normal posterior of ``beta`` per node, compiled (numba).
+
+    Equals :func:`bayesgrowth.inference.statespace._integrate` (checked in the tests).
+    """
+    global _INTEGRATE
+    if _INTEGRATE is None:
+        import numba
+
+        _INTEGRATE = numba.njit(cache=True)(_integrate_kernel)
+    g, p = gram.shape[0], gram.shape[1] - 1
+    loglik = np.empty(g)
+    beta_mean = np.empty((g, p))
+    beta_cov = np.empty((g, p, p))
+    _INTEGRATE(np.ascontiguousarray(gram, float), np.ascontiguousarray(logf, float), int(n),
+               np.ascontiguousarray(mu0, float), np.sqrt(np.asarray(var0, dtype=float)),
+               loglik, beta_mean, beta_cov)
+    return loglik, beta_mean, beta_cov

@@ -29,11 +29,12 @@ data weight them by their exact evidence (Bayesian model averaging).
 from __future__ import annotations
 
 import math
+import sys
 from dataclasses import dataclass, field
 
 import numpy as np
 
-from bayesgrowth.inference.kalman import augmented_filter, gram_filter
+from bayesgrowth.inference.kalman import augmented_filter, gram_filter, integrate_compiled
 from bayesgrowth.inference.theta import ThetaDim, rho_of, theta_dims
 from bayesgrowth.models import linear
 from bayesgrowth.seeds import stream
@@ -113,22 +114,37 @@ def _integrate(gram, logf, n: int, ctx: _Context):
 
 
 #: Below this many node-observations the filter runs in numpy: compiling (or loading the
-#: compiled kernel, about a second with numba's import) costs more than it saves.
+#: compiled kernel, about a second with numba's import) costs more than it saves. Once a
+#: process has filtered ``_WARM`` node-observations in all (a backtest, a batch) or has
+#: loaded numba anyway, the compiled kernel serves every size.
 _COMPILE_ABOVE = 150_000
+_WARM = 2_000_000
+_filtered = 0
+_ROUTE = "auto"  # or "numpy", "compiled"
+
+
+def _use_compiled(work: int) -> bool:
+    """Whether to filter ``work`` node-observations with the compiled kernel."""
+    global _filtered
+    if _ROUTE != "auto":
+        return _ROUTE == "compiled"
+    _filtered += work
+    return work > _COMPILE_ABOVE or _filtered > _WARM or "numba" in sys.modules
 
 
 def _evaluate(ctx: _Context, params: dict) -> dict:
     """Filter every node and integrate ``beta`` out."""
-    if params["sigma"].size * ctx.y.size <= _COMPILE_ABOVE:
+    if not _use_compiled(params["sigma"].size * ctx.y.size):
         innov, var = _innovations(ctx, params, keep_state=True)
         v, f, state, state_cov = innov
         gram = np.einsum("gni,gnj->gij", v / f[..., None], v)
         logf = np.log(f).sum(axis=1)
+        loglik, bm, bc = _integrate(gram, logf, ctx.y.size, ctx)
     else:
         gram, logf, state, state_cov = gram_filter(
             ctx.y, ctx.season, ctx.idx, params["rho"], params["sigma_level"],
             params["sigma_growth"], params["sigma"], ctx.long_run)
-    loglik, bm, bc = _integrate(gram, logf, ctx.y.size, ctx)
+        loglik, bm, bc = integrate_compiled(gram, logf, ctx.y.size, ctx.mu0, ctx.var0)
     return {"loglik": loglik, "beta_mean": bm, "beta_cov": bc, "state": state,
             "state_cov": state_cov}
 

@@ -114,9 +114,9 @@ def test_compiled_and_numpy_routes_give_the_same_posterior(monkeypatch):
     s = bg.load_demo()
     pr = Priors().resolve(s)
     spec = ModelSpec(model="local-trend", drift="mean-reverting", seasonal=True)
-    monkeypatch.setattr(ss, "_COMPILE_ABOVE", 10**12)
+    monkeypatch.setattr(ss, "_ROUTE", "numpy")
     plain = ss.state_space_posterior(s, pr, spec)
-    monkeypatch.setattr(ss, "_COMPILE_ABOVE", 0)
+    monkeypatch.setattr(ss, "_ROUTE", "compiled")
     compiled = ss.state_space_posterior(s, pr, spec)
     assert compiled.log_evidence == pytest.approx(plain.log_evidence, abs=1e-9)
     np.testing.assert_allclose(compiled.weight, plain.weight, rtol=1e-8, atol=1e-14)
@@ -135,3 +135,4 @@ def test_long_horizons_need_memory_in_proportion_to_the_horizon(demo_fit):
     assert peak < 400e6
     tab = fc.table
     assert np.all(np.diff(tab["upper_95"] - tab["lower_95"]) > 0)
+
