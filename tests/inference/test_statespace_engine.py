@@ -136,3 +136,16 @@ def test_long_horizons_need_memory_in_proportion_to_the_horizon(demo_fit):
     tab = fc.table
     assert np.all(np.diff(tab["upper_95"] - tab["lower_95"]) > 0)
 
+
+
+def test_the_compiled_filter_takes_over_once_a_process_has_done_enough_work(monkeypatch):
+    import sys
+
+    monkeypatch.delitem(sys.modules, "numba", raising=False)
+    monkeypatch.setattr(ss, "_filtered", 0)
+    small = ss._COMPILE_ABOVE // 2
+    assert not ss._use_compiled(small)  # one small fit: plain numpy, no compile or import
+    assert ss._use_compiled(ss._COMPILE_ABOVE + 1)  # a large grid: compiled
+    while ss._filtered <= ss._WARM:
+        ss._use_compiled(small)
+    assert ss._use_compiled(small)  # a backtest or batch: compiled from then on
