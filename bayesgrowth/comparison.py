@@ -12,6 +12,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from bayesgrowth.display import fmt_interval, fmt_number, fmt_percent, html_summary, text_summary
 from bayesgrowth.forecast.forecast import Forecast
 from bayesgrowth.leastsq import GrowthFit, LeastSquaresError, fit_table, fit_variants
 from bayesgrowth.leastsq.curves import fit_curve
@@ -84,6 +85,30 @@ class Comparison:
     fits: list[GrowthFit]
     table: pd.DataFrame
     forecast: Forecast
+
+    def _summary(self) -> tuple[str, str, list[str], list[list[str]]]:
+        fc = self.forecast
+        level = max(fc.levels)
+        bayes = self.table.iloc[0]
+        title = (f"Least-squares fits of {fc.fit.series.name!r} beside the Bayesian forecast, "
+                 f"{fc.horizon} periods ahead")
+        points = self.table["value_at_horizon"]
+        band = fmt_interval(bayes[f"bayes_lower_{level}"], bayes[f"bayes_upper_{level}"])
+        headline = (f"point forecasts {fmt_interval(points.min(), points.max())}; Bayesian "
+                    f"median {fmt_number(bayes['bayes_median'])}, {level}% band {band}")
+        rows = [[r["variant"], str(r["n_points"]), fmt_percent(r["growth_per_period"]),
+                 fmt_number(r["value_at_horizon"])] for _, r in self.table.iterrows()]
+        return title, headline, ["variant", "points", "growth", "value at horizon"], rows
+
+    def __repr__(self) -> str:
+        title, headline, _, rows = self._summary()
+        points = self.table["value_at_horizon"].to_numpy()
+        low, high = rows[int(np.argmin(points))], rows[int(np.argmax(points))]
+        return text_summary(title, [headline, f"{len(rows)} variants: lowest {low[0]} "
+                                    f"({low[3]}), highest {high[0]} ({high[3]})"])
+
+    def _repr_html_(self) -> str:
+        return html_summary(*self._summary())
 
     @property
     def spread(self) -> dict:

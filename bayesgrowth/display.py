@@ -10,11 +10,16 @@ every layer that writes for people can use it.
 
 from __future__ import annotations
 
+import html
 import math
+from collections.abc import Sequence
 from decimal import ROUND_CEILING, ROUND_FLOOR, ROUND_HALF_UP, Decimal
 
 __all__ = ["MISSING", "SIGNIFICANT", "fmt_interval", "fmt_number", "fmt_percent",
-           "fmt_probability"]
+           "fmt_probability", "html_summary", "text_summary"]
+
+#: Most table rows an HTML summary shows; longer tables show their first and last rows.
+HTML_ROWS = 12
 
 #: Significant figures of every value printed for people.
 SIGNIFICANT = 3
@@ -126,3 +131,51 @@ def fmt_percent(x, decimals: int = 1) -> str:
     if _missing(x):
         return MISSING
     return f"{100 * float(x):,.{decimals}f}%"
+
+
+def text_summary(title: str, lines: Sequence[str]) -> str:
+    """A result in a few lines, for its ``repr``: the title, then indented lines.
+
+    Examples
+    --------
+    >>> print(text_summary("Fit of 'north'", ["growth 12% per quarter"]))
+    Fit of 'north'
+      growth 12% per quarter
+    """
+    return "\n".join([title, *(f"  {line}" for line in lines)])
+
+
+def html_summary(title: str, headline: str, columns: Sequence[str],
+                 rows: Sequence[Sequence[str]]) -> str:
+    """A result for a notebook (``_repr_html_``): title, headline and a compact table.
+
+    Every text is escaped. A table of more than :data:`HTML_ROWS` rows shows its
+    first and last rows, with a row of "…" between them.
+
+    Parameters
+    ----------
+    title, headline : str
+    columns : sequence of str
+        Column headers.
+    rows : sequence of sequence of str
+        The cells, already written for people.
+
+    Returns
+    -------
+    str
+
+    Examples
+    --------
+    >>> html_summary("Fit", "growth 12%", ["a"], [["1 < 2"]]).count("&lt;")
+    1
+    """
+    rows = [list(r) for r in rows]
+    if len(rows) > HTML_ROWS:
+        half = HTML_ROWS // 2
+        rows = rows[:half] + [["…"] * len(columns)] + rows[-half:]
+    head = "".join(f"<th>{html.escape(str(c))}</th>" for c in columns)
+    body = "".join(
+        "<tr>" + "".join(f"<td>{html.escape(str(c))}</td>" for c in r) + "</tr>" for r in rows
+    )
+    return (f"<div><p><strong>{html.escape(title)}</strong><br>{html.escape(headline)}</p>"
+            f"<table><thead><tr>{head}</tr></thead><tbody>{body}</tbody></table></div>")

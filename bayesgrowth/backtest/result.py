@@ -7,6 +7,7 @@ from dataclasses import dataclass, field
 import pandas as pd
 
 from bayesgrowth.data.series import GrowthSeries
+from bayesgrowth.display import fmt_number, fmt_percent, html_summary, text_summary
 from bayesgrowth.scoring import ALL_STEPS
 
 __all__ = ["NO_BANDS", "BacktestResult"]
@@ -55,6 +56,33 @@ class BacktestResult:
     series: GrowthSeries
     levels: tuple[int, ...]
     settings: dict = field(default_factory=dict)
+
+    def _summary(self) -> tuple[str, str, list[str], list[list[str]]]:
+        st = self.settings
+        origins = self.forecasts["origin"].nunique()
+        title = (f"Backtest of {self.series.name!r}: {len(self.methods)} models, "
+                 f"{origins} origins, horizon {st.get('horizon', '?')}")
+        cols = ["model", "verdict", *(f"{v}% coverage" for v in self.levels), "mean CRPS"]
+        rows = []
+        for method, verdict in self.verdicts().items():
+            row = self._overall(method)
+            cover = [fmt_percent(row[f"coverage_{v}"], 0) if verdict != NO_BANDS else "–"
+                     for v in self.levels]
+            rows.append([method, verdict, *cover, fmt_number(row["crps"])])
+        best = min(self.methods, key=lambda m: self._overall(m)["crps"])
+        headline = f"lowest mean CRPS: {best} ({self.verdicts()[best]})"
+        return title, headline, cols, rows
+
+    def __repr__(self) -> str:
+        title, headline, _, rows = self._summary()
+        bands = ", ".join(str(v) for v in self.levels) + "%"
+        return text_summary(title, [headline] + [
+            f"{r[0]}: {r[1]}; {bands} bands held {', '.join(r[2:-1])}; mean CRPS {r[-1]}"
+            for r in rows
+        ])
+
+    def _repr_html_(self) -> str:
+        return html_summary(*self._summary())
 
     @property
     def methods(self) -> tuple[str, ...]:

@@ -110,6 +110,16 @@ class Forecast:
     seed: int
     exact: dict | None = None
 
+    def __repr__(self) -> str:
+        from bayesgrowth.forecast.summaries import forecast_text
+
+        return forecast_text(self)
+
+    def _repr_html_(self) -> str:
+        from bayesgrowth.forecast.summaries import forecast_html
+
+        return forecast_html(self)
+
     def _mixture_bands(self, sd_key: str, prefix: str = "") -> dict:
         e = self.exact
         probs = [0.5]

@@ -10,6 +10,7 @@ import numpy as np
 
 from bayesgrowth._version import __version__
 from bayesgrowth.data.series import GrowthSeries
+from bayesgrowth.display import fmt_number, fmt_percent, html_summary, text_summary
 from bayesgrowth.inference.diagnostics import Diagnostics
 from bayesgrowth.models import exponential, general
 from bayesgrowth.models.spec import ModelSpec
@@ -70,6 +71,31 @@ class Fit:
         if self.spec is None:
             self.spec = ModelSpec(model=self.model)
         self.model = self.spec.model
+
+    def _summary(self) -> tuple[str, list[str], list[list[str]]]:
+        s = self.series
+        title = f"Fit of {s.name!r}: {self.spec.label()}; {self.engine} engine"
+        lines = [f"{s.n} observations, {s.labels[0]} to {s.labels[-1]}; "
+                 f"{self.n_draws:,} draws; seed {self.seed}"]
+        rows = []
+        for name, draws in self.derived().items():
+            lo, med, hi = np.quantile(draws, [0.025, 0.5, 0.975])
+            write = fmt_percent if name == "growth_per_period" else fmt_number
+            rows.append([name.replace("_", " "), write(med), f"{write(lo)} to {write(hi)}"])
+        growth = next(r for r in rows if r[0] == "growth per period")
+        lines.append(f"growth per period {growth[1]} (95% interval {growth[2]})")
+        d = self.diagnostics
+        lines.append("diagnostics ok" if d.ok else "diagnostics failed: " + "; ".join(d.problems))
+        return title, lines, rows
+
+    def __repr__(self) -> str:
+        title, lines, _ = self._summary()
+        return text_summary(title, lines)
+
+    def _repr_html_(self) -> str:
+        title, lines, rows = self._summary()
+        return html_summary(title, " · ".join(lines[1:]), ["quantity", "median", "95% interval"],
+                            rows)
 
     @property
     def _shape(self) -> tuple[int, int]:

@@ -22,6 +22,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from bayesgrowth.display import html_summary, text_summary
 from bayesgrowth.select.stacking import stacking_weights
 
 __all__ = [
@@ -172,6 +173,24 @@ class ModelComparison:
     table: pd.DataFrame
     results: dict[str, LooResult]
     weights: dict[str, float]
+
+    def _rows(self) -> list[list[str]]:
+        return [[r.model, f"{r.elpd_loo:.1f}", f"{r.elpd_diff:.1f}", f"{r.dse:.1f}",
+                 f"{r.weight:.2f}"] for r in self.table.itertuples()]
+
+    def _headline(self) -> str:
+        return f"best by PSIS-LOO: {self.best} (stacking weight {self.weights[self.best]:.2f})"
+
+    def __repr__(self) -> str:
+        title = f"Model comparison of {len(self.table)} models"
+        return text_summary(title, [self._headline()] + [
+            f"{m}: elpd {e} (below the best by {d}, se {se}); weight {w}"
+            for m, e, d, se, w in self._rows()
+        ])
+
+    def _repr_html_(self) -> str:
+        return html_summary(f"Model comparison of {len(self.table)} models", self._headline(),
+                            ["model", "elpd_loo", "elpd_diff", "dse", "weight"], self._rows())
 
     @property
     def best(self) -> str:
