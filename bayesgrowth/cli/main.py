@@ -14,7 +14,7 @@ import sys
 from pathlib import Path
 
 from bayesgrowth._version import __version__
-from bayesgrowth.cli import backtest, batch, compare, models, report
+from bayesgrowth.cli import backtest, batch, compare, models, pool, priors, report
 from bayesgrowth.cli.acceptance import diagnostics_exit
 from bayesgrowth.cli.common import (
     PROG,
@@ -100,6 +100,8 @@ def build_parser() -> argparse.ArgumentParser:
     report.add_parser(sub)
     batch.add_parser(sub)
     models.add_parser(sub)
+    priors.add_parsers(sub)
+    pool.add_parser(sub)
     return parser
 
 

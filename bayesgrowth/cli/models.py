@@ -135,14 +135,16 @@ def _check_models(names: list[str], series, priors, spec_options: dict, engine: 
 
 
 def _table_lines(table) -> list[str]:
-    head = (f"{'model':<14}{'elpd_loo':>10}{'se':>7}{'elpd_diff':>11}{'dse':>7}{'p_loo':>7}"
-            f"{'weight':>8}{'max k':>7}")
+    head = (f"{'rank':<5}{'model':<14}{'elpd_loo':>10}{'se':>7}{'elpd_diff':>11}{'dse':>7}"
+            f"{'p_loo':>7}{'weight':>8}{'(90% interval)':>16}{'max k':>7}")
     lines = [head]
     for r in table.itertuples():
         flag = "" if r.diagnostics_ok else "  (diagnostics failed)"
+        spread = f"({r.weight_lower_90:.2f} to {r.weight_upper_90:.2f})"
         lines.append(
-            f"{r.model:<14}{r.elpd_loo:>10.1f}{r.se:>7.1f}{r.elpd_diff:>11.1f}{r.dse:>7.1f}"
-            f"{r.p_loo:>7.1f}{r.weight:>8.2f}{r.max_pareto_k:>7.2f}{flag}"
+            f"{r.rank:<5}{r.model:<14}{r.elpd_loo:>10.1f}{r.se:>7.1f}{r.elpd_diff:>11.1f}"
+            f"{r.dse:>7.1f}{r.p_loo:>7.1f}{r.weight:>8.2f}{spread:>16}{r.max_pareto_k:>7.2f}"
+            f"{flag}"
         )
     return lines
 
@@ -186,6 +188,8 @@ def run(args) -> int:
         print(line)
     for line in comp.reading():
         print(line)
+    if len(names) > 1:
+        print(comp.weights_reading())
     for msg in comp.messages():
         print(f"warning: {msg}")
     for name, why in ma.excluded.items():
@@ -193,7 +197,7 @@ def run(args) -> int:
               f"checks failed ({why})")
     row = avg.table.iloc[-1]
     mixture = ", ".join(f"{m} {w:.0%}" for m, w in comp.weights.items() if w >= 0.005)
-    print(f"model-averaged forecast for {row['period']} (stacking weights: {mixture}): "
+    print(f"model-averaged forecast for {row['period']} (mixed by weight: {mixture}): "
           + "; ".join([f"median {fmt_number(row['median'])}",
                        *band_phrases(row.to_dict(), avg.levels)]))
     for caution in (avg.caution, CURVE_CAUTION, CAUTION):

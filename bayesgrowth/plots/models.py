@@ -157,7 +157,7 @@ def plot_prior_predictive(prior, ax=None, *, log_scale: bool = True, title: str 
     format_value_axis(ax, unit, series)
     if log_scale:
         ax.set_ylabel(f"{ax.get_ylabel()} (log scale)")
-    ax.set_title(title or f"{literal(series.name)}\nWhat the priors imply before fitting: "
+    ax.set_title(title or f"{literal(series.name)}\nWhat the priors imply before fitting\n"
                  f"{prior.spec.label()}", fontsize=11)
     legend_in_reading_order(ax)
     return ax
@@ -202,7 +202,7 @@ def plot_sensitivity(result, axes=None, *, title: str | None = None):
         axes[0].plot([], [], "X", mfc="white", mec=HISTORY, label="sampling diagnostics failed")
     legend(axes[0], loc="best", fontsize=7.5)
     fig.suptitle(title or f"{literal(result.series_name)}: prior sensitivity of the forecast for "
-                 f"{result.period} ({result.model})", fontsize=11)
+                 f"{result.period}\n{result.model}", fontsize=11)
     return axes
 
 

@@ -23,7 +23,7 @@ import numpy as np
 import pandas as pd
 
 from bayesgrowth.display import html_summary, text_summary
-from bayesgrowth.select.stacking import stacking_weights
+from bayesgrowth.select.stacking import bootstrap_stacking_weights, stacking_weights
 
 __all__ = [
     "K_OK",
@@ -160,9 +160,12 @@ class ModelComparison:
     Attributes
     ----------
     table : pandas.DataFrame
-        One row per model, best first: ``model``, ``rank``, ``elpd_loo``, ``se``,
-        ``elpd_diff`` (how far below the best), ``dse`` (standard error of that
-        difference), ``p_loo``, ``weight`` (stacking), ``max_pareto_k``,
+        One row per model, best first: ``model``, ``rank`` (1 for the best),
+        ``elpd_loo``, ``se``, ``elpd_diff`` (how far below the best), ``dse``
+        (standard error of that difference), ``p_loo``, ``weight`` (stacking),
+        ``weight_lower_90`` and ``weight_upper_90`` (a 90% interval of the weight
+        under a Bayesian bootstrap of the observations, see
+        :func:`~bayesgrowth.select.stacking.bootstrap_stacking_weights`), ``max_pareto_k``,
         ``n_unreliable_k`` (k above 0.7), ``diagnostics_ok``, ``engine``,
         ``description``.
     results : dict of str to LooResult
@@ -209,6 +212,32 @@ class ModelComparison:
                 "draws that may not represent the posterior; sample longer before trusting them"
             )
         return out
+
+    def indistinguishable(self) -> list[str]:
+        """Models that :meth:`reading` calls not distinguishable from the best, and the best.
+
+        Those less than 4 below the best in elpd, or less than 2 standard errors of
+        the difference below it (the rules of :meth:`reading`). The best model comes
+        first when any other is listed. Between such models the stacking weights are
+        not a verdict: the data do not tell them apart.
+        """
+        close = [r.model for r in self.table.iloc[1:].itertuples()
+                 if r.elpd_diff < SMALL_DIFF or r.elpd_diff <= 2 * r.dse]
+        return [self.best, *close] if close else []
+
+    def weight_phrases(self) -> list[str]:
+        """Each model's stacking weight with its 90% bootstrap interval, in words."""
+        return [f"{r.model} {r.weight:.2f} (90% interval {r.weight_lower_90:.2f} to "
+                f"{r.weight_upper_90:.2f})" for r in self.table.itertuples()]
+
+    def weights_reading(self) -> str:
+        """One line: the weights with their uncertainty, and which models are indistinguishable."""
+        text = "stacking weights: " + "; ".join(self.weight_phrases())
+        close = self.indistinguishable()
+        if close:
+            text += (f". {', '.join(close[:-1])} and {close[-1]} are indistinguishable by "
+                     "LOO: the split of weight between them is not a verdict")
+        return text
 
     def reading(self) -> list[str]:
         """What the table says, in words (differences measured in their standard errors).
@@ -274,10 +303,12 @@ def compare_models(fits: Mapping) -> ModelComparison:
     lpd = np.column_stack([results[n].pointwise for n in names])
     w = stacking_weights(lpd)
     weights = {n: float(x) for n, x in zip(names, w, strict=True)}
+    boot = np.quantile(bootstrap_stacking_weights(lpd), [0.05, 0.95], axis=0)
+    spread = {n: (float(boot[0, i]), float(boot[1, i])) for i, n in enumerate(names)}
     order = sorted(names, key=lambda n: -results[n].elpd_loo)
     best = results[order[0]].pointwise
     rows = []
-    for rank, name in enumerate(order):
+    for rank, name in enumerate(order, start=1):
         r = results[name]
         diff = best - r.pointwise
         fit = fits[name]
@@ -290,6 +321,8 @@ def compare_models(fits: Mapping) -> ModelComparison:
             "dse": float(np.sqrt(diff.size * np.var(diff))),
             "p_loo": r.p_loo,
             "weight": weights[name],
+            "weight_lower_90": spread[name][0],
+            "weight_upper_90": spread[name][1],
             "max_pareto_k": r.max_k,
             "n_unreliable_k": r.n_unreliable,
             "diagnostics_ok": bool(fit.diagnostics.ok),

@@ -95,7 +95,9 @@ def test_comparison_table_equals_arviz_compare(three_exact_fits):
                          method="stacking")
     tab = comp.table.set_index("model")
     assert list(tab.index) == list(ref.index)  # same ranking
-    for ours, theirs in [("rank", "rank"), ("elpd_loo", "elpd_loo"), ("se", "se"),
+    # Our ranks count from 1 (the best), ArviZ's from 0.
+    np.testing.assert_array_equal(tab["rank"].to_numpy(), ref["rank"].to_numpy() + 1)
+    for ours, theirs in [("elpd_loo", "elpd_loo"), ("se", "se"),
                          ("p_loo", "p_loo"), ("elpd_diff", "elpd_diff"), ("dse", "dse")]:
         np.testing.assert_allclose(tab[ours].to_numpy(dtype=float),
                                    ref[theirs].to_numpy(dtype=float), atol=1e-8, err_msg=ours)
@@ -171,3 +173,19 @@ def test_reading_of_differences():
     assert lines[1].endswith("probably worse")
     assert lines[2].endswith(": not distinguishable from it") and "small" not in lines[2]
     assert lines[3].endswith("clearly worse")
+
+
+def test_identical_models_are_called_indistinguishable_and_ranked_from_one(demo_exact_fit):
+    comp = compare_models({"first": demo_exact_fit, "copy": demo_exact_fit})
+    assert comp.table["rank"].tolist() == [1, 2]
+    assert comp.indistinguishable() == ["first", "copy"]
+    text = comp.weights_reading()
+    assert "indistinguishable" in text
+    # Equal pointwise elpd: every bootstrap replicate keeps the weights at one half.
+    assert comp.table["weight_lower_90"].tolist() == pytest.approx([0.5, 0.5])
+    assert comp.table["weight_upper_90"].tolist() == pytest.approx([0.5, 0.5])
+
+
+def test_a_clearly_worse_model_is_not_indistinguishable(three_exact_fits):
+    comp = compare_models(three_exact_fits)
+    assert "no growth" not in comp.indistinguishable()

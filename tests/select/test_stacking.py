@@ -108,3 +108,27 @@ def test_bad_input_is_refused():
         stacking_weights(np.zeros(5))
     with pytest.raises(ValueError, match="finite"):
         stacking_weights(np.array([[0.0, np.nan]]))
+
+
+def test_fixed_point_with_equal_observation_weights_is_the_stacking_optimum():
+    # The bootstrap's solver, given every observation the same weight, must land on the
+    # optimum that test_weights_equal_arviz_stacking checks against ArviZ.
+    from bayesgrowth.select.stacking import _densities, weighted_stacking
+
+    rng = np.random.default_rng(7)
+    lpd = rng.normal(size=(30, 3)) - np.array([0.0, 0.2, 0.5])
+    ref = stacking_weights(lpd)
+    got = weighted_stacking(_densities(lpd), np.full((1, 30), 1 / 30), iterations=20000)[0]
+    np.testing.assert_allclose(got, ref, atol=2e-3)
+    assert stacking_objective(got, lpd) == pytest.approx(stacking_objective(ref, lpd), abs=1e-7)
+
+
+def test_bootstrap_weights_show_when_the_data_cannot_choose():
+    from bayesgrowth.select.stacking import bootstrap_stacking_weights
+
+    rng = np.random.default_rng(3)
+    base = rng.normal(size=20)
+    same = bootstrap_stacking_weights(np.column_stack([base, base]), n_boot=50)
+    np.testing.assert_allclose(same, 0.5)  # identical predictions: no replicate prefers one
+    clear = bootstrap_stacking_weights(np.column_stack([base, base - 5.0]), n_boot=50)
+    assert clear[:, 0].min() > 0.99  # 5 nats worse on every observation: no weight in any
