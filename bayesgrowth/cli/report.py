@@ -11,6 +11,7 @@ from pathlib import Path
 from bayesgrowth.cli.acceptance import diagnostics_exit
 from bayesgrowth.cli.common import UsageError, add_input, add_model_options, read_input, say
 from bayesgrowth.cli.output import add_force_option, check_output, staged_output
+from bayesgrowth.cli.report_models import add_models_option, average_from_args
 from bayesgrowth.cli.text import add_unit_option, unit_from_args
 
 __all__ = ["add_parser"]
@@ -34,6 +35,7 @@ def add_parser(sub) -> None:
     p.add_argument("--target-probability", type=float, default=0.5, metavar="P",
                    help="probability at which the target counts as reached [0.5]")
     p.add_argument("--no-backtest", action="store_true", help="leave out the backtest section")
+    add_models_option(p)
     p.set_defaults(run=run)
 
 
@@ -58,14 +60,18 @@ def run(args) -> int:
     staged = staged_output(args.out, names, [args.file], force=args.force)
     with staged as stage, warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", SamplingWarning)  # the forecast's own fit
+        average = average_from_args(args, series, priors)
         page = build_report(
             series, args.horizon, engine=args.engine, seed=args.seed, priors=priors,
             levels=args.levels, target=args.target, target_probability=args.target_probability,
             with_backtest=not args.no_backtest, command=command, unit=unit_from_args(args),
             fit_options={"draws": args.draws, "chains": args.chains, **spec_options},
+            average=average,
         )
         write_report(stage / "report.html", page)
     failed = [str(w.message) for w in caught if issubclass(w.category, SamplingWarning)]
+    failed += [f"{m}: diagnostics failed, left out of the comparison"
+               for m in (average.excluded if average is not None else ())]
     for w in caught:
         if not issubclass(w.category, SamplingWarning):
             warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)

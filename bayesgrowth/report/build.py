@@ -42,6 +42,7 @@ def build_report(
     with_backtest: bool = True,
     models=None,
     models_note: str | None = None,
+    average=None,
     command: str | None = None,
     fit_options: dict | None = None,
     timestamp: str | None = None,
@@ -68,6 +69,11 @@ def build_report(
     models : pandas.DataFrame, optional
         A model comparison table to show (when several models were fitted).
     models_note : str, optional
+    average : ModelAverage, optional
+        Several models fitted to ``series`` and averaged
+        (:func:`bayesgrowth.select.model_average`): the report shows their comparison,
+        stacking weights with their uncertainty, and each model's band beside the
+        average. Takes the place of ``models`` and ``models_note``.
     command : str, optional
         The command line (or call) that reproduces the report.
     fit_options : dict, optional
@@ -109,6 +115,8 @@ def build_report(
     )
     if timestamp is not None:
         parts.timestamp = timestamp
+    if average is not None:
+        _add_average(parts, average, unit)
     try:
         comp = compare_to_forecast(fc)
     except LeastSquaresError:
@@ -130,6 +138,18 @@ def build_report(
         parts.backtest = result
         parts.calibration_chart = figure_data_uri(calibration_figure(result))
     return render_report(parts)
+
+
+def _add_average(parts: ReportParts, average, unit: str | None) -> None:
+    """The model comparison section's table, words and chart, from a ModelAverage."""
+    from bayesgrowth.plots.models import plot_model_bands
+    from bayesgrowth.report.averaging import models_note, models_table
+
+    level = 80 if 80 in average.averaged.levels else max(average.averaged.levels)
+    ax = plot_model_bands(average.forecasts, average.averaged, level=level, unit=unit)
+    parts.models = models_table(average.comparison)
+    parts.models_note = models_note(average)
+    parts.models_chart = figure_data_uri(ax.figure)
 
 
 def write_report(path: str | Path, html_text: str) -> Path:

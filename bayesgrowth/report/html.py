@@ -138,7 +138,9 @@ class ReportParts:
     backtest : object, optional
         A :class:`~bayesgrowth.backtest.BacktestResult` and ``calibration_chart`` URI.
     models : pandas.DataFrame, optional
-        A model comparison table, shown when several models were fitted.
+        A model comparison table, shown when several models were fitted, with
+        ``models_note`` (words) and ``models_chart`` (data URI of each model's band
+        and their average).
     unit : str, optional
         What the values measure, e.g. "Revenue (EUR thousand)"; named above the tables.
     timestamp : str
@@ -156,6 +158,7 @@ class ReportParts:
     calibration_chart: str | None = None
     models: pd.DataFrame | None = None
     models_note: str | None = None
+    models_chart: str | None = None
     unit: str | None = None
     timestamp: str = field(
         default_factory=lambda: datetime.now(UTC).strftime("%Y-%m-%d %H:%M UTC")
@@ -276,7 +279,9 @@ def _models(p: ReportParts) -> str:
         return (f"<p>One model was fitted: "
                 f"{_e(p.forecast.fit.spec.label())}.</p>")
     note = f"<p>{_e(p.models_note)}</p>" if p.models_note else ""
-    return note + _table(p.models)
+    fig = (f'<figure><img alt="Each model\'s forecast band and their average" '
+           f'src="{p.models_chart}"></figure>' if p.models_chart else "")
+    return note + _table(p.models) + fig
 
 
 def _priors(summary: dict) -> str:
