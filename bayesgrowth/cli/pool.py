@@ -144,8 +144,9 @@ def run(args) -> int:
     """Run ``pool``; returns the exit code."""
     import warnings
 
-    from bayesgrowth import fit_pooled
     from bayesgrowth.forecast.forecast import CAUTION
+    from bayesgrowth.forecast.pooled import forecast_pooled
+    from bayesgrowth.inference.pooled import fit_pooled
     from bayesgrowth.models.hierarchical import GroupPrior
 
     panel = _read(args)
@@ -164,7 +165,7 @@ def run(args) -> int:
                                  chains=args.chains, progressbar=not args.quiet)
             except ValueError as exc:
                 raise UsageError(f"{exc}") from None
-        pf = fit.forecast(args.horizon, levels=args.levels, seed=args.seed)
+        pf = forecast_pooled(fit, args.horizon, levels=args.levels, seed=args.seed)
         write_csv(pf.table, stage / "pooled_forecast.csv")
         write_csv(fit.summary(), stage / "pooled_growth.csv")
         if pf.total is not None:

@@ -140,7 +140,7 @@ def run_priors(args) -> int:
     import matplotlib
 
     matplotlib.use("Agg")
-    from bayesgrowth import prior_predictive
+    from bayesgrowth.forecast.prior import prior_predictive
     from bayesgrowth.plots.models import plot_prior_predictive
 
     series = read_input(args)
@@ -203,7 +203,7 @@ def run_sensitivity(args) -> int:
     import matplotlib
 
     matplotlib.use("Agg")
-    from bayesgrowth import prior_sensitivity
+    from bayesgrowth.forecast.sensitivity import prior_sensitivity
     from bayesgrowth.plots.models import plot_sensitivity
 
     series = read_input(args)
