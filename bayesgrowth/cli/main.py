@@ -33,6 +33,13 @@ from bayesgrowth.cli.recalibration import (
     recalibrate_forecast,
     recalibration_line,
 )
+from bayesgrowth.cli.scenario import (
+    add_scenario_options,
+    scenario_from_args,
+    scenario_lines,
+    scenario_summary,
+    scenario_table,
+)
 from bayesgrowth.cli.text import add_unit_option, forecast_lines, outlook_lines, unit_from_args
 from bayesgrowth.data.export import NOT_AVAILABLE_KEY, json_ready, json_text, write_csv
 from bayesgrowth.data.series import GrowthSeries, InputError
@@ -75,6 +82,7 @@ def build_parser() -> argparse.ArgumentParser:
         help="probability at which the target counts as reached [0.5]",
     )
     add_recalibrate_options(fc)
+    add_scenario_options(fc)
     fc.set_defaults(run=_run_forecast)
 
     demo = sub.add_parser(
@@ -94,6 +102,7 @@ def build_parser() -> argparse.ArgumentParser:
     demo.add_argument("--target", type=float, default=None, help=argparse.SUPPRESS)
     demo.add_argument("--target-probability", type=float, default=0.5, help=argparse.SUPPRESS)
     add_recalibrate_options(demo)
+    add_scenario_options(demo)
     demo.set_defaults(run=_run_demo)
     compare.add_parser(sub)
     backtest.add_parser(sub)
@@ -116,7 +125,9 @@ def _run_forecast(args, series: GrowthSeries | None = None) -> int:
     if not 0 < args.target_probability < 1:
         raise UsageError(f"--target-probability {args.target_probability}: must be between 0 and 1")
     min_train = check_min_train(args, series.n)
+    scenario = scenario_from_args(args, series.future_labels(args.horizon))
     names = ["forecast.csv", "summary.json", "fan_chart.png", "posterior.nc"]
+    names += [] if scenario is None else ["scenario.csv"]
     protect = [args.file] if getattr(args, "file", None) else []
     with staged_output(args.out, names, protect, force=args.force) as stage:
         fit = fit_from_args(args, series)
@@ -125,14 +136,25 @@ def _run_forecast(args, series: GrowthSeries | None = None) -> int:
         if min_train is not None:
             fc = recalibrate_forecast(args, fc, min_train)
         summary = fc.summary(args.target, args.target_probability)
+        scen = None
+        if scenario is not None:
+            from bayesgrowth.forecast.scenario import apply_scenario
+
+            scen = (apply_scenario(fc, scenario), scenario.describe(fc.periods))
+            summary["scenario"] = scenario_summary(fc, *scen)
+            write_csv(scenario_table(fc, scen[0]), stage / "scenario.csv")
         write_csv(fc.table, stage / "forecast.csv")
         (stage / "summary.json").write_text(json_text(summary))
-        _save_fan(fc, stage / "fan_chart.png", unit=unit_from_args(args), target=args.target)
+        _save_fan(fc, stage / "fan_chart.png", unit=unit_from_args(args), target=args.target,
+                  scenario=scen)
         fit.to_netcdf(stage / "posterior.nc", fc.predictive_groups())
     for line in forecast_lines(fc, summary):
         print(line)
     for line in outlook_lines(fc, summary):  # time to target, band sources
         print(line)
+    if "scenario" in summary:
+        for line in scenario_lines(summary["scenario"], fc.levels):
+            print(line)
     if "recalibrated" in summary:
         print(recalibration_line(summary["recalibrated"]))
     for caution in summary["cautions"]:
@@ -148,7 +170,8 @@ def _run_forecast(args, series: GrowthSeries | None = None) -> int:
     return diagnostics_exit(args, fit.diagnostics.problems, args.out)
 
 
-def _save_fan(fc, path: Path, *, unit: str | None = None, target: float | None = None) -> None:
+def _save_fan(fc, path: Path, *, unit: str | None = None, target: float | None = None,
+              scenario=None) -> None:
     import matplotlib
 
     matplotlib.use("Agg")
@@ -157,6 +180,10 @@ def _save_fan(fc, path: Path, *, unit: str | None = None, target: float | None =
     from bayesgrowth.plots.fan import plot_fan
 
     ax = plot_fan(fc, unit=unit, target=target)
+    if scenario is not None:
+        from bayesgrowth.plots.scenario import draw_scenario
+
+        draw_scenario(ax, *scenario)
     ax.figure.savefig(path, dpi=110)
     plt.close(ax.figure)
 
