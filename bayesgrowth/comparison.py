@@ -15,10 +15,18 @@ import pandas as pd
 from bayesgrowth.display import fmt_interval, fmt_number, fmt_percent, html_summary, text_summary
 from bayesgrowth.forecast.forecast import Forecast
 from bayesgrowth.leastsq import GrowthFit, LeastSquaresError, fit_table, fit_variants
-from bayesgrowth.leastsq.curves import fit_curve
+from bayesgrowth.leastsq.curves import CURVE_NAMES, fit_curve
 
-#: Bending curves that also have a least-squares fit in :mod:`bayesgrowth.leastsq.curves`.
-CURVE_FITS = ("logistic", "gompertz", "damped")
+#: Bending curves that have a least-squares fit in :mod:`bayesgrowth.leastsq.curves`; a
+#: model family names its match in the registry (``ModelFamily.leastsq_curve``).
+CURVE_FITS = CURVE_NAMES
+
+
+def _leastsq_curve(fit) -> str | None:
+    """The least-squares curve matching the fit's model family, if it declares one."""
+    spec = getattr(fit, "spec", None)
+    curve = None if spec is None else spec.family.leastsq_curve
+    return curve if curve in CURVE_FITS else None
 
 
 @dataclass(frozen=True)
@@ -137,10 +145,11 @@ def compare_to_forecast(forecast: Forecast, *, max_drop: int | None = None) -> C
     series = forecast.fit.series
     t_ref = forecast.fit.priors.t_ref
     fits = fit_variants(series.t, series.values, t_ref=t_ref, max_drop=max_drop)
-    if forecast.fit.model in CURVE_FITS:
+    curve = _leastsq_curve(forecast.fit)
+    if curve is not None:
         # The same curve as the Bayesian model, fitted the way an analyst would.
         try:
-            fits.append(curve_variant(forecast.fit.model, series.t, series.values, t_ref))
+            fits.append(curve_variant(curve, series.t, series.values, t_ref))
         except LeastSquaresError:
             pass  # the table then holds the exponential variants only
     table = fit_table(fits, forecast.horizon, predictive_draws=forecast.draws[:, -1],

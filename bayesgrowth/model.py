@@ -31,8 +31,9 @@ class GrowthModel:
     ----------
     priors : Priors, optional
         Practitioner-scale priors; defaults documented in :mod:`bayesgrowth.priors`.
-    model : {"local-trend", "exponential", "damped", "logistic", "gompertz"}
-        The curve (see :mod:`bayesgrowth.models.spec`).
+    model : str
+        A registered model family (see :mod:`bayesgrowth.models.registry`):
+        ``"local-trend"``, ``"exponential"``, ``"damped"``, ``"logistic"``, ``"gompertz"``.
     drift : {"mean-reverting", "random-walk", "adaptive"}
         For the local trend: how its growth rate moves.
     seasonal : bool or "auto"

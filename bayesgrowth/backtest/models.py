@@ -14,7 +14,8 @@ Models are named in a short text form, ``BASE[/MODIFIER...]``:
 ``local-trend``
     The local trend whose growth rate drifts without fading.
 ``exponential``, ``damped``, ``logistic``, ``gompertz``
-    The growth curves of :mod:`bayesgrowth.models.spec`.
+    The growth curves, and any other family of :mod:`bayesgrowth.models.registry`
+    (under its name, with the options the family's ``named_options`` give).
 ``log-linear``, ``log-linear-anchored``, ``revenue-scale``, ``naive``
     The least-squares fits and the naive baseline (no modifiers).
 
@@ -48,15 +49,18 @@ __all__ = [
 #: The models a backtest compares unless told otherwise.
 DEFAULT_MODELS = ("default", "exponential", "log-linear")
 
-#: Model options each text base stands for (merged over :data:`DEFAULT_MODEL`).
-_CURVES = {
-    "default": {},
-    "local-trend": {"model": "local-trend", "drift": "random-walk"},
-    "exponential": {"model": "exponential"},
-    "damped": {"model": "damped"},
-    "logistic": {"model": "logistic"},
-    "gompertz": {"model": "gompertz"},
-}
+
+
+def _bases() -> dict[str, dict]:
+    """Model options each text base stands for (merged over :data:`DEFAULT_MODEL`).
+
+    ``default``, then every registered family under its name.
+    """
+    from bayesgrowth.models import registry
+
+    return {"default": {}, **{f.name: {"model": f.name, **f.named_options}
+                              for f in registry.families()}}
+
 #: What each modifier sets.
 _MODIFIERS = {
     "ar1": ("errors", "ar1"),
@@ -123,7 +127,7 @@ def _spec(options: Mapping):
 def _engine_for(name: str, options: dict, engine: str | None) -> str:
     """The engine of a Bayesian model: as asked, else exact where it covers the model."""
     spec = _spec(options)
-    covered = spec.is_plain_exponential or spec.is_state_space
+    covered = spec.exact_fits
     if engine is None:
         engine = "exact" if covered else "nuts"
     if engine == "exact" and not covered:
@@ -132,7 +136,7 @@ def _engine_for(name: str, options: dict, engine: str | None) -> str:
             f"errors) and the exponential curve with independent normal errors, not "
             f"{spec.label()}; use the nuts engine ({_nuts_name(name)})"
         )
-    if engine == "nuts" and spec.model == "local-trend" and spec.drift == "adaptive":
+    if engine == "nuts" and spec.adaptive:
         raise ValueError(f"model {name!r}: adaptive drift needs the exact engine")
     return engine
 
@@ -140,7 +144,7 @@ def _engine_for(name: str, options: dict, engine: str | None) -> str:
 def _nuts_name(name: str) -> str:
     """How to ask for the NUTS engine: the text name with ``/nuts``, or the dict key."""
     parts = name.split("/")
-    if parts[0] in _CURVES:
+    if parts[0] in _bases():
         return "/".join([p for p in parts if p != "exact"] + ["nuts"])
     return "engine='nuts' in its options"
 
@@ -156,7 +160,7 @@ def _from_options(name: str, given: Mapping) -> ModelChoice:
     if engine is not None and engine not in BAYESIAN:
         raise ValueError(f"model {name!r}: engine must be exact or nuts, got {engine!r}")
     try:
-        if _spec(options).model != "local-trend":
+        if not _spec(options).family.drifts:
             options.pop("drift")  # only the local trend's growth drifts
         return ModelChoice(name, _engine_for(name, options, engine), options)
     except ValueError as exc:
@@ -190,13 +194,14 @@ def parse_model(text: str) -> ModelChoice:
         if mods:
             raise ValueError(f"model {name!r}: {base} takes no modifiers")
         return ModelChoice(name, method)
-    if base not in _CURVES:
-        names = [*_CURVES, *(m for m in METHODS if m not in BAYESIAN and "," not in m),
+    bases = _bases()
+    if base not in bases:
+        names = [*bases, *(m for m in METHODS if m not in BAYESIAN and "," not in m),
                  "log-linear-anchored"]
         hint = " (name a model; the engine is a modifier, e.g. default/nuts)" if (
             base in BAYESIAN) else ""
         raise ValueError(f"unknown model {base!r}{hint}; choose from {', '.join(names)}")
-    options = dict(_CURVES[base])
+    options = dict(bases[base])
     for mod in mods:
         if mod not in _MODIFIERS:
             raise ValueError(f"model {name!r}: unknown modifier {mod!r}; choose from "
@@ -224,14 +229,14 @@ def label_for_options(options: Mapping) -> str:
     """
     spec = _spec({**DEFAULT_MODEL, **options})
     seasonal = options.get("seasonal", DEFAULT_MODEL["seasonal"])
-    if spec.model == "local-trend":
-        base = {"mean-reverting": "default", "random-walk": "local-trend",
-                "adaptive": "default/adaptive"}[spec.drift]
-    else:
-        base = spec.model
+    family = spec.family
+    base = spec.model
+    if spec.model == DEFAULT_MODEL["model"] and family.drifts and (
+            spec.drift != family.named_options.get("drift")):
+        base = "default" if spec.drift == DEFAULT_MODEL["drift"] else f"default/{spec.drift}"
     mods = [m for m, on in (("ar1", spec.errors == "ar1"), ("student-t", spec.noise != "normal"),
                             ("seasonal", seasonal is True),
-                            ("no-seasons", seasonal is False and spec.model == "local-trend"))
+                            ("no-seasons", seasonal is False and family.auto_seasonal))
             if on]
     return "/".join([base, *mods])
 

@@ -103,10 +103,18 @@ class BatchSettings:
         if self.engine != "nuts" or self.padded_length <= 0:
             return False
         from bayesgrowth.inference.refit import supports
+        from bayesgrowth.models import exponential
+        from bayesgrowth.models.spec import ModelSpec
 
-        plain = {"model": "exponential", "errors": "independent", "noise": "normal",
-                 "seasonal": False}
-        if any(self.model_options.get(k, v) != v for k, v in plain.items()):
+        plain = ("model", "errors", "noise", "seasonal")
+        if self.model_options.get("seasonal", False) not in (False,):
+            return False
+        try:  # the compiled model is the exponential family's plain model
+            spec = ModelSpec(**{k: self.model_options[k] for k in plain
+                                if k in self.model_options})
+        except ValueError:
+            return False
+        if spec.family is not exponential.FAMILY or not spec.is_plain_exponential:
             return False
         extra = {k: v for k, v in self.model_options.items() if k not in plain and k != "drift"}
         return supports(extra)

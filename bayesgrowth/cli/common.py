@@ -86,7 +86,26 @@ def add_input(p: argparse.ArgumentParser) -> None:
 
 
 def add_model_options(p: argparse.ArgumentParser, *, horizon_required: bool = True) -> None:
-    """Horizon, engine, seed, band levels, sampler size and the prior options."""
+    """Horizon, engine, seed, band levels, sampler size, the model and the prior options."""
+    _add_run_options(p, horizon_required)
+    _add_model_choice(p)
+    g = p.add_argument_group("priors (see docs/user-guide.md)")
+    _add_common_priors(g)
+    _add_curve_priors(g)
+    p.add_argument("--quiet", action="store_true", help="no progress output")
+    add_accept_option(p)
+
+
+def model_choices() -> tuple[str, ...]:
+    """``--model`` choices: the registered families, the default first."""
+    from bayesgrowth.models import registry
+
+    default = DEFAULT_MODEL["model"]
+    return (default, *(n for n in registry.names() if n != default))
+
+
+def _add_run_options(p: argparse.ArgumentParser, horizon_required: bool) -> None:
+    """Horizon, engine, seed, band levels and sampler settings."""
     p.add_argument(
         "--horizon",
         "-H",
@@ -120,10 +139,14 @@ def add_model_options(p: argparse.ArgumentParser, *, horizon_required: bool = Tr
                    "series of 6 points or fewer, else 0.9]")
     p.add_argument("--cores", type=_positive_int, default=1, metavar="N",
                    help="nuts: chains sampled in parallel, up to the cores available [1]")
+
+
+def _add_model_choice(p: argparse.ArgumentParser) -> None:
+    """The model family and its options: errors, noise, seasons, drift."""
     m = p.add_argument_group("model (see docs/growth-curves.md)")
     m.add_argument(
         "--model",
-        choices=("local-trend", "exponential", "damped", "logistic", "gompertz"),
+        choices=model_choices(),
         default=DEFAULT_MODEL["model"],
         help="growth model. local-trend (default): level and growth rate move over time; its "
         "bands held close to their stated coverage on real competition series. exponential: "
@@ -161,7 +184,10 @@ def add_model_options(p: argparse.ArgumentParser, *, horizon_required: bool = Tr
         "it drifts without fading; adaptive: either, weighted by the evidence (exact engine) "
         f"[{DEFAULT_MODEL['drift']}]",
     )
-    g = p.add_argument_group("priors (see docs/user-guide.md)")
+
+
+def _add_common_priors(g) -> None:
+    """Priors every model has: initial value, growth, noise."""
     g.add_argument(
         "--initial-give-or-take",
         type=float,
@@ -203,6 +229,10 @@ def add_model_options(p: argparse.ArgumentParser, *, horizon_required: bool = Tr
         metavar="PCT",
         help="typical deviation from trend in percent (half-normal scale) [30]",
     )
+
+
+def _add_curve_priors(g) -> None:
+    """Priors of the bending curves: ceiling and half-life of growth."""
     g.add_argument(
         "--ceiling",
         type=float,
@@ -239,8 +269,6 @@ def add_model_options(p: argparse.ArgumentParser, *, horizon_required: bool = Tr
         metavar="F",
         help="spread of the half-life prior: within a factor of F [3]",
     )
-    p.add_argument("--quiet", action="store_true", help="no progress output")
-    add_accept_option(p)
 
 
 def say(args, message: str) -> None:
@@ -318,8 +346,8 @@ def spec_from_options(options: dict):
 
 
 def exact_covers(spec) -> bool:
-    """Whether the exact engine fits ``spec``."""
-    return spec.is_plain_exponential or spec.is_state_space
+    """Whether the exact engine fits ``spec`` (declared by its family in the registry)."""
+    return spec.exact_fits
 
 
 def exact_refusal(spec, option: str = "--engine") -> str:
@@ -340,7 +368,7 @@ def checked_model_options(args, engines, option: str = "--engine") -> dict:
     spec = spec_from_options(options)
     if "exact" in engines and not exact_covers(spec):
         raise UsageError(exact_refusal(spec, option))
-    if "nuts" in engines and spec.drift == "adaptive" and spec.model == "local-trend":
+    if "nuts" in engines and spec.adaptive:
         raise UsageError(
             f"{option}: --drift adaptive needs the exact engine (it weighs drifting and fading "
             "growth by their exact evidence); with nuts choose --drift random-walk or "

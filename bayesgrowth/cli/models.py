@@ -34,10 +34,16 @@ CURVE_CAUTION = (
 )
 
 
-#: Curves left out unless named. The local trend's NUTS fit is the slowest; it took minutes
-#: until its coefficients were integrated out, and takes about 10-25 s on the demo now.
-#: Whether to include it by default is an open question (see docs/choosing-models.md).
-SLOW_BY_DEFAULT = ("local-trend",)
+def slow_by_default() -> tuple[str, ...]:
+    """Curves left out unless named: the families that do not declare ``compare_by_default``.
+
+    The local trend's NUTS fit is the slowest; it took minutes until its
+    coefficients were integrated out, and takes about 10-25 s on the demo now.
+    Whether to include it by default is an open question (see docs/choosing-models.md).
+    """
+    from bayesgrowth.models import registry
+
+    return tuple(f.name for f in registry.families() if not f.compare_by_default)
 
 
 def add_parser(sub) -> None:
@@ -67,10 +73,17 @@ def add_parser(sub) -> None:
         default=None,
         metavar="LIST",
         help=f"comma-separated curves to compare, from {available} [all but "
-        f"{', '.join(SLOW_BY_DEFAULT)}]. With --engine exact the exponential curve and the "
-        "local trend use the exact engine and the others NUTS",
+        f"{', '.join(slow_by_default())}]. With --engine exact the curves an exact engine "
+        f"fits ({', '.join(exact_families())}) use it and the others NUTS",
     )
     p.set_defaults(run=run)
+
+
+def exact_families() -> tuple[str, ...]:
+    """The families an exact engine fits (with independent normal errors)."""
+    from bayesgrowth.models import registry
+
+    return tuple(f.name for f in registry.families() if f.exact_engine is not None)
 
 
 def _model_list(text: str | None) -> list[str]:
@@ -79,7 +92,7 @@ def _model_list(text: str | None) -> list[str]:
 
     known = registered_models()
     if text is None:
-        return [m for m in known if m not in SLOW_BY_DEFAULT]
+        return [m for m in known if m not in slow_by_default()]
     names = []
     for raw in text.split(","):
         raw = raw.strip()
@@ -122,15 +135,15 @@ def _check_models(names: list[str], series, priors, spec_options: dict, engine: 
                 season_index(series.axis, series.t)
         except ValueError as exc:
             raise UsageError(f"--models {name}: {exc}") from None
-        if engine == "nuts" and spec.model == "local-trend" and spec.drift == "adaptive":
+        if engine == "nuts" and spec.adaptive:
             raise UsageError(
-                "--models local-trend with --engine nuts: --drift adaptive needs the exact "
+                f"--models {name} with --engine nuts: --drift adaptive needs the exact "
                 "engine; choose --drift random-walk or mean-reverting, or --engine exact"
             )
-        if spec.model == "local-trend" and resolved.t_ref != int(series.t[0]):
+        if spec.family.states and resolved.t_ref != int(series.t[0]):
             raise UsageError(
-                "--models local-trend: the local trend anchors its level at the first "
-                "observation; leave --reference-period unset or drop local-trend"
+                f"--models {name}: the {name} model anchors its level at the first "
+                f"observation; leave --reference-period unset or drop {name}"
             )
 
 
@@ -168,7 +181,7 @@ def run(args) -> int:
     start = time.monotonic()
 
     def progress(name):
-        how = "exact" if engine == "auto" and name in ("exponential", "local-trend") else "nuts"
+        how = "exact" if engine == "auto" and name in exact_families() else "nuts"
         say(args, f"fitting {name} ({how} engine) to {series.name} ... "
                   f"[{time.monotonic() - start:.0f} s]")
 

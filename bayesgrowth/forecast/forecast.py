@@ -30,14 +30,22 @@ CAUTION = (
 HORIZON_SHARE = 0.5
 
 
-def extrapolation_caution(n_history_periods: int, horizon: int) -> str | None:
-    """Explain the extra risk of a horizon long relative to the history, or ``None``."""
+def extrapolation_caution(
+    n_history_periods: int, horizon: int, *, saturates: bool = False
+) -> str | None:
+    """Explain the extra risk of a horizon long relative to the history, or ``None``.
+
+    ``saturates``: the model has a ceiling (``ModelFamily.ceiling`` in the model
+    registry), so the caution does not say it ignores saturation.
+    """
     if horizon > HORIZON_SHARE * n_history_periods:
+        ignored = ("competition and shocks" if saturates
+                   else "saturation, competition and shocks")
         return (
             f"The horizon ({horizon} periods) is more than half the history "
             f"({n_history_periods} periods). The growth curve is extrapolated far beyond the "
-            "data: the bands assume growth continues on the same curve, which ignores "
-            "saturation, competition and shocks, so treat the later periods as scenarios."
+            f"data: the bands assume growth continues on the same curve, which ignores "
+            f"{ignored}, so treat the later periods as scenarios."
         )
     return None
 
@@ -47,6 +55,12 @@ def check_horizon(horizon) -> int:
     if int(horizon) != horizon or horizon < 1:
         raise ValueError(f"horizon must be a whole number of periods >= 1, got {horizon}")
     return int(horizon)
+
+
+def saturates(fit) -> bool:
+    """Whether the fit's model family has a ceiling (declared in the model registry)."""
+    spec = getattr(fit, "spec", None)
+    return bool(spec is not None and spec.family.ceiling)
 
 
 def band_columns(draws: np.ndarray, levels, prefix: str = "") -> dict:
@@ -235,7 +249,8 @@ class Forecast:
     def caution(self) -> str | None:
         """The extrapolation caution for this horizon, if it applies."""
         s = self.fit.series
-        return extrapolation_caution(s.t_last - int(s.t[0]) + 1, self.horizon)
+        return extrapolation_caution(s.t_last - int(s.t[0]) + 1, self.horizon,
+                                     saturates=saturates(self.fit))
 
     def summary(self, target: float | None = None, target_probability: float = 0.5) -> dict:
         """A JSON-ready summary: parameters, growth, diagnostics, provenance, cautions."""

@@ -323,9 +323,9 @@ def prior_predictive(
         season_index(series.axis, series.t)
     seed = secrets.randbits(32) if seed is None else int(seed)
     resolved = (priors or Priors()).resolve(series)
-    if spec.model == "local-trend" and resolved.t_ref != int(series.t[0]):
+    if spec.family.states and resolved.t_ref != int(series.t[0]):
         raise ValueError(
-            "the local-trend model anchors its level at the first observation; "
+            f"the {spec.model} model anchors its level at the first observation; "
             "leave the reference period unset"
         )
     params, used = sample_prior(spec, resolved, series, draws=draws, seed=seed, sampler=sampler)
@@ -337,7 +337,7 @@ def prior_predictive(
         curve = exponential.log_mean(params, t, t_ref)
     else:
         curve = general.log_trend(spec, params, t, t_ref, series.axis)
-        if spec.model == "local-trend":
+        if spec.family.states:
             curve = curve + _local_trend_shocks(spec, params, t.size, rng)
         log_values = curve + _prior_errors(spec, params, curve.shape, rng)
     with np.errstate(over="ignore"):

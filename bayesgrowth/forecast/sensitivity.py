@@ -103,7 +103,7 @@ def _grid(base: Priors, spec: ModelSpec, anchors, centres, spreads, ceilings) ->
     add("growth spread", spreads, base.growth.give_or_take_pts,
         lambda v: r(base, growth=r(base.growth, give_or_take_pts=v)),
         lambda v: f"give or take {v:g} points")
-    if spec.model in ("logistic", "gompertz"):
+    if spec.family.ceiling:  # declared in the model registry
         if base.ceiling.value is None:
             add("ceiling", ceilings, base.ceiling.multiple,
                 lambda v: r(base, ceiling=CeilingPrior(

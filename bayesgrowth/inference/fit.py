@@ -122,7 +122,7 @@ class Fit:
         (``K``) and ``half_life`` for the curves that have them.
         """
         d = self.flat()
-        if self.spec.model == "exponential":
+        if not self.spec.family.bends:  # growth is log1p_g throughout
             g = np.expm1(d["log1p_g"])
         elif "latest_log_growth" in self.extra:
             g = np.expm1(self.extra["latest_log_growth"].reshape(-1))

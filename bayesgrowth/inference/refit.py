@@ -311,7 +311,7 @@ def _full_key(spec, resolved: ResolvedPriors) -> tuple:
     multiple; it counts only for the curves that have a ceiling.
     """
     skip = {"stated", "reference_period"}
-    if spec.model not in ("logistic", "gompertz"):
+    if not spec.family.ceiling:
         skip |= {"log_k_mu", "log_k_sd"}
     return tuple((f.name, getattr(resolved, f.name)) for f in dataclasses.fields(resolved)
                  if f.name not in skip)

@@ -40,8 +40,10 @@ def fit_series(
         Defaults documented in :mod:`bayesgrowth.priors`.
     seed : int, optional
         A fresh seed is drawn (and recorded in the result) when omitted.
-    model : {"exponential", "damped", "logistic", "gompertz", "local-trend"}
-        The curve (see :mod:`bayesgrowth.models.spec`).
+    model : str
+        A registered model family (see :mod:`bayesgrowth.models.registry`):
+        ``"exponential"``, ``"damped"``, ``"logistic"``, ``"gompertz"``,
+        ``"local-trend"``.
     errors : {"independent", "ar1"}
         Whether deviations from the curve persist (AR(1) on the log scale).
     noise : {"normal", "student-t"}
@@ -65,13 +67,13 @@ def fit_series(
         raise ValueError(f"engine must be one of {', '.join(ENGINES)}, got {engine!r}")
     seasonal = resolve_seasonal(seasonal, series.axis, series.t, model)
     spec = ModelSpec(model=model, errors=errors, noise=noise, seasonal=seasonal, drift=drift)
-    if engine == "exact" and not (spec.is_plain_exponential or spec.is_state_space):
+    if engine == "exact" and not spec.exact_fits:
         raise ValueError(
             f"engine='exact' covers the local trend (normal noise, independent errors) and the "
             f"exponential model with independent normal errors and no seasonal factors, not "
             f"{spec.label()}; use engine='nuts'"
         )
-    if engine == "nuts" and spec.drift == "adaptive" and spec.model == "local-trend":
+    if engine == "nuts" and spec.adaptive:
         raise ValueError(
             "drift='adaptive' averages drifting and fading growth by their exact evidence, "
             "which only the exact engine computes; use engine='exact', or drift='random-walk' "
@@ -83,9 +85,9 @@ def fit_series(
         season_index(series.axis, series.t)  # refuses calendars without seasons
     seed = secrets.randbits(32) if seed is None else int(seed)
     resolved = (priors or Priors()).resolve(series)
-    if spec.model == "local-trend" and resolved.t_ref != int(series.t[0]):
+    if spec.family.states and resolved.t_ref != int(series.t[0]):
         raise ValueError(
-            "the local-trend model anchors its level at the first observation; "
+            f"the {spec.model} model anchors its level at the first observation; "
             "leave the reference period unset"
         )
     if engine == "exact":

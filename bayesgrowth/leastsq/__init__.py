@@ -15,11 +15,10 @@ from bayesgrowth.leastsq.fits import (
     fit_line,
     fit_log_linear,
     fit_log_linear_anchored,
-    fit_revenue_scale,
-    fit_revenue_scale_anchored,
 )
 from bayesgrowth.leastsq.intervals import log_linear_intervals, log_linear_predictive
 from bayesgrowth.leastsq.nls import LeastSquaresError, NonlinearFit, fit_nonlinear
+from bayesgrowth.leastsq.revenue import fit_revenue_scale, fit_revenue_scale_anchored
 from bayesgrowth.leastsq.windows import drop_first_fits, drop_last_fits, leave_one_out_fits
 
 __all__ = [

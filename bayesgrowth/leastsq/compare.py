@@ -12,10 +12,9 @@ from bayesgrowth.leastsq.fits import (
     check_series,
     fit_log_linear,
     fit_log_linear_anchored,
-    fit_revenue_scale,
-    fit_revenue_scale_anchored,
 )
 from bayesgrowth.leastsq.intervals import check_levels, level_name
+from bayesgrowth.leastsq.revenue import fit_revenue_scale, fit_revenue_scale_anchored
 from bayesgrowth.leastsq.windows import drop_first_fits, drop_last_fits, leave_one_out_fits
 
 __all__ = ["TABLE_COLUMNS", "compare_fits", "fit_table", "fit_variants", "forecast_spread"]

@@ -5,11 +5,15 @@ is the value at the reference period ``t_ref`` and ``g`` the growth per period.
 Four ways of fitting it are offered, the ones practitioners commonly use:
 
 * :func:`fit_log_linear` -- ordinary least squares of ``log R`` on ``t``.
-* :func:`fit_revenue_scale` -- nonlinear least squares on the original scale.
+* :func:`~bayesgrowth.leastsq.revenue.fit_revenue_scale` -- nonlinear least
+  squares on the original scale.
 * :func:`fit_log_linear_anchored` -- ``a`` fixed to the observed value at
   ``t_ref``, slope through that point on the log scale.
-* :func:`fit_revenue_scale_anchored` -- ``a`` fixed likewise, ``g`` fitted on
-  the original scale.
+* :func:`~bayesgrowth.leastsq.revenue.fit_revenue_scale_anchored` -- ``a`` fixed
+  likewise, ``g`` fitted on the original scale.
+
+This module holds the fit result and the log-scale fits;
+:mod:`bayesgrowth.leastsq.revenue` the fits on the original scale.
 """
 
 from __future__ import annotations
@@ -18,7 +22,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from bayesgrowth.leastsq.nls import LeastSquaresError, fit_nonlinear
+from bayesgrowth.leastsq.line import MIN_POINTS, LineFit, fit_line
 
 __all__ = [
     "GrowthFit",
@@ -27,103 +31,7 @@ __all__ = [
     "fit_line",
     "fit_log_linear",
     "fit_log_linear_anchored",
-    "fit_revenue_scale",
-    "fit_revenue_scale_anchored",
 ]
-
-MIN_POINTS = 3
-
-
-@dataclass(frozen=True)
-class LineFit:
-    """Ordinary least-squares straight line ``z = intercept + slope * x``.
-
-    Attributes
-    ----------
-    intercept, slope : float
-        Estimates.
-    intercept_se, slope_se : float
-        Their standard errors.
-    covariance : float
-        Estimated covariance of intercept and slope.
-    residual_sd : float
-        Residual standard deviation, ``sqrt(SSE / (n - 2))``.
-    r_squared : float
-        Coefficient of determination, ``1 - SSE / SST`` (NaN when ``z`` is constant).
-    n : int
-        Number of observations.
-    dof : int
-        Residual degrees of freedom, ``n - 2``.
-    x_mean, sxx : float
-        Mean of ``x`` and ``sum((x - x_mean)**2)``.
-    """
-
-    intercept: float
-    slope: float
-    intercept_se: float
-    slope_se: float
-    covariance: float
-    residual_sd: float
-    r_squared: float
-    n: int
-    dof: int
-    x_mean: float
-    sxx: float
-
-
-def fit_line(x: np.ndarray, z: np.ndarray) -> LineFit:
-    """Fit a straight line by ordinary least squares.
-
-    Centred sums are used throughout, which keeps the result accurate when
-    ``x`` sits far from zero.
-
-    Parameters
-    ----------
-    x, z : numpy.ndarray
-        Predictor and response, 1-D, same length, at least 3 points and at
-        least two distinct ``x`` values.
-
-    Returns
-    -------
-    LineFit
-        Estimates, standard errors and residual statistics.
-    """
-    x = np.asarray(x, dtype=float)
-    z = np.asarray(z, dtype=float)
-    if x.ndim != 1 or x.shape != z.shape:
-        raise ValueError("x and z must be one-dimensional arrays of the same length")
-    n = x.size
-    if n < MIN_POINTS:
-        raise ValueError(f"a line fit needs at least {MIN_POINTS} points, got {n}")
-    x_mean = float(np.mean(x))
-    z_mean = float(np.mean(z))
-    dx = x - x_mean
-    dz = z - z_mean
-    sxx = float(dx @ dx)
-    if sxx == 0.0:
-        raise ValueError("all x values are equal; the slope is not defined")
-    slope = float(dx @ dz) / sxx
-    intercept = z_mean - slope * x_mean
-    resid = dz - slope * dx
-    sse = float(resid @ resid)
-    sst = float(dz @ dz)
-    dof = n - 2
-    s2 = sse / dof
-    var_slope = s2 / sxx
-    var_intercept = s2 * (1.0 / n + x_mean**2 / sxx)
-    return LineFit(
-        intercept=intercept,
-        slope=slope,
-        intercept_se=float(np.sqrt(var_intercept)),
-        slope_se=float(np.sqrt(var_slope)),
-        covariance=-x_mean * var_slope,
-        residual_sd=float(np.sqrt(s2)),
-        r_squared=1.0 - sse / sst if sst > 0 else float("nan"),
-        n=n,
-        dof=dof,
-        x_mean=x_mean,
-        sxx=sxx,
-    )
 
 
 @dataclass(frozen=True)
@@ -412,147 +320,4 @@ def fit_log_linear_anchored(
         rmse=_rmse(y, fitted),
         t_used=tuple(float(v) for v in t),
         log_scale=stats,
-    )
-
-
-def _curve(s: np.ndarray, params: np.ndarray) -> np.ndarray:
-    return params[0] * np.exp(params[1] * s)
-
-
-def _curve_jac(s: np.ndarray, params: np.ndarray) -> np.ndarray:
-    e = np.exp(params[1] * s)
-    return np.column_stack([e, params[0] * s * e])
-
-
-def _finish_revenue_fit(
-    t: np.ndarray,
-    y: np.ndarray,
-    t_ref: float,
-    t_last: float | None,
-    variant: str,
-    a: float,
-    log_growth: float,
-    converged: bool,
-    message: str,
-) -> GrowthFit:
-    if not converged or not (np.isfinite(a) and np.isfinite(log_growth)):
-        raise LeastSquaresError(
-            f"the {variant} fit did not converge ({message}); "
-            "try more function evaluations or check the data"
-        )
-    fitted = a * np.exp(log_growth * (t - t_ref))
-    return GrowthFit(
-        variant=variant,
-        n_points=int(t.size),
-        initial_value=float(a),
-        growth_per_period=float(np.expm1(log_growth)),
-        t_ref=t_ref,
-        t_last=_resolve_t_last(t, t_last),
-        r_squared=_r_squared(y, fitted),
-        rmse=_rmse(y, fitted),
-        t_used=tuple(float(v) for v in t),
-    )
-
-
-def fit_revenue_scale(
-    t: np.ndarray,
-    y: np.ndarray,
-    *,
-    t_ref: float | None = None,
-    t_last: float | None = None,
-    max_nfev: int | None = None,
-    variant: str = "revenue-scale",
-) -> GrowthFit:
-    """Fit the growth curve by nonlinear least squares on the original scale.
-
-    Minimises ``sum((y - a * (1 + g) ** (t - t_ref))**2)``, starting from the
-    log-linear solution. Internally the curve is written ``a * exp(b s)`` with
-    ``b = log(1 + g)``, which keeps ``g > -1``.
-
-    Parameters
-    ----------
-    t : numpy.ndarray
-        Periods of the observations, strictly increasing (gaps allowed).
-    y : numpy.ndarray
-        Observed values, all greater than zero; at least 3 of them.
-    t_ref : float, optional
-        Reference period of the initial value; default ``t[0]``.
-    t_last : float, optional
-        Period horizons are counted from; default ``t[-1]``.
-    max_nfev : int, optional
-        Largest number of model evaluations the solver may use.
-    variant : str, optional
-        Label stored in the result.
-
-    Returns
-    -------
-    GrowthFit
-        The fit (``log_scale`` is None).
-
-    Raises
-    ------
-    LeastSquaresError
-        If the solver fails or does not converge.
-    """
-    t, y, t_ref = check_series(t, y, t_ref)
-    start = fit_log_linear(t, y, t_ref=t_ref)
-    p0 = np.array([start.initial_value, np.log1p(start.growth_per_period)])
-    result = fit_nonlinear(_curve, t - t_ref, y, p0, jac=_curve_jac, max_nfev=max_nfev)
-    a, b = result.params
-    return _finish_revenue_fit(t, y, t_ref, t_last, variant, a, b, result.converged, result.message)
-
-
-def fit_revenue_scale_anchored(
-    t: np.ndarray,
-    y: np.ndarray,
-    *,
-    t_ref: float | None = None,
-    t_last: float | None = None,
-    max_nfev: int | None = None,
-    variant: str = "revenue-scale, anchored",
-) -> GrowthFit:
-    """Fit the growth rate on the original scale with ``a`` fixed to the value at ``t_ref``.
-
-    Minimises ``sum((y - y_ref * (1 + g) ** (t - t_ref))**2)`` over ``g``,
-    starting from the anchored log-linear slope.
-
-    Parameters
-    ----------
-    t : numpy.ndarray
-        Periods of the observations, strictly increasing; one must equal ``t_ref``.
-    y : numpy.ndarray
-        Observed values, all greater than zero; at least 3 of them.
-    t_ref : float, optional
-        Reference (anchor) period; default ``t[0]``.
-    t_last : float, optional
-        Period horizons are counted from; default ``t[-1]``.
-    max_nfev : int, optional
-        Largest number of model evaluations the solver may use.
-    variant : str, optional
-        Label stored in the result.
-
-    Returns
-    -------
-    GrowthFit
-        The fit (``log_scale`` is None).
-
-    Raises
-    ------
-    LeastSquaresError
-        If the solver fails or does not converge.
-    """
-    t, y, t_ref = check_series(t, y, t_ref)
-    y_ref = _anchor_value(t, y, t_ref)
-    start = fit_log_linear_anchored(t, y, t_ref=t_ref)
-
-    def model(s: np.ndarray, params: np.ndarray) -> np.ndarray:
-        return y_ref * np.exp(params[0] * s)
-
-    def jac(s: np.ndarray, params: np.ndarray) -> np.ndarray:
-        return (y_ref * s * np.exp(params[0] * s))[:, None]
-
-    p0 = np.array([np.log1p(start.growth_per_period)])
-    result = fit_nonlinear(model, t - t_ref, y, p0, jac=jac, max_nfev=max_nfev)
-    return _finish_revenue_fit(
-        t, y, t_ref, t_last, variant, y_ref, result.params[0], result.converged, result.message
     )

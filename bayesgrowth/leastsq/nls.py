@@ -124,16 +124,7 @@ def fit_nonlinear(
         If the inputs or the model values at the start are not finite, there
         are fewer observations than parameters, or the solver fails outright.
     """
-    x = np.asarray(x, dtype=float)
-    y = np.asarray(y, dtype=float)
-    p0 = np.atleast_1d(np.asarray(p0, dtype=float))
-    if y.ndim != 1:
-        raise LeastSquaresError("y must be a one-dimensional array")
-    n, p = y.size, p0.size
-    if n < p:
-        raise LeastSquaresError(f"{n} observations cannot determine {p} parameters")
-    if not (np.all(np.isfinite(x)) and np.all(np.isfinite(y)) and np.all(np.isfinite(p0))):
-        raise LeastSquaresError("the data and starting values must all be finite numbers")
+    x, y, p0 = _checked_inputs(x, y, p0)
 
     def residuals(params: np.ndarray) -> np.ndarray:
         return model(x, params) - y
@@ -151,20 +142,32 @@ def fit_nonlinear(
 
     try:
         with np.errstate(over="ignore", invalid="ignore"):
-            result = least_squares(
-                residuals,
-                p0,
-                jac=solver_jac,
-                method="lm",
-                xtol=xtol,
-                ftol=ftol,
-                gtol=gtol,
-                max_nfev=max_nfev,
-            )
+            result = least_squares(residuals, p0, jac=solver_jac, method="lm", xtol=xtol,
+                                   ftol=ftol, gtol=gtol, max_nfev=max_nfev)
     except ValueError as exc:  # scipy reports bad input and non-finite steps this way
         raise LeastSquaresError(f"the least-squares solver failed: {exc}") from exc
+    return _finish(result, residuals, model, jac, x, y.size)
 
+
+def _checked_inputs(x, y, p0) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Float arrays of the data and starting values; refuses what cannot be fitted."""
+    x = np.asarray(x, dtype=float)
+    y = np.asarray(y, dtype=float)
+    p0 = np.atleast_1d(np.asarray(p0, dtype=float))
+    if y.ndim != 1:
+        raise LeastSquaresError("y must be a one-dimensional array")
+    n, p = y.size, p0.size
+    if n < p:
+        raise LeastSquaresError(f"{n} observations cannot determine {p} parameters")
+    if not (np.all(np.isfinite(x)) and np.all(np.isfinite(y)) and np.all(np.isfinite(p0))):
+        raise LeastSquaresError("the data and starting values must all be finite numbers")
+    return x, y, p0
+
+
+def _finish(result, residuals, model, jac, x, n: int) -> NonlinearFit:
+    """The fit from the solver's result: residual statistics and standard errors."""
     params = np.asarray(result.x, dtype=float)
+    p = params.size
     with np.errstate(over="ignore", invalid="ignore"):
         resid = residuals(params)
         rss = float(resid @ resid)

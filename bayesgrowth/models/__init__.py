@@ -1,37 +1,61 @@
-"""Growth curves. Each model gives the curve's math and builds its PyMC model.
+"""Growth models: one module per model family, each declared in the registry.
 
-:class:`~bayesgrowth.models.spec.ModelSpec` names a model (curve, errors, noise,
-seasonal factors); :mod:`bayesgrowth.models.general` holds the math of every
-model in NumPy and PyMC. The exponential module keeps its own functions
-(``PARAMETERS``, ``log_mean``, ``simulate_log``, ``log_likelihood``,
-``build_pymc_model``), which the exact engine builds on; :func:`get_model` finds
-it by name.
+:mod:`bayesgrowth.models.registry` holds the declarations
+(:class:`~bayesgrowth.models.registry.ModelFamily`): every family module
+(:mod:`~bayesgrowth.models.exponential`, :mod:`~bayesgrowth.models.damped`,
+:mod:`~bayesgrowth.models.logistic`, :mod:`~bayesgrowth.models.gompertz`,
+:mod:`~bayesgrowth.models.local_trend`) registers itself when imported here.
+:class:`~bayesgrowth.models.spec.ModelSpec` names a model (family, errors, noise,
+seasonal factors, drift); :mod:`bayesgrowth.models.general` holds the math every
+family shares (errors, noise, seasons) in NumPy and PyMC.
 """
 
-from types import ModuleType
+from importlib import import_module
 
-from bayesgrowth.models import exponential, general
-from bayesgrowth.models.spec import CURVES, DRIFTS, ERRORS, NOISES, ModelSpec, season_index
+from bayesgrowth.models import registry
+
+# Each family registers itself on import; this order is the order of every listing.
+FAMILY_MODULES = ("exponential", "damped", "logistic", "gompertz", "local_trend")
+for _module in FAMILY_MODULES:
+    import_module(f"bayesgrowth.models.{_module}")
+
+from bayesgrowth.models import (  # noqa: E402 - after the families registered
+    damped,
+    exponential,
+    general,
+    gompertz,
+    local_trend,
+    logistic,
+)
+from bayesgrowth.models.registry import ModelFamily, Parameter, get_family, register  # noqa: E402
+from bayesgrowth.models.spec import (  # noqa: E402
+    DRIFTS,
+    ERRORS,
+    NOISES,
+    ModelSpec,
+    season_index,
+)
 
 __all__ = [
-    "CURVES",
     "DRIFTS",
     "ERRORS",
-    "MODELS",
-    "NOISES",
+    "FAMILY_MODULES",
+    "ModelFamily",
     "ModelSpec",
+    "NOISES",
+    "Parameter",
+    "damped",
     "exponential",
     "general",
-    "get_model",
+    "get_family",
+    "gompertz",
+    "local_trend",
+    "logistic",
+    "model_names",
+    "register",
+    "registry",
     "season_index",
 ]
 
-MODELS: dict[str, ModuleType] = {"exponential": exponential}
-
-
-def get_model(name: str) -> ModuleType:
-    """The model module called ``name`` (e.g. ``"exponential"``)."""
-    try:
-        return MODELS[name]
-    except KeyError:
-        raise ValueError(f"model must be one of {', '.join(MODELS)}, got {name!r}") from None
+#: Names of the registered model families, in registration order.
+model_names = registry.names

@@ -2,17 +2,23 @@
 
 The curve is linear in its two coefficients ``(log a, log(1+g))``, which is what
 lets the exact engine integrate the posterior in closed form given ``sigma``.
-PyMC is imported only inside :func:`build_pymc_model`.
+:data:`FAMILY` declares the model to the registry; the functions below serve the
+exact engine and the plain model's NUTS fit. PyMC is imported only inside
+:func:`build_pymc_model`.
 """
 
 from __future__ import annotations
 
 import numpy as np
 
+from bayesgrowth.models.parameters import GROWTH
+from bayesgrowth.models.registry import ModelFamily, register
 from bayesgrowth.priors import ResolvedPriors
 
 __all__ = [
+    "FAMILY",
     "PARAMETERS",
+    "curve",
     "design_matrix",
     "log_mean",
     "simulate_log",
@@ -24,6 +30,31 @@ __all__ = [
 PARAMETERS = ("log_a", "log1p_g", "sigma")
 
 
+def curve(p: dict, dt, xp=np):
+    """Log of the curve at offsets ``dt`` from the reference period, NumPy or PyTensor ``xp``."""
+    return p["log_a"] + p["log1p_g"] * dt
+
+
+def design(dt, half_life=None, xp=np):
+    """Columns ``1`` (log a) and ``dt`` (log(1+g)) of the curve's linear coefficients."""
+    if xp is np:
+        dt = np.asarray(dt, dtype=float)
+        return np.column_stack([np.ones_like(dt), dt])
+    return xp.stack([xp.ones_like(dt), dt], axis=1)
+
+
+FAMILY = register(ModelFamily(
+    name="exponential",
+    summary="one fixed curve growing by the same percentage every period",
+    parameters=(GROWTH,),
+    log_mean=curve,
+    engines=("gaussian", "nuts"),
+    leastsq_curve=None,
+    linear="growth",
+    design=design,
+))
+
+
 def design_matrix(t: np.ndarray, t_ref: int) -> np.ndarray:
     """Columns ``[1, t - t_ref]`` of the log-linear model."""
     t = np.asarray(t, dtype=float)
@@ -33,7 +64,7 @@ def design_matrix(t: np.ndarray, t_ref: int) -> np.ndarray:
 def log_mean(draws: dict[str, np.ndarray], t: np.ndarray, t_ref: int) -> np.ndarray:
     """Log of the mean curve at times ``t`` for every draw, shape ``(n_draws, len(t))``."""
     dt = np.asarray(t, dtype=float) - t_ref
-    return draws["log_a"][:, None] + draws["log1p_g"][:, None] * dt[None, :]
+    return curve({k: draws[k][:, None] for k in ("log_a", "log1p_g")}, dt[None, :])
 
 
 def simulate_log(

@@ -43,6 +43,7 @@ import numpy as np
 from bayesgrowth.models.spec import ModelSpec, season_index
 
 __all__ = [
+    "COEFFICIENTS",
     "STAND_INS",
     "curve_design",
     "draw_curve_coefficients",
@@ -59,17 +60,23 @@ __all__ = [
 #: Variables sampled in place of a model parameter; dropped once the draws are complete.
 STAND_INS = ("log_ceiling_ratio",)
 
+#: The family parameters each scheme of ``ModelFamily.linear`` integrates out
+#: (besides the level ``log_a``); the family's other parameters are sampled.
+COEFFICIENTS = {"growth": ("log1p_g", "long_run"), "ceiling": ("log_k",), None: ()}
+
 
 def integrates_linear(spec: ModelSpec) -> bool:
     """Whether the PyMC model of ``spec`` integrates its linear coefficients out.
 
-    The local trend always does; the curves do with normal noise, except the
-    plain exponential model (independent errors, no seasons), whose
-    level-at-the-centre parameterisation already samples well.
+    Families with states (the local trend) always do; the families that declare a
+    linear scheme do with normal noise, except the plain exponential model
+    (independent errors, no seasons), whose level-at-the-centre parameterisation
+    already samples well.
     """
-    if spec.model == "local-trend":
+    if spec.family.states:
         return True
-    return spec.noise == "normal" and not spec.is_plain_exponential
+    return (spec.family.linear is not None and spec.noise == "normal"
+            and not spec.is_plain_exponential)
 
 
 def season_basis(m: int) -> np.ndarray:
@@ -93,7 +100,7 @@ def season_rows(spec: ModelSpec, axis, t) -> tuple[np.ndarray | None, int]:
 
 def uses_long_run(spec: ModelSpec) -> bool:
     """Whether the mean path has a long-run growth coefficient (growth that fades)."""
-    return spec.model == "damped" or spec.growth_fades
+    return "long_run" in spec.parameters()
 
 
 def linear_prior(spec: ModelSpec, priors, n_seasons: int = 0, *,
@@ -139,12 +146,12 @@ def prior_coefficients(spec: ModelSpec, priors, draws: dict, axis,
     theirs, so their prior draws are already in ``draws``.
     """
     n = np.asarray(draws["sigma"]).size
-    if spec.model in ("logistic", "gompertz"):
+    if spec.family.linear == "ceiling":
         kappa = np.asarray(draws["log_ceiling_ratio"], dtype=float)
         mean, var = level_given_ratio(priors, kappa)
         log_a = mean + math.sqrt(var) * rng.standard_normal(n)
         return {**draws, "log_a": log_a, "log_k": log_a + kappa}
-    seasons = spec.model == "local-trend"
+    seasons = spec.family.states
     m = season_count(spec, axis) if seasons else 0
     mu0, var0 = linear_prior(spec, priors, m, seasons=seasons)
     beta = mu0 + np.sqrt(var0) * rng.standard_normal((n, mu0.size))
@@ -152,27 +159,14 @@ def prior_coefficients(spec: ModelSpec, priors, draws: dict, axis,
 
 
 def curve_design(spec: ModelSpec, dt, half_life=None, xp=np):
-    """Design of the exponential or damped curve's linear coefficients at offsets ``dt``.
+    """Design of a ``"growth"`` family's linear coefficients at offsets ``dt``.
 
-    Columns ``1`` (log a), then ``dt`` (b) for the exponential curve, or ``f =
-    expm1(-lambda dt) / expm1(-lambda)`` (b) and ``dt - f`` (c) for the damped
-    curve with ``lambda = ln 2 / half_life``. With NumPy and ``half_life`` draws
-    ``(S,)`` the damped design is ``(S, n, 3)``.
+    The family's ``design``: columns ``1`` (log a), then ``dt`` (b) for the
+    exponential curve, or ``f`` (b) and ``dt - f`` (c) for the damped curve (see
+    :mod:`bayesgrowth.models.damped`). With NumPy and ``half_life`` draws ``(S,)``
+    the damped design is ``(S, n, 3)``.
     """
-    if xp is np:
-        dt = np.asarray(dt, dtype=float)
-        ones = np.ones_like(dt)
-        if spec.model == "exponential":
-            return np.column_stack([ones, dt])
-        lam = math.log(2.0) / np.asarray(half_life, dtype=float)[:, None]
-        f = np.expm1(-lam * dt) / np.expm1(-lam)
-        return np.stack([np.broadcast_to(ones, f.shape), f, dt - f], axis=-1)
-    ones = xp.ones_like(dt)
-    if spec.model == "exponential":
-        return xp.stack([ones, dt], axis=1)
-    lam = math.log(2.0) / half_life
-    f = xp.expm1(-lam * dt) / xp.expm1(-lam)
-    return xp.stack([ones, f, dt - f], axis=1)
+    return spec.family.design(dt, half_life, xp)
 
 
 def _whiten(spec: ModelSpec, v, sigma, phi, lag, xp, matrix: bool = False):
@@ -253,12 +247,12 @@ def level_given_ratio(priors, kappa):
 def curve_pieces(spec: ModelSpec, priors, dt, params: dict, xp=np):
     """Offset, design, prior means and variances of a curve's linear coefficients.
 
-    The log mean is ``offset + X beta``. For the exponential and damped curves
-    ``offset = 0`` and ``beta = (log a, b[, c])``; for the logistic and Gompertz
-    curves ``beta = (log a)`` and the offset is the curve's shape given
-    ``kappa = log K - log a`` and the half-life: ``kappa - log1p(expm1(kappa)
-    exp(-lambda dt))`` and ``kappa (1 - exp(-lambda dt))``. With NumPy, ``params``
-    hold draws ``(S,)`` and the results carry a leading draw axis.
+    The log mean is ``offset + X beta``. For the ``"growth"`` families (exponential,
+    damped) ``offset = 0`` and ``beta = (log a, b[, c])``; for the ``"ceiling"``
+    families (logistic, Gompertz) ``beta = (log a)`` and the offset is the family's
+    ``ceiling_offset``, the curve's shape given ``kappa = log K - log a`` and the
+    half-life. With NumPy, ``params`` hold draws ``(S,)`` and the results carry a
+    leading draw axis.
 
     Returns
     -------
@@ -266,7 +260,7 @@ def curve_pieces(spec: ModelSpec, priors, dt, params: dict, xp=np):
         ``var0`` is a NumPy vector; ``mu0`` is one too except for the ceiling
         curves, where it depends on ``kappa``.
     """
-    if spec.model in ("exponential", "damped"):
+    if spec.family.linear == "growth":
         mu0, var0 = linear_prior(spec, priors, seasons=False)
         x = curve_design(spec, dt, params.get("half_life"), xp=xp)
         return 0.0, x, mu0, var0
@@ -276,10 +270,7 @@ def curve_pieces(spec: ModelSpec, priors, dt, params: dict, xp=np):
         kappa, lam = np.asarray(kappa, dtype=float)[:, None], np.asarray(lam)[:, None]
         dt = np.asarray(dt, dtype=float)[None, :]
     decay = xp.exp(-lam * dt)
-    if spec.model == "logistic":
-        offset = kappa - xp.log1p(xp.expm1(kappa) * decay)
-    else:
-        offset = kappa * (1 - decay)
+    offset = spec.family.ceiling_offset(kappa, decay, xp)
     mean, var = level_given_ratio(priors, kappa[..., 0] if xp is np else kappa)
     ones = xp.ones_like(offset)[..., None]
     mu0 = mean[:, None] if xp is np else xp.stack([mean])
@@ -342,7 +333,7 @@ def draw_curve_coefficients(spec: ModelSpec, priors, draws: dict, t, log_y, axis
         mean = np.linalg.solve(np.swapaxes(chol, -1, -2), np.linalg.solve(chol, g[..., None]))
         eps = rng.standard_normal((n_draws, free.size, 1))
         beta[:, free] += (mean + np.linalg.solve(np.swapaxes(chol, -1, -2), eps))[..., 0]
-    if spec.model in ("logistic", "gompertz"):
+    if spec.family.linear == "ceiling":
         log_a = np.full(n_draws, priors.log_a_mu) if priors.fixed_initial else beta[:, 0]
         kappa = np.asarray(draws["log_ceiling_ratio"], dtype=float)
         return {**draws, "log_a": log_a, "log_k": log_a + kappa}

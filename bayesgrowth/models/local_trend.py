@@ -42,8 +42,17 @@ import math
 import numpy as np
 
 from bayesgrowth.models import linear
+from bayesgrowth.models.parameters import (
+    GROWTH,
+    HALF_LIFE,
+    LONG_RUN,
+    half_life_line,
+    long_run_line,
+)
+from bayesgrowth.models.registry import ModelFamily, Parameter, register
 
 __all__ = [
+    "FAMILY",
     "coefficients",
     "conditional_draws",
     "design",
@@ -324,3 +333,47 @@ def draw_linear(spec, priors, draws: dict, t, log_y, axis, rng: np.random.Genera
     beta = np.concatenate(out)
     return {**draws, **linear.split_coefficients(spec, beta, m, priors.fixed_initial,
                                                  priors.log_a_mu)}
+
+
+def _parameter_names(spec) -> tuple[str, ...]:
+    fades = spec.growth_fades
+    return ("log1p_g", *(("long_run",) if fades else ()), "sigma_level", "sigma_growth",
+            *(("rho", "half_life") if fades else ()))
+
+
+def _prior_lines(resolved, spec) -> list[str]:
+    lines = [long_run_line(resolved)] if spec.growth_fades else []
+    lines.append(
+        f"local trend: level shocks about {100 * math.expm1(resolved.level_shock_scale):.3g}%"
+        f" per period, growth drifts about {100 * resolved.growth_drift_scale:.3g} points "
+        f"per period ({spec.drift.replace('-', ' ')})"
+    )
+    if spec.growth_fades:
+        lines.append(half_life_line(resolved, "half-life of growth when it fades"))
+    return lines
+
+
+FAMILY = register(ModelFamily(
+    name="local-trend",
+    summary="level and growth rate move over time; growth may fade toward a long-run rate",
+    parameters=(
+        GROWTH,
+        LONG_RUN,
+        Parameter("sigma_level", "sd of the per-period shocks to the log level"),
+        Parameter("sigma_growth", "sd of the per-period change of the log growth rate"),
+        Parameter("rho", "per-period persistence of growth above the long-run rate"),
+        HALF_LIFE,
+    ),
+    log_mean=None,
+    prior_lines=_prior_lines,
+    engines=("state-space", "nuts"),
+    bends=True,
+    states=True,
+    spec_parameters=_parameter_names,
+    drifts=True,
+    named_options={"drift": "random-walk"},
+    auto_seasonal=True,
+    # its NUTS fit is the slowest: minutes until its coefficients were integrated out,
+    # about 10-25 s on the demo now (see docs/choosing-models.md)
+    compare_by_default=False,
+))

@@ -4,10 +4,11 @@ Every model has the form, on the log scale,
 
 ``log R_t = m_t + s_t + e_t``
 
-* ``m_t`` the **curve**: ``exponential`` (``log a + (t - t_ref) log(1+g)``),
-  ``damped`` (growth fades geometrically toward a long-run rate), ``logistic`` and
-  ``gompertz`` (growth toward a ceiling ``K``), or ``local-trend`` (a level that
-  follows a growth rate which itself drifts).
+* ``m_t`` the **curve**, one of the registered model families
+  (:mod:`bayesgrowth.models.registry`): ``exponential`` (``log a + (t - t_ref)
+  log(1+g)``), ``damped`` (growth fades geometrically toward a long-run rate),
+  ``logistic`` and ``gompertz`` (growth toward a ceiling ``K``), ``local-trend`` (a
+  level that follows a growth rate which itself drifts), and any family added later.
 * ``s_t`` optional **seasonal factors** for quarterly or monthly data, one per
   season, summing to zero (so they are multiplicative factors around the curve).
 * ``e_t`` the **errors**: ``independent``, or ``ar1`` (``e_t = phi e_{t-1} +
@@ -24,12 +25,12 @@ from dataclasses import asdict, dataclass
 
 import numpy as np
 
+from bayesgrowth.models import registry
+
 __all__ = [
-    "CURVES", "DRIFTS", "ERRORS", "NOISES", "ModelSpec", "resolve_seasonal", "season_index",
+    "DRIFTS", "ERRORS", "NOISES", "ModelSpec", "resolve_seasonal", "season_index",
 ]
 
-#: Curve names.
-CURVES = ("exponential", "damped", "logistic", "gompertz", "local-trend")
 #: Error structures.
 ERRORS = ("independent", "ar1")
 #: Noise distributions.
@@ -38,7 +39,6 @@ NOISES = ("normal", "student-t")
 DRIFTS = ("random-walk", "mean-reverting", "adaptive")
 
 _ALIASES = {
-    "local_trend": "local-trend",
     "student_t": "student-t",
     "studentt": "student-t",
     "t": "student-t",
@@ -55,6 +55,17 @@ def _choice(value: str, allowed: tuple[str, ...], what: str) -> str:
     return v
 
 
+def model_name(value: str) -> str:
+    """The registered model called ``value`` (case and ``_`` for ``-`` ignored).
+
+    Raises
+    ------
+    ValueError
+        Naming the registered models.
+    """
+    return _choice(str(value).replace("_", "-"), registry.names(), "model")
+
+
 @dataclass(frozen=True)
 class ModelSpec:
     """The model choice: curve, errors, noise, seasonal factors, and local-trend drift.
@@ -62,7 +73,8 @@ class ModelSpec:
     Parameters
     ----------
     model : str
-        One of :data:`CURVES` (``local_trend`` is accepted for ``local-trend``).
+        A registered model family (:func:`bayesgrowth.models.registry.names`);
+        ``local_trend`` is accepted for ``local-trend``.
     errors : {"independent", "ar1"}
     noise : {"normal", "student-t"}
     seasonal : bool
@@ -80,55 +92,59 @@ class ModelSpec:
     drift: str = "random-walk"
 
     def __post_init__(self) -> None:
-        object.__setattr__(self, "model", _choice(self.model, CURVES, "model"))
+        object.__setattr__(self, "model", model_name(self.model))
         object.__setattr__(self, "errors", _choice(self.errors, ERRORS, "errors"))
         object.__setattr__(self, "noise", _choice(self.noise, NOISES, "noise"))
         object.__setattr__(self, "drift", _choice(self.drift, DRIFTS, "drift"))
         object.__setattr__(self, "seasonal", bool(self.seasonal))
-        if self.model == "local-trend" and self.noise == "student-t":
+        if self.family.states and self.noise == "student-t":
             raise ValueError(
-                "the local-trend model integrates its states in closed form and needs normal "
+                f"the {self.model} model integrates its states in closed form and needs normal "
                 "noise; use noise='normal' with it, or Student-t noise with another curve"
             )
 
     @property
+    def family(self) -> registry.ModelFamily:
+        """The model family's declaration in the registry."""
+        return registry.get_family(self.model)
+
+    @property
     def is_plain_exponential(self) -> bool:
-        """The linear-Gaussian case the exact engine integrates in closed form."""
-        return (self.model, self.errors, self.noise, self.seasonal) == (
-            "exponential", "independent", "normal", False
+        """The linear-Gaussian case the exact Gaussian engine integrates in closed form."""
+        return "gaussian" in self.family.engines and (self.errors, self.noise, self.seasonal) == (
+            "independent", "normal", False
         )
-
-    @property
-    def mean_reverting(self) -> bool:
-        """A local trend whose growth rate reverts to a long-run rate."""
-        return self.model == "local-trend" and self.drift == "mean-reverting"
-
-    @property
-    def growth_fades(self) -> bool:
-        """A local trend whose growth may revert to a long-run rate (fading or adaptive)."""
-        return self.model == "local-trend" and self.drift in ("mean-reverting", "adaptive")
 
     @property
     def is_state_space(self) -> bool:
         """A linear-Gaussian state-space model the exact engine integrates (Kalman filter)."""
-        return (self.model, self.errors, self.noise) == ("local-trend", "independent", "normal")
+        return "state-space" in self.family.engines and (self.errors, self.noise) == (
+            "independent", "normal"
+        )
+
+    @property
+    def exact_fits(self) -> bool:
+        """Whether an exact engine (state-space or Gaussian) can fit this model."""
+        return self.is_plain_exponential or self.is_state_space
+
+    @property
+    def adaptive(self) -> bool:
+        """Drift weighted by its exact evidence, which only the exact engine computes."""
+        return self.family.drifts and self.drift == "adaptive"
+
+    @property
+    def mean_reverting(self) -> bool:
+        """A local trend whose growth rate reverts to a long-run rate."""
+        return self.family.drifts and self.drift == "mean-reverting"
+
+    @property
+    def growth_fades(self) -> bool:
+        """A local trend whose growth may revert to a long-run rate (fading or adaptive)."""
+        return self.family.drifts and self.drift in ("mean-reverting", "adaptive")
 
     def parameters(self) -> tuple[str, ...]:
         """Names of the scalar parameters in the posterior."""
-        names = ["log_a"]
-        if self.model in ("exponential", "damped", "local-trend"):
-            names.append("log1p_g")
-        if self.model in ("logistic", "gompertz"):
-            names.append("log_k")
-        if self.model in ("damped", "logistic", "gompertz"):
-            names.append("half_life")
-        if self.model == "damped" or self.growth_fades:
-            names.append("long_run")
-        if self.model == "local-trend":
-            names += ["sigma_level", "sigma_growth"]
-            if self.growth_fades:
-                names += ["rho", "half_life"]
-        names.append("sigma")
+        names = ["log_a", *self.family.parameter_names(self), "sigma"]
         if self.errors == "ar1":
             names.append("phi")
         if self.noise == "student-t":
@@ -141,8 +157,8 @@ class ModelSpec:
 
     def label(self) -> str:
         """A short description, e.g. ``"logistic, AR(1) errors, Student-t noise"``."""
-        parts = [self.model if self.model != "local-trend" or self.drift == "random-walk"
-                 else f"local-trend ({self.drift})"]
+        parts = [self.model if not self.family.drifts or self.drift == "random-walk"
+                 else f"{self.model} ({self.drift})"]
         parts.append("AR(1) errors" if self.errors == "ar1" else "independent errors")
         parts.append("Student-t noise" if self.noise == "student-t" else "normal noise")
         if self.seasonal:
@@ -179,9 +195,9 @@ def season_index(axis, t: np.ndarray) -> tuple[int, np.ndarray]:
 def resolve_seasonal(seasonal: bool | str, axis, t, model: str = "local-trend") -> bool:
     """Whether to fit seasonal factors; ``"auto"`` decides from the calendar.
 
-    ``"auto"`` means seasonal factors for the local trend when the calendar has
-    seasons and two full years are observed (the other curves add them only when
-    asked).
+    ``"auto"`` means seasonal factors for the families that allow it (the local
+    trend) when the calendar has seasons and two full years are observed (the
+    other curves add them only when asked).
 
     Parameters
     ----------
@@ -196,7 +212,7 @@ def resolve_seasonal(seasonal: bool | str, axis, t, model: str = "local-trend") 
         if seasonal.lower() != "auto":
             raise ValueError(f"seasonal must be true, false or 'auto', got {seasonal!r}")
         months = None if axis is None else axis.months_per_period
-        if _choice(model, CURVES, "model") != "local-trend":
+        if not registry.get_family(model_name(model)).auto_seasonal:
             return False
         if months not in (1, 3):
             return False

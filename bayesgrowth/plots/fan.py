@@ -39,7 +39,7 @@ def describe_model(forecast) -> str:
     if spec is None or not hasattr(spec, "label"):
         return str(getattr(forecast.fit, "engine", "forecast"))
     parts = spec.label().split(", ")
-    if parts[0] in ("exponential", "damped", "logistic", "gompertz"):
+    if not spec.family.states:  # one fitted curve (not a local trend)
         parts[0] = f"{parts[0]} growth curve"
     return ", ".join(parts)
 
@@ -52,7 +52,7 @@ def fitted_curve(forecast) -> np.ndarray | None:
     """
     fit = forecast.fit
     spec = getattr(fit, "spec", None)
-    if spec is None or getattr(spec, "model", None) == "local-trend":
+    if spec is None or spec.family.states:
         return None
     from bayesgrowth.models import exponential, general
 

@@ -18,7 +18,7 @@ from datetime import UTC, datetime
 import pandas as pd
 
 from bayesgrowth._version import __version__
-from bayesgrowth.forecast.forecast import CAUTION, Forecast
+from bayesgrowth.forecast.forecast import CAUTION, Forecast, saturates
 from bayesgrowth.report.outlook import outlook_html
 from bayesgrowth.report.words import (
     band_phrases,
@@ -213,7 +213,7 @@ def _forecast_table(fc: Forecast) -> str:
 def _fan_caption(p: ReportParts) -> str:
     spec = getattr(p.forecast.fit, "spec", None)
     fitted = (" the fitted curve over the history (dashed, with its band)," if spec is not None
-              and spec.model != "local-trend" else "")
+              and not spec.family.states else "")
     target = (" The dash-dotted line is the target." if p.target is not None else "")
     return ("Observed history (dark line with dots)," + fitted + " the forecast median (thick "
             "teal line) and its credible bands (nested shades: darker = narrower); the vertical "
@@ -303,10 +303,18 @@ def _diagnostics(summary: dict) -> str:
     return status + _table(rows, {"Value": _e})
 
 
+def _extrapolation_item(p: ReportParts) -> str:
+    """The extrapolation caution; a curve with a ceiling does model saturation."""
+    if saturates(p.forecast.fit):
+        return ("Extrapolation: the forecast carries past growth forward on a fitted curve "
+                "toward its ceiling. Competition and shocks are not in the model.")
+    return ("Extrapolation: the forecast carries past growth forward on a fitted curve. "
+            "Saturation, competition and shocks are not in the model.")
+
+
 def _cautions(p: ReportParts, summary: dict) -> str:
     items = [c for c in summary["cautions"] if c != CAUTION]
-    items.append("Extrapolation: the forecast carries past growth forward on a fitted curve. "
-                 "Saturation, competition and shocks are not in the model.")
+    items.append(_extrapolation_item(p))
     items.append("Calibration evidence from a short history is weak: a backtest on a few "
                  "origins cannot prove bands honest, only show when they were not.")
     items.append("This report is not investment advice. It supports a judgement; it does not "

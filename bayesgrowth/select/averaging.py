@@ -36,16 +36,12 @@ __all__ = [
 def registered_models() -> tuple[str, ...]:
     """Names of the curves that :func:`~bayesgrowth.inference.fit_series` can fit.
 
-    The model registry (:data:`bayesgrowth.models.MODELS`) and the curves of
-    :data:`bayesgrowth.models.CURVES`, in that order, without repeats.
+    The families of the model registry (:mod:`bayesgrowth.models.registry`), in
+    registration order.
     """
-    from bayesgrowth import models
+    from bayesgrowth.models import registry
 
-    names = list(models.MODELS)
-    for name in getattr(models, "CURVES", ()):
-        if name not in names:
-            names.append(name)
-    return tuple(names)
+    return registry.names()
 
 
 def fit_models(
@@ -110,8 +106,7 @@ def fit_models(
     for name in names:
         seasons = resolve_seasonal(seasonal, series.axis, series.t, name)
         spec = ModelSpec(model=name, errors=errors, noise=noise, seasonal=seasons, drift=drift)
-        exact_fits = spec.is_plain_exponential or spec.is_state_space
-        use = "exact" if engine == "auto" and exact_fits else "nuts"
+        use = "exact" if engine == "auto" and spec.exact_fits else "nuts"
         options = dict(settings)
         if use == "exact":
             options = {k: v for k, v in options.items() if k in ("draws", "chains")}
