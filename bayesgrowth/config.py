@@ -8,6 +8,8 @@ __all__ = [
     "DEFAULT_ENGINE",
     "DEFAULT_LEVELS",
     "DEFAULT_MODEL",
+    "DEFAULT_TUNE",
+    "PREDICTIVE_DRAWS",
     "check_levels",
 ]
 
@@ -16,6 +18,11 @@ DEFAULT_LEVELS: tuple[int, ...] = (50, 80, 95)
 #: Posterior draws per chain and number of chains.
 DEFAULT_DRAWS = 1000
 DEFAULT_CHAINS = 4
+#: NUTS tuning steps per chain.
+DEFAULT_TUNE = 1000
+#: Draws of a predictive distribution that is simulated rather than integrated (a
+#: backtest's forecasts, a prior predictive): as many as the default posterior holds.
+PREDICTIVE_DRAWS = DEFAULT_DRAWS * DEFAULT_CHAINS
 
 #: The recommended model, used by the API and every command unless told otherwise:
 #: a local trend on the log scale whose growth rate fades towards the long-run rate

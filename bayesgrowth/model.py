@@ -8,6 +8,7 @@ from bayesgrowth.config import (
     DEFAULT_ENGINE,
     DEFAULT_LEVELS,
     DEFAULT_MODEL,
+    DEFAULT_TUNE,
 )
 from bayesgrowth.data.series import as_series
 from bayesgrowth.forecast.forecast import Forecast, forecast
@@ -85,7 +86,7 @@ class GrowthModel:
         seed: int | None = None,
         draws: int = DEFAULT_DRAWS,
         chains: int = DEFAULT_CHAINS,
-        tune: int = 1000,
+        tune: int = DEFAULT_TUNE,
         target_accept: float | None = None,
         cores: int = 1,
     ) -> None:

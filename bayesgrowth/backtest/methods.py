@@ -44,6 +44,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from bayesgrowth.data.series import GrowthSeries
+from bayesgrowth.forecast.bands import band_probabilities
 from bayesgrowth.inference.diagnostics import Diagnostics, SamplingWarning
 from bayesgrowth.scoring import (
     crps_ensemble,
@@ -172,7 +173,7 @@ def score_prediction(
     draws = np.asarray(pred.draws, dtype=float)
     out["median"] = np.median(draws, axis=-1)
     for lev in levels:
-        lo, hi = np.quantile(draws, [0.5 - lev / 200, 0.5 + lev / 200], axis=-1)
+        lo, hi = np.quantile(draws, band_probabilities(lev), axis=-1)
         out[f"lower_{lev}"], out[f"upper_{lev}"] = lo, hi
     out["pit"] = np.asarray(pit(actual, draws))
     out["crps"] = np.asarray(crps_ensemble(actual, draws))

@@ -35,7 +35,9 @@ from collections.abc import Sequence
 import numpy as np
 import pandas as pd
 
+from bayesgrowth.config import PREDICTIVE_DRAWS
 from bayesgrowth.data.series import MIN_OBSERVATIONS, GrowthSeries
+from bayesgrowth.forecast.bands import band_probabilities
 from bayesgrowth.forecast.forecast import Forecast
 from bayesgrowth.forecast.recalibrated import RecalibratedForecast, apply_map
 from bayesgrowth.forecast.recalibration_map import (
@@ -92,7 +94,7 @@ def priors_of(fit):
 
 def backtest_model(fit, series: GrowthSeries | None = None, *, horizon: int,
                    min_train: int | None = None, stride: int = 1, window: int | None = None,
-                   seed: int | None = None, priors=None, n_draws: int = 4000,
+                   seed: int | None = None, priors=None, n_draws: int = PREDICTIVE_DRAWS,
                    progress: bool = False):
     """Rolling-origin backtest of the model of ``fit`` (same engine, model and priors).
 
@@ -170,7 +172,7 @@ def outcomes_of(result, method: str | None = None) -> pd.DataFrame:
 
 
 def _n_draws(result) -> float:
-    return float(result.settings.get("n_draws", 4000))
+    return float(result.settings.get("n_draws", PREDICTIVE_DRAWS))
 
 
 def map_from_backtest(result, *, method: str | None = None, horizon: int | None = None,
@@ -236,8 +238,8 @@ def pit_coverage(pit, levels) -> dict[str, float]:
     u = u[np.isfinite(u)]
     if not u.size:
         return {}
-    return {str(lev): float(np.mean((u >= (100 - lev) / 200) & (u <= 1 - (100 - lev) / 200)))
-            for lev in levels}
+    bands = {lev: band_probabilities(lev) for lev in levels}
+    return {str(lev): float(np.mean((u >= lo) & (u <= hi))) for lev, (lo, hi) in bands.items()}
 
 
 def _own_source(result, method: str | None) -> dict:
@@ -252,7 +254,7 @@ def _own_source(result, method: str | None) -> dict:
 def recalibrate(fc: Forecast, series: GrowthSeries | None = None, *,
                 min_train: int | None = None, horizon: int | None = None, stride: int = 1,
                 window: int | None = None, seed: int | None = None, priors=None,
-                n_draws: int = 4000, pseudo_count: float = PSEUDO_COUNT,
+                n_draws: int = PREDICTIVE_DRAWS, pseudo_count: float = PSEUDO_COUNT,
                 min_outcomes: int = MIN_OUTCOMES, result=None,
                 progress: bool = False) -> RecalibratedForecast:
     """Backtest the forecast's model on the series and recalibrate the forecast's bands.

@@ -25,6 +25,8 @@ import numpy as np
 import pandas as pd
 
 from bayesgrowth.backtest.recalibrate import outcomes_of
+from bayesgrowth.config import PREDICTIVE_DRAWS
+from bayesgrowth.forecast.bands import band_probabilities
 from bayesgrowth.forecast.recalibration_map import MIN_OUTCOMES, PSEUDO_COUNT, learn_map
 from bayesgrowth.scoring import coverage_interval
 
@@ -78,7 +80,7 @@ def _shares(pit: np.ndarray, a: float) -> tuple[int, int, int]:
 
 
 def _level_row(level: int, before: np.ndarray, after: np.ndarray, n_learn: int) -> dict:
-    a = (100 - level) / 200
+    a = band_probabilities(level)[0]
     row: dict = {"level": level, "n_scored": int(before.size), "n_learned": n_learn}
     for name, pit in (("before", before), ("after", after)):
         inside, below, above = _shares(pit, a)
@@ -121,7 +123,7 @@ def nested_evaluation(results, *, learn_share: float = 0.5, levels=(50, 80, 95),
     groups: dict[str, list] = {}
     for r in results:
         learn, score = split_outcomes(r, learn_share=learn_share, method=method)
-        floor = 0.5 / float(r.settings.get("n_draws", 4000))
+        floor = 0.5 / float(r.settings.get("n_draws", PREDICTIVE_DRAWS))
         groups.setdefault(r.series.axis.frequency, []).append((learn, score, floor))
     before, after, n_learn = [], [], 0
     for parts in groups.values():

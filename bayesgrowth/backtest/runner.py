@@ -31,7 +31,7 @@ from bayesgrowth.backtest.models import (
 )
 from bayesgrowth.backtest.result import NO_BANDS, BacktestResult
 from bayesgrowth.backtest.split import RollingOrigin
-from bayesgrowth.config import DEFAULT_LEVELS, check_levels
+from bayesgrowth.config import DEFAULT_LEVELS, PREDICTIVE_DRAWS, check_levels
 from bayesgrowth.data.series import MIN_OBSERVATIONS, GrowthSeries
 from bayesgrowth.inference.diagnostics import SamplingWarning
 from bayesgrowth.scoring import score_table
@@ -69,7 +69,7 @@ def backtest(
     seed: int = 1,
     priors=None,
     model_options: dict | None = None,
-    n_draws: int = 4000,
+    n_draws: int = PREDICTIVE_DRAWS,
     progress: bool = False,
 ) -> BacktestResult:
     """Rolling-origin backtest of several models on one series, on the same origins.

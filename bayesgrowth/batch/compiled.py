@@ -21,6 +21,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from bayesgrowth.config import DEFAULT_CHAINS, DEFAULT_DRAWS, DEFAULT_TUNE
 from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.inference.fit import Fit
 from bayesgrowth.inference.refit import TARGET_ACCEPT, sample_compiled
@@ -94,9 +95,9 @@ class CompiledBatchNuts:
         priors: ResolvedPriors,
         length: int,
         *,
-        draws: int = 1000,
-        tune: int = 1000,
-        chains: int = 4,
+        draws: int = DEFAULT_DRAWS,
+        tune: int = DEFAULT_TUNE,
+        chains: int = DEFAULT_CHAINS,
         target_accept: float | None = None,
         cores: int = 1,
     ) -> None:

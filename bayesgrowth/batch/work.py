@@ -19,7 +19,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from bayesgrowth.config import DEFAULT_LEVELS
+from bayesgrowth.config import DEFAULT_CHAINS, DEFAULT_DRAWS, DEFAULT_LEVELS, DEFAULT_TUNE
 from bayesgrowth.data.series import GrowthSeries, InputError
 from bayesgrowth.priors import Priors
 
@@ -72,9 +72,9 @@ class BatchSettings:
     seed: int = 1
     levels: tuple[int, ...] = DEFAULT_LEVELS
     priors: Priors | None = None
-    draws: int = 1000
-    chains: int = 4
-    tune: int = 1000
+    draws: int = DEFAULT_DRAWS
+    chains: int = DEFAULT_CHAINS
+    tune: int = DEFAULT_TUNE
     model_options: dict = field(default_factory=dict)
     padded_length: int = 0
     posterior_dir: str | None = None

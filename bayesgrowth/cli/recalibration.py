@@ -13,6 +13,7 @@ import argparse
 from pathlib import Path
 
 from bayesgrowth.cli.common import UsageError, _positive_int, say
+from bayesgrowth.config import PREDICTIVE_DRAWS
 from bayesgrowth.data.series import MIN_OBSERVATIONS
 
 __all__ = [
@@ -28,7 +29,7 @@ __all__ = [
 #: The band level whose backtest coverage the printed line reports.
 REPORTED_LEVEL = 80
 #: Predictive draws per backtest forecast in a batch (the PIT's resolution is one over it).
-BACKTEST_DRAWS = 4000
+BACKTEST_DRAWS = PREDICTIVE_DRAWS
 
 
 def add_recalibrate_options(p: argparse.ArgumentParser, *, panel: bool = False) -> None:

@@ -10,13 +10,19 @@ import numpy as np
 import pandas as pd
 
 from bayesgrowth.config import DEFAULT_LEVELS, check_levels
+from bayesgrowth.forecast.bands import (
+    band_probabilities,
+    check_horizon,
+    draws_table,
+    prob_at_least,
+)
 from bayesgrowth.inference.fit import Fit
 from bayesgrowth.inference.mixture import mixture_cdf, mixture_mean_exp, mixture_quantiles
 from bayesgrowth.inference.pooled import PooledFit
 from bayesgrowth.models import exponential, general
 from bayesgrowth.seeds import stream
 
-__all__ = ["Forecast", "band_columns", "forecast", "extrapolation_caution", "CAUTION"]
+__all__ = ["Forecast", "forecast", "extrapolation_caution", "CAUTION"]
 
 #: The standing caution printed with every forecast.
 CAUTION = (
@@ -50,28 +56,10 @@ def extrapolation_caution(
     return None
 
 
-def check_horizon(horizon) -> int:
-    """Validate a horizon: a whole number of periods >= 1."""
-    if int(horizon) != horizon or horizon < 1:
-        raise ValueError(f"horizon must be a whole number of periods >= 1, got {horizon}")
-    return int(horizon)
-
-
 def saturates(fit) -> bool:
     """Whether the fit's model family has a ceiling (declared in the model registry)."""
     spec = getattr(fit, "spec", None)
     return bool(spec is not None and spec.family.ceiling)
-
-
-def band_columns(draws: np.ndarray, levels, prefix: str = "") -> dict:
-    """Central bands of ``draws`` per column: ``{prefix}lower_L`` and ``{prefix}upper_L``."""
-    cols = {}
-    for level in levels:
-        lo, hi = (100 - level) / 200, 1 - (100 - level) / 200
-        q = np.quantile(draws, [lo, hi], axis=0)
-        cols[f"{prefix}lower_{level}"] = q[0]
-        cols[f"{prefix}upper_{level}"] = q[1]
-    return cols
 
 
 def _interval(x: np.ndarray, levels=(80, 95)) -> dict:
@@ -80,7 +68,7 @@ def _interval(x: np.ndarray, levels=(80, 95)) -> dict:
     with np.errstate(invalid="ignore"):
         out = {"median": float(np.median(x)), "mean": float(np.mean(x))}
         for level in levels:
-            lo, hi = np.quantile(x, [(100 - level) / 200, 1 - (100 - level) / 200])
+            lo, hi = np.quantile(x, band_probabilities(level))
             out[f"lower_{level}"] = float(lo)
             out[f"upper_{level}"] = float(hi)
     return out
@@ -138,7 +126,7 @@ class Forecast:
         e = self.exact
         probs = [0.5]
         for level in self.levels:
-            probs += [(100 - level) / 200, 1 - (100 - level) / 200]
+            probs += band_probabilities(level)
         q = np.exp(mixture_quantiles(e["weight"], e["mean"], e[sd_key], probs))
         cols = {f"{prefix}median": q[0]}
         for i, level in enumerate(self.levels):
@@ -164,14 +152,7 @@ class Forecast:
             frame.update(value)
             frame.update(curve)
             return pd.DataFrame(frame)
-        frame.update({
-            "mean": self.draws.mean(axis=0),
-            "median": np.median(self.draws, axis=0),
-            **band_columns(self.draws, self.levels),
-            "curve_median": np.median(self.curve_draws, axis=0),
-            **band_columns(self.curve_draws, self.levels, prefix="curve_"),
-        })
-        return pd.DataFrame(frame)
+        return draws_table(self.periods, self.draws, self.curve_draws, self.levels)
 
     def _column(self, period: str | int | None) -> int:
         if period is None:
@@ -194,9 +175,9 @@ class Forecast:
             with np.errstate(divide="ignore"):
                 log_target = np.full(self.horizon, np.log(target) if target > 0 else -np.inf)
             prob = 1.0 - mixture_cdf(e["weight"], e["mean"], e["value_sd"], log_target)
-        else:
-            prob = (self.draws >= target).mean(axis=0)
-        return pd.Series(prob, index=pd.Index(self.periods, name="period"), name="probability")
+            return pd.Series(prob, index=pd.Index(self.periods, name="period"),
+                             name="probability")
+        return prob_at_least(self.periods, self.draws, target)
 
     def first_period_reaching(self, target: float, probability: float = 0.5) -> str | None:
         """First future period whose value is at least ``target`` with ``probability``.

@@ -38,6 +38,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from bayesgrowth.forecast.bands import band_probabilities
+
 __all__ = ["RECENT_PERIODS", "Slowdown", "misfit_lines", "slowdown_check", "slowdown_warning"]
 
 #: Periods the recent growth is measured over without seasonal factors (a year of quarters).
@@ -117,7 +119,7 @@ def _first_step_band(forecast, level: int) -> tuple[float, float, float]:
     if f"lower_{level}" in table.columns:
         row = table.iloc[0]
         return float(row["median"]), float(row[f"lower_{level}"]), float(row[f"upper_{level}"])
-    q = np.quantile(forecast.draws[:, 0], [0.5, 0.5 - level / 200, 0.5 + level / 200])
+    q = np.quantile(forecast.draws[:, 0], [0.5, *band_probabilities(level)])
     return float(q[0]), float(q[1]), float(q[2])
 
 

@@ -14,7 +14,8 @@ import numpy as np
 import pandas as pd
 
 from bayesgrowth.config import DEFAULT_LEVELS, check_levels
-from bayesgrowth.forecast.forecast import band_columns, check_horizon, forecast
+from bayesgrowth.forecast.bands import band_columns, check_horizon
+from bayesgrowth.forecast.forecast import forecast
 from bayesgrowth.inference.pooled import PooledFit
 from bayesgrowth.seeds import series_seed
 

@@ -24,9 +24,9 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from bayesgrowth.config import DEFAULT_LEVELS, check_levels
+from bayesgrowth.config import DEFAULT_LEVELS, PREDICTIVE_DRAWS, check_levels
 from bayesgrowth.data.series import GrowthSeries
-from bayesgrowth.forecast.forecast import band_columns
+from bayesgrowth.forecast.bands import band_columns
 from bayesgrowth.models import exponential, general, linear
 from bayesgrowth.models.spec import ModelSpec
 from bayesgrowth.priors import Priors, ResolvedPriors
@@ -194,7 +194,7 @@ def sample_prior(
     priors: ResolvedPriors,
     series: GrowthSeries,
     *,
-    draws: int = 4000,
+    draws: int = PREDICTIVE_DRAWS,
     seed: int = 1,
     sampler: str = "auto",
 ) -> tuple[dict, str]:
@@ -280,7 +280,7 @@ def prior_predictive(
     seasonal: bool = False,
     drift: str = "random-walk",
     levels=DEFAULT_LEVELS,
-    draws: int = 4000,
+    draws: int = PREDICTIVE_DRAWS,
     seed: int | None = None,
     sampler: str = "auto",
 ) -> PriorPredictive:

@@ -26,6 +26,7 @@ from dataclasses import dataclass, fields
 import numpy as np
 import pandas as pd
 
+from bayesgrowth.forecast.bands import band_probabilities
 from bayesgrowth.forecast.forecast import Forecast
 from bayesgrowth.forecast.recalibration_map import QuantileMap
 from bayesgrowth.inference.mixture import mixture_quantiles
@@ -114,7 +115,7 @@ class RecalibratedForecast(Forecast):
         frame = self.base.table.copy()
         probs = [0.5]
         for level in self.levels:
-            probs += [(100 - level) / 200, 1 - (100 - level) / 200]
+            probs += band_probabilities(level)
         q = base_quantiles(self.base, self._probs(probs))
         frame["mean"] = self.draws.mean(axis=0)
         frame["median"] = q[0]

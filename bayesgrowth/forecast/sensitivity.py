@@ -22,6 +22,7 @@ import numpy as np
 import pandas as pd
 
 from bayesgrowth.data.series import GrowthSeries
+from bayesgrowth.forecast.bands import band_probabilities
 from bayesgrowth.models.spec import ModelSpec
 from bayesgrowth.priors import CeilingPrior, Priors
 
@@ -190,7 +191,7 @@ def prior_sensitivity(
         options.setdefault("progressbar", False)
     cache: dict = {}
     rows = []
-    lo, hi = (100 - level) / 200, 1 - (100 - level) / 200
+    lo, hi = band_probabilities(level)
     period = series.future_labels(int(horizon))[-1]
     for factor, setting, value, pr in grid:
         if pr not in cache:

@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from bayesgrowth.config import DEFAULT_CHAINS, DEFAULT_DRAWS
 from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.inference.diagnostics import Diagnostics
 from bayesgrowth.inference.fit import Fit
@@ -58,8 +59,8 @@ def fit_exact(
     priors: ResolvedPriors,
     *,
     seed: int,
-    draws: int = 1000,
-    chains: int = 4,
+    draws: int = DEFAULT_DRAWS,
+    chains: int = DEFAULT_CHAINS,
 ) -> Fit:
     """Fit by the exact engine and return ``chains * draws`` independent posterior draws.
 

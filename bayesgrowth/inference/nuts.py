@@ -7,6 +7,7 @@ import warnings
 
 import numpy as np
 
+from bayesgrowth.config import DEFAULT_CHAINS, DEFAULT_DRAWS, DEFAULT_TUNE
 from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.inference.diagnostics import Diagnostics
 from bayesgrowth.inference.fit import Fit
@@ -46,14 +47,39 @@ def diagnose(posterior_ds, divergences: int) -> Diagnostics:
     return Diagnostics.from_values(rhat, ess_bulk, ess_tail, divergences, method="NUTS (PyMC)")
 
 
+def sample_pymc(model, *, seed: int, draws: int, tune: int, chains: int, cores: int,
+                target_accept: float, progressbar: bool):
+    """Run PyMC's NUTS on ``model``; quiet unless ``progressbar``. Returns InferenceData.
+
+    Early tuning steps can overflow the kinetic-energy dot product before the step
+    size adapts: that warning is silenced, since the diagnostics judge the result.
+    """
+    import pymc as pm
+
+    logger = logging.getLogger("pymc")
+    level = logger.level
+    if not progressbar:
+        logger.setLevel(logging.WARNING)  # quiet runs: no sampler chatter
+    try:
+        with model, warnings.catch_warnings():
+            warnings.filterwarnings("ignore", "overflow encountered", RuntimeWarning)
+            return pm.sample(
+                draws=draws, tune=tune, chains=chains, cores=cores, random_seed=seed,
+                target_accept=target_accept, progressbar=progressbar,
+                compute_convergence_checks=False, mp_ctx="fork" if cores > 1 else None,
+            )
+    finally:
+        logger.setLevel(level)
+
+
 def fit_nuts(
     series: GrowthSeries,
     priors: ResolvedPriors,
     *,
     seed: int,
-    draws: int = 1000,
-    tune: int = 1000,
-    chains: int = 4,
+    draws: int = DEFAULT_DRAWS,
+    tune: int = DEFAULT_TUNE,
+    chains: int = DEFAULT_CHAINS,
     target_accept: float | None = None,
     cores: int = 1,
     progressbar: bool = False,
@@ -80,8 +106,6 @@ def fit_nuts(
         The model; default the exponential curve with independent normal errors.
         Diagnostics cover every parameter, seasonal factor and local-trend state.
     """
-    import pymc as pm
-
     spec = spec or ModelSpec()
     target_accept = target_accept or default_target_accept(series.n, spec)
     if spec.is_plain_exponential:
@@ -90,28 +114,8 @@ def fit_nuts(
         model = general.build_pymc_model(
             spec, priors, series.t, series.log_values, axis=series.axis
         )
-    logger = logging.getLogger("pymc")
-    level = logger.level
-    if not progressbar:
-        logger.setLevel(logging.WARNING)  # quiet runs: no sampler chatter
-    try:
-        with model, warnings.catch_warnings():
-            # Early tuning steps can overflow the kinetic-energy dot product before the
-            # step size adapts; the diagnostics below judge the result, not this.
-            warnings.filterwarnings("ignore", "overflow encountered", RuntimeWarning)
-            idata = pm.sample(
-                draws=draws,
-                tune=tune,
-                chains=chains,
-                cores=cores,
-                random_seed=seed,
-                target_accept=target_accept,
-                progressbar=progressbar,
-                compute_convergence_checks=False,
-                mp_ctx="fork" if cores > 1 else None,
-            )
-    finally:
-        logger.setLevel(level)
+    idata = sample_pymc(model, seed=seed, draws=draws, tune=tune, chains=chains, cores=cores,
+                        target_accept=target_accept, progressbar=progressbar)
     post = idata.posterior
     names = [k for k in spec.parameters() + spec.vector_parameters() + linear.STAND_INS
              if k in post]

@@ -10,18 +10,17 @@ every series and the group total.
 
 from __future__ import annotations
 
-import logging
 import secrets
-import warnings
 from dataclasses import dataclass, replace
 
 import numpy as np
 import pandas as pd
 
+from bayesgrowth.config import DEFAULT_CHAINS, DEFAULT_DRAWS, DEFAULT_TUNE
 from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.inference.diagnostics import Diagnostics
 from bayesgrowth.inference.fit import Fit
-from bayesgrowth.inference.nuts import SHORT_SERIES
+from bayesgrowth.inference.nuts import SHORT_SERIES, sample_pymc
 from bayesgrowth.models.hierarchical import ERRORS, GroupPrior, build_pymc_model, stack_panel
 from bayesgrowth.models.spec import ModelSpec
 from bayesgrowth.priors import Priors, ResolvedPriors
@@ -114,25 +113,6 @@ class PooledFit:
         return pd.DataFrame(rows)
 
 
-def _sample_pymc(model, *, seed, draws, tune, chains, cores, target_accept, progressbar):
-    import pymc as pm
-
-    logger = logging.getLogger("pymc")
-    old = logger.level
-    if not progressbar:
-        logger.setLevel(logging.WARNING)
-    try:
-        with model, warnings.catch_warnings():
-            warnings.filterwarnings("ignore", "overflow encountered", RuntimeWarning)
-            return pm.sample(
-                draws=draws, tune=tune, chains=chains, cores=cores, random_seed=seed,
-                target_accept=target_accept, progressbar=progressbar,
-                compute_convergence_checks=False, mp_ctx="fork" if cores > 1 else None,
-            )
-    finally:
-        logger.setLevel(old)
-
-
 def fit_pooled(
     panel: dict[str, GrowthSeries] | list[GrowthSeries],
     priors: Priors | None = None,
@@ -140,9 +120,9 @@ def fit_pooled(
     group: GroupPrior | None = None,
     errors: str = "independent",
     seed: int | None = None,
-    draws: int = 1000,
-    tune: int = 1000,
-    chains: int = 4,
+    draws: int = DEFAULT_DRAWS,
+    tune: int = DEFAULT_TUNE,
+    chains: int = DEFAULT_CHAINS,
     target_accept: float | None = None,
     cores: int = 1,
     progressbar: bool = False,
@@ -222,9 +202,8 @@ def fit_pooled(
             target_accept=target_accept, save_warmup=False, progress_bar=progressbar,
         )
     else:
-        idata = _sample_pymc(model, seed=seed, draws=draws, tune=tune, chains=chains,
-                             cores=cores, target_accept=target_accept,
-                             progressbar=progressbar)
+        idata = sample_pymc(model, seed=seed, draws=draws, tune=tune, chains=chains,
+                            cores=cores, target_accept=target_accept, progressbar=progressbar)
     post = idata.posterior
     keys = ["log_a", "log1p_g", "sigma", "mu_growth", "tau_growth"]
     keys += ["phi"] if errors == "ar1" else []

@@ -50,6 +50,7 @@ import os
 
 import numpy as np
 
+from bayesgrowth.config import DEFAULT_CHAINS, DEFAULT_DRAWS, DEFAULT_TUNE
 from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.inference.fit import Fit
 from bayesgrowth.models import exponential, linear
@@ -195,9 +196,9 @@ class NutsRefitter:
         series: GrowthSeries,
         priors: Priors | None = None,
         *,
-        draws: int = 1000,
-        tune: int = 1000,
-        chains: int = 4,
+        draws: int = DEFAULT_DRAWS,
+        tune: int = DEFAULT_TUNE,
+        chains: int = DEFAULT_CHAINS,
         target_accept: float | None = None,
         cores: int | None = None,
         spec=None,

@@ -6,6 +6,7 @@ import numpy as np
 from matplotlib.axes import Axes
 
 from bayesgrowth.display import fmt_number, fmt_probability
+from bayesgrowth.forecast.bands import band_probabilities
 from bayesgrowth.plots.plain import literal
 from bayesgrowth.plots.style import (
     BAND_SHADES,
@@ -80,7 +81,7 @@ def _draw_fit(ax: Axes, forecast, level: int) -> None:
     if curve is None:
         return
     t_obs = forecast.fit.series.t
-    lo, hi = np.quantile(curve, [(100 - level) / 200, 1 - (100 - level) / 200], axis=0)
+    lo, hi = np.quantile(curve, band_probabilities(level), axis=0)
     ax.fill_between(t_obs, lo, hi, facecolor=BAND_SHADES[-1], edgecolor="none", zorder=1.8,
                     label=f"Fitted curve, {level}% band")
     ax.plot(t_obs, np.median(curve, axis=0), color=FORECAST, linewidth=1.0,

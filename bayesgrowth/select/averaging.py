@@ -19,7 +19,7 @@ import pandas as pd
 
 from bayesgrowth.config import DEFAULT_LEVELS
 from bayesgrowth.data.series import GrowthSeries
-from bayesgrowth.forecast.prior import band_columns
+from bayesgrowth.forecast.bands import draws_table, prob_at_least
 from bayesgrowth.seeds import stream
 from bayesgrowth.select.loo import ModelComparison, compare_models
 
@@ -182,15 +182,7 @@ class AveragedForecast:
     @property
     def table(self) -> pd.DataFrame:
         """The columns of :attr:`Forecast.table <bayesgrowth.forecast.Forecast.table>`."""
-        return pd.DataFrame({
-            "period": self.periods,
-            "step": np.arange(1, self.horizon + 1),
-            "mean": self.draws.mean(axis=0),
-            "median": np.median(self.draws, axis=0),
-            **band_columns(self.draws, self.levels),
-            "curve_median": np.median(self.curve_draws, axis=0),
-            **band_columns(self.curve_draws, self.levels, prefix="curve_"),
-        })
+        return draws_table(self.periods, self.draws, self.curve_draws, self.levels)
 
     @property
     def caution(self) -> str | None:
@@ -202,8 +194,7 @@ class AveragedForecast:
 
     def prob_exceeds(self, target: float) -> pd.Series:
         """Probability under the mixture that each future period's value is at least ``target``."""
-        return pd.Series((self.draws >= target).mean(axis=0),
-                         index=pd.Index(self.periods, name="period"), name="probability")
+        return prob_at_least(self.periods, self.draws, target)
 
 
 def average_forecasts(
