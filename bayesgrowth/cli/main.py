@@ -60,8 +60,12 @@ def build_parser() -> argparse.ArgumentParser:
     fc = sub.add_parser(
         "forecast",
         help="fit a growth model and forecast with credible bands",
-        description="Fit the Bayesian exponential growth model to FILE and "
-        "write forecast.csv, summary.json, fan_chart.png and posterior.nc.",
+        description="Fit a growth model to FILE and write forecast.csv, summary.json, "
+        "fan_chart.png and posterior.nc. The default model is a damped local trend on the log "
+        "scale (level and growth rate both move; growth fades towards a long-run rate), "
+        "computed exactly: on 1,905 real growing series (M1 and Tourism competitions) its 80% "
+        "and 95% bands held 83% and 95% of outcomes (docs/benchmark.md). Use --model to "
+        "choose another.",
     )
     add_input(fc)
     add_model_options(fc)
