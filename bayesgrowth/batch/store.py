@@ -24,16 +24,13 @@ other settings is refused rather than mixing results.
 from __future__ import annotations
 
 import json
-import os
 import secrets
-import tempfile
-from collections.abc import Callable
 from pathlib import Path
 
 import pandas as pd
 
 from bayesgrowth.batch.work import SUMMARY_COLUMNS, SeriesOutcome
-from bayesgrowth.data.export import json_text, write_csv
+from bayesgrowth.data.export import atomic_write, json_text, write_csv
 from bayesgrowth.data.series import InputError
 
 __all__ = ["RunStore", "OUTPUTS", "STATE_DIR", "atomic_write"]
@@ -41,25 +38,6 @@ __all__ = ["RunStore", "OUTPUTS", "STATE_DIR", "atomic_write"]
 OUTPUTS = ("forecast.csv", "summary.csv", "failures.csv")
 STATE_DIR = ".bayesgrowth-batch"
 FLOAT_FORMAT = "%.6g"
-
-
-def _file_mode() -> int:
-    mask = os.umask(0)
-    os.umask(mask)
-    return 0o666 & ~mask
-
-
-def atomic_write(path: Path, write: Callable[[Path], None]) -> None:
-    """Call ``write(tmp)`` on a temporary file beside ``path``, then rename it to ``path``."""
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
-    os.close(fd)
-    try:
-        write(Path(tmp))
-        os.chmod(tmp, _file_mode())  # as an ordinary new file, not mkstemp's 0600
-        os.replace(tmp, path)
-    finally:
-        if os.path.exists(tmp):
-            os.unlink(tmp)
 
 
 def _write_csv(frame: pd.DataFrame, path: Path, float_format: str | None = None) -> None:

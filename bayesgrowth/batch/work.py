@@ -9,9 +9,7 @@ written to files by the worker itself when asked, never sent back.
 from __future__ import annotations
 
 import hashlib
-import os
 import re
-import tempfile
 import warnings
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -20,6 +18,7 @@ import numpy as np
 import pandas as pd
 
 from bayesgrowth.config import DEFAULT_CHAINS, DEFAULT_DRAWS, DEFAULT_LEVELS, DEFAULT_TUNE
+from bayesgrowth.data.export import atomic_write
 from bayesgrowth.data.series import GrowthSeries, InputError
 from bayesgrowth.priors import Priors
 
@@ -231,14 +230,8 @@ def fit_one(series: GrowthSeries, settings: BatchSettings) -> SeriesOutcome:
     if settings.posterior_dir is not None:
         folder = Path(settings.posterior_dir)
         target = folder / posterior_file_name(series.name)
-        fd, tmp = tempfile.mkstemp(prefix=".part-", suffix=".nc", dir=folder)
-        os.close(fd)
-        try:
-            fit.to_netcdf(tmp, fc.predictive_groups())
-            os.replace(tmp, target)
-        finally:
-            if os.path.exists(tmp):
-                os.unlink(tmp)
+        atomic_write(target, lambda tmp: fit.to_netcdf(tmp, fc.predictive_groups()),
+                     suffix=".nc")
         outcome.summary["posterior_file"] = f"posteriors/{target.name}"
     return outcome
 

@@ -20,6 +20,7 @@ from collections.abc import Iterator
 from contextlib import contextmanager
 from pathlib import Path
 
+from bayesgrowth.data.export import atomic_write
 from bayesgrowth.data.series import InputError
 
 __all__ = ["MANIFEST", "add_force_option", "check_output", "staged_output"]
@@ -56,16 +57,8 @@ def _read_manifest(out: Path) -> dict[str, str]:
 
 
 def _write_manifest(out: Path, files: dict[str, str]) -> None:
-    fd, tmp = tempfile.mkstemp(prefix=f"{MANIFEST}.", suffix=".tmp", dir=out)
-    try:
-        with os.fdopen(fd, "w") as f:
-            json.dump({"written_by": "bayesgrowth", "files": dict(sorted(files.items()))}, f,
-                      indent=2)
-            f.write("\n")
-        os.replace(tmp, out / MANIFEST)
-    finally:
-        if os.path.exists(tmp):
-            os.unlink(tmp)
+    record = {"written_by": "bayesgrowth", "files": dict(sorted(files.items()))}
+    atomic_write(out / MANIFEST, lambda tmp: tmp.write_text(json.dumps(record, indent=2) + "\n"))
 
 
 def check_output(out_dir: str | Path, names: list[str], protect: list[Path],

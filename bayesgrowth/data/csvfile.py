@@ -11,7 +11,7 @@ from pathlib import Path
 import pandas as pd
 
 from bayesgrowth.data.excel import EXCEL_SUFFIXES, read_excel_file
-from bayesgrowth.data.formats import detect_separator
+from bayesgrowth.data.formats import check_header, detect_separator
 from bayesgrowth.data.series import InputError
 
 __all__ = ["read_csv_file", "separator_of"]
@@ -39,15 +39,7 @@ def _check_header(path: Path, source: str, sep: str = ",") -> None:
     """Refuse a header that names a column twice (pandas would rename the second one)."""
     head = pd.read_csv(path, header=None, nrows=1, dtype=str, keep_default_na=False,
                        skipinitialspace=True, sep=sep)
-    names = [str(c).strip() for c in head.iloc[0].tolist()]
-    seen: dict[str, int] = {}
-    for i, name in enumerate(names, start=1):
-        if name and name in seen:
-            raise InputError(
-                f"{source}, row 1: column {name!r} appears twice in the header (columns "
-                f"{seen[name]} and {i}); rename or delete one of them"
-            )
-        seen.setdefault(name, i)
+    check_header([str(c).strip() for c in head.iloc[0].tolist()], source)
 
 
 def separator_of(path: str | Path) -> str:

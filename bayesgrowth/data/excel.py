@@ -15,6 +15,7 @@ from pathlib import Path
 
 import pandas as pd
 
+from bayesgrowth.data.formats import check_header
 from bayesgrowth.data.series import InputError
 
 __all__ = ["EXCEL_SUFFIXES", "read_excel_file"]
@@ -79,14 +80,7 @@ def read_excel_file(path: Path) -> pd.DataFrame:
         raise InputError(f"{path.name}: the first sheet is empty")
     cells = frame.map(_text)
     header = [c.strip() for c in cells.iloc[0].tolist()]
-    seen: dict[str, int] = {}
-    for i, name in enumerate(header, start=1):
-        if name and name in seen:
-            raise InputError(
-                f"{path.name}, row 1: column {name!r} appears twice in the header (columns "
-                f"{seen[name]} and {i}); rename or delete one of them"
-            )
-        seen.setdefault(name, i)
+    check_header(header, path.name)
     body = cells.iloc[1:].reset_index(drop=True)
     body.columns = header
     return body

@@ -23,7 +23,10 @@ from __future__ import annotations
 
 import json
 import math
+import os
 import re
+import tempfile
+from collections.abc import Callable
 from pathlib import Path
 from typing import Any
 
@@ -33,6 +36,7 @@ import pandas as pd
 __all__ = [
     "FORMULA_TRIGGERS",
     "NOT_AVAILABLE_KEY",
+    "atomic_write",
     "json_ready",
     "json_text",
     "neutralise_cell",
@@ -181,3 +185,45 @@ def json_text(data: Any, *, indent: int | None = 2) -> str:
     if missing and isinstance(clean, dict):
         clean[NOT_AVAILABLE_KEY] = missing
     return json.dumps(clean, indent=indent, allow_nan=False) + "\n"
+
+
+def _file_mode() -> int:
+    mask = os.umask(0)
+    os.umask(mask)
+    return 0o666 & ~mask
+
+
+def atomic_write(path: str | Path, write: Callable[[Path], None], *, suffix: str = ".tmp") -> None:
+    """Call ``write(tmp)`` on a temporary file beside ``path``, then rename it to ``path``.
+
+    A reader sees the old file or the whole new one, never a half-written one; a
+    failure leaves no temporary file behind. The file gets the mode of an ordinary
+    new file (not the owner-only mode of a temporary one).
+
+    Parameters
+    ----------
+    path : str or Path
+        The file to write.
+    write : callable
+        Writes the content to the path it is given.
+    suffix : str
+        Ending of the temporary file's name (some writers choose a format by it).
+
+    Examples
+    --------
+    >>> import tempfile
+    >>> folder = Path(tempfile.mkdtemp())
+    >>> atomic_write(folder / "a.txt", lambda tmp: tmp.write_text("done"))
+    >>> (folder / "a.txt").read_text(), sorted(p.name for p in folder.iterdir())
+    ('done', ['a.txt'])
+    """
+    path = Path(path)
+    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=suffix, dir=path.parent)
+    os.close(fd)
+    try:
+        write(Path(tmp))
+        os.chmod(tmp, _file_mode())
+        os.replace(tmp, path)
+    finally:
+        if os.path.exists(tmp):
+            os.unlink(tmp)

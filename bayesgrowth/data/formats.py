@@ -28,7 +28,7 @@ from collections.abc import Sequence
 
 from bayesgrowth.data.series import InputError
 
-__all__ = ["DECIMAL_CHOICES", "detect_separator", "decimal_mark", "amount"]
+__all__ = ["DECIMAL_CHOICES", "amount", "check_header", "decimal_mark", "detect_separator"]
 
 #: Values of ``--decimal``: tell the mark from the column, or state it.
 DECIMAL_CHOICES = ("auto", ".", ",")
@@ -282,3 +282,24 @@ def amount(text: str, mark: str, where: str, currencies: dict[str, str] | None =
             )
     value = float(number)
     return -value if negative else value
+
+
+def check_header(names: Sequence[str], source: str) -> None:
+    """Refuse a header that names a column twice (a reader would rename the second one).
+
+    Examples
+    --------
+    >>> check_header(["period", "value", "period"], "sales.csv")
+    Traceback (most recent call last):
+    ...
+    bayesgrowth.data.series.InputError: sales.csv, row 1: column 'period' appears twice in the \
+header (columns 1 and 3); rename or delete one of them
+    """
+    seen: dict[str, int] = {}
+    for i, name in enumerate(names, start=1):
+        if name and name in seen:
+            raise InputError(
+                f"{source}, row 1: column {name!r} appears twice in the header (columns "
+                f"{seen[name]} and {i}); rename or delete one of them"
+            )
+        seen.setdefault(name, i)

@@ -133,4 +133,4 @@ def test_saved_posteriors_are_readable(tmp_path, good_csv):
         idata = az.from_netcdf(tmp_path / "out" / rel)
         assert idata.posterior["log1p_g"].shape == (4, 250)
         assert idata.posterior_predictive["value"].shape[-1] == 4
-    assert not list((tmp_path / "out" / "posteriors").glob(".part-*"))
+    assert not list((tmp_path / "out" / "posteriors").glob(".*"))  # no temporary file left
