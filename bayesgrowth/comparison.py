@@ -7,7 +7,7 @@ Joins the two sides of the pipeline: the least-squares variants of
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 import pandas as pd
@@ -124,6 +124,17 @@ class Comparison:
         return dict(self.table.attrs["spread"])
 
 
+_LEFT_OUT = "log-linear, leave out t="
+
+
+def _with_period_label(fit, series):
+    """A leave-one-out variant named by the period left out ("leave out 2023Q2"), not its index."""
+    if not fit.variant.startswith(_LEFT_OUT):
+        return fit
+    t = int(float(fit.variant[len(_LEFT_OUT):]))
+    return replace(fit, variant=f"log-linear, leave out {series.axis.label(t)}")
+
+
 def compare_to_forecast(forecast: Forecast, *, max_drop: int | None = None) -> Comparison:
     """Fit every least-squares variant to the forecast's series and tabulate the spread.
 
@@ -144,7 +155,8 @@ def compare_to_forecast(forecast: Forecast, *, max_drop: int | None = None) -> C
     """
     series = forecast.fit.series
     t_ref = forecast.fit.priors.t_ref
-    fits = fit_variants(series.t, series.values, t_ref=t_ref, max_drop=max_drop)
+    fits = [_with_period_label(f, series) for f in fit_variants(
+        series.t, series.values, t_ref=t_ref, max_drop=max_drop)]
     curve = _leastsq_curve(forecast.fit)
     if curve is not None:
         # The same curve as the Bayesian model, fitted the way an analyst would.

@@ -53,3 +53,17 @@ def test_bending_model_adds_its_curve_to_the_table(saturating):
     exp_row = table[table["variant"] == "log-linear"].iloc[0]
     assert row["value_at_horizon"] < 0.7 * exp_row["value_at_horizon"]
     assert 0 <= row["prob_at_least"] <= 1
+
+
+def test_leave_one_out_variants_are_named_by_the_period_left_out(demo):
+    from bayesgrowth.leastsq import leave_one_out_fits
+
+    fc = forecast(fit_series(demo, engine="exact", seed=1, model="exponential"), 2)
+    comp = compare_to_forecast(fc)
+    named = [f.variant for f in comp.fits if f.variant.startswith("log-linear, leave out")]
+    assert named == [f"log-linear, leave out {p}" for p in demo.labels]
+    # Same fits as the numeric ones, only renamed: fit i leaves out observation i.
+    raw = leave_one_out_fits(demo.t, demo.values, t_ref=fc.fit.priors.t_ref)
+    loo = [f for f in comp.fits if f.variant.startswith("log-linear, leave out")]
+    for a, b in zip(loo, raw, strict=True):
+        assert a.forecast(2) == pytest.approx(b.forecast(2))

@@ -26,6 +26,7 @@ from bayesgrowth.cli.common import (
     read_input,
     say,
 )
+from bayesgrowth.cli.library_notes import library_warnings
 from bayesgrowth.cli.output import add_force_option, staged_output
 from bayesgrowth.cli.recalibration import (
     add_recalibrate_options,
@@ -208,7 +209,8 @@ def main(argv: list[str] | None = None) -> int:
         if args.command is None:
             parser.print_help()
             return 2
-        return args.run(args)
+        with library_warnings(debug=bool(os.environ.get("BAYESGROWTH_DEBUG"))):
+            return args.run(args)
     except (UsageError, InputError) as exc:
         print(f"{PROG}: error: {exc}", file=sys.stderr)
         return 2
