@@ -294,9 +294,9 @@ def recalibrate(fc: Forecast, series: GrowthSeries | None = None, *,
     >>> import bayesgrowth as bg
     >>> from bayesgrowth.backtest.recalibrate import recalibrate
     >>> fc = bg.GrowthModel(seed=1).fit(bg.load_demo()).forecast(4)
-    >>> fixed = recalibrate(fc, min_train=10)
+    >>> fixed = recalibrate(fc, min_train=16)
     >>> fixed.recalibrated["n_outcomes"]
-    34
+    10
     """
     if result is None:
         result = backtest_model(fc.fit, series, horizon=horizon or fc.horizon,

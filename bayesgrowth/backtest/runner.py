@@ -137,6 +137,16 @@ def backtest(
     SamplingWarning
         When a Bayesian fit fails its diagnostics at some origins (see
         :attr:`BacktestResult.diagnostics`).
+
+    Examples
+    --------
+    >>> import bayesgrowth as bg
+    >>> result = bg.backtest(bg.load_demo(), horizon=2, min_train=16, methods=["exact", "naive"])
+    >>> result.methods
+    ('exact', 'naive')
+    >>> all_steps = result.scores[result.scores["step"] == "all"]
+    >>> all_steps[["method", "n"]].to_dict("records")
+    [{'method': 'exact', 'n': 7}, {'method': 'naive', 'n': 7}]
     """
     choices = _choices(models, methods, model_options)
     levels = check_levels(levels)

@@ -125,6 +125,16 @@ def run_batch(
     Returns
     -------
     BatchResult
+
+    Examples
+    --------
+    >>> import tempfile
+    >>> from pathlib import Path
+    >>> import bayesgrowth as bg
+    >>> out = Path(tempfile.mkdtemp()) / "batch"
+    >>> result = bg.run_batch({"demo": bg.load_demo()}, out, bg.BatchSettings(horizon=2))
+    >>> result.n_fitted, sorted(p.name for p in out.glob("*.csv"))
+    (1, ['failures.csv', 'forecast.csv', 'summary.csv'])
     """
     read_failures = list(read_failures or [])
     if order is None:

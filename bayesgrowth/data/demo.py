@@ -15,5 +15,13 @@ def demo_path() -> Path:
 
 
 def load_demo() -> GrowthSeries:
-    """Load the demo series: 20 quarters of revenue of the invented *Larkspur Instruments*."""
+    """Load the demo series: 20 quarters of revenue of the invented *Larkspur Instruments*.
+
+    Examples
+    --------
+    >>> import bayesgrowth as bg
+    >>> series = bg.load_demo()
+    >>> series.n, series.labels[0], series.labels[-1]
+    (20, '2021Q1', '2025Q4')
+    """
     return read_series(demo_path(), name="Larkspur Instruments revenue (demo)")

@@ -348,6 +348,15 @@ def forecast(
         Or, for a :class:`~bayesgrowth.inference.pooled.PooledFit`, a
         :class:`~bayesgrowth.forecast.pooled.PooledForecast` of every series and
         their total (:func:`~bayesgrowth.forecast.pooled.forecast_pooled`).
+
+    Examples
+    --------
+    >>> import bayesgrowth as bg
+    >>> fc = bg.forecast(bg.fit_series(bg.load_demo(), engine="exact", seed=1), 4)
+    >>> fc.periods
+    ['2026Q1', '2026Q2', '2026Q3', '2026Q4']
+    >>> fc.table.columns[:4].tolist()
+    ['period', 'step', 'mean', 'median']
     """
     if isinstance(fit, PooledFit):
         from bayesgrowth.forecast.pooled import forecast_pooled

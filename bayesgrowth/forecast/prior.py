@@ -309,6 +309,13 @@ def prior_predictive(
     Returns
     -------
     PriorPredictive
+
+    Examples
+    --------
+    >>> import bayesgrowth as bg
+    >>> prior = bg.prior_predictive(bg.load_demo(), 4, seed=1)
+    >>> prior.draws.shape[0], prior.levels
+    (4000, (50, 80, 95))
     """
     if int(horizon) != horizon or horizon < 0:
         raise ValueError(f"horizon must be a whole number of periods >= 0, got {horizon}")

@@ -170,6 +170,15 @@ def prior_sensitivity(
     Returns
     -------
     SensitivityResult
+
+    Examples
+    --------
+    >>> import bayesgrowth as bg
+    >>> result = bg.prior_sensitivity(bg.load_demo(), 4, anchors=(0.0, 50.0),
+    ...                               growth_centres=(0.0,), growth_spreads=(10.0,),
+    ...                               engine="exact")
+    >>> result.period
+    '2026Q4'
     """
     from bayesgrowth.forecast.forecast import forecast
     from bayesgrowth.inference.run import fit_series

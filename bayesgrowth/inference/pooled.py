@@ -161,6 +161,20 @@ def fit_pooled(
     -------
     PooledFit
         A failed diagnostic check warns (:class:`~bayesgrowth.inference.SamplingWarning`).
+
+    Examples
+    --------
+    Sampling takes seconds to minutes, so it is shown, not run, here:
+
+    >>> import bayesgrowth as bg
+    >>> demo = bg.load_demo()
+    >>> panel = {"older": demo, "newer": demo.head(6)}
+    >>> fit = bg.fit_pooled(panel, seed=1)  # doctest: +SKIP
+    >>> bg.forecast(fit, 4).total[["period", "median"]]  # doctest: +SKIP
+    >>> bg.fit_pooled({})
+    Traceback (most recent call last):
+    ...
+    ValueError: the panel has no series
     """
     from bayesgrowth.inference.nuts import diagnose
 

@@ -62,6 +62,16 @@ def fit_series(
     -------
     Fit
         With diagnostics checked; a failed check warns (:class:`SamplingWarning`).
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> import bayesgrowth as bg
+    >>> fit = bg.fit_series(bg.load_demo(), engine="exact", seed=1)
+    >>> fit.engine, fit.diagnostics.ok
+    ('exact', True)
+    >>> round(float(np.median(fit.derived()["growth_per_period"])), 3)
+    0.081
     """
     if engine not in ENGINES:
         raise ValueError(f"engine must be one of {', '.join(ENGINES)}, got {engine!r}")

@@ -117,6 +117,16 @@ def plot_fan(forecast, ax: Axes | None = None, *, show_curve: bool = False,
     Returns
     -------
     matplotlib.axes.Axes
+
+    Examples
+    --------
+    >>> import matplotlib.pyplot as plt
+    >>> import bayesgrowth as bg
+    >>> fc = bg.forecast(bg.fit_series(bg.load_demo(), engine="exact", seed=1), 4)
+    >>> ax = bg.plot_fan(fc)
+    >>> ax.get_title().splitlines()[0]
+    'Larkspur Instruments revenue (demo)'
+    >>> plt.close(ax.figure)
     """
     import matplotlib.pyplot as plt
 

@@ -88,6 +88,13 @@ def build_report(
     -------
     str
         The HTML page.
+
+    Examples
+    --------
+    >>> import bayesgrowth as bg
+    >>> page = bg.build_report(bg.load_demo(), 4, with_backtest=False)
+    >>> page.startswith("<!DOCTYPE html>"), "not investment advice" in page
+    (True, True)
     """
     import matplotlib
 

@@ -38,6 +38,12 @@ def registered_models() -> tuple[str, ...]:
 
     The families of the model registry (:mod:`bayesgrowth.models.registry`), in
     registration order.
+
+    Examples
+    --------
+    >>> import bayesgrowth as bg
+    >>> "exponential" in bg.registered_models()
+    True
     """
     from bayesgrowth.models import registry
 
@@ -85,6 +91,13 @@ def fit_models(
     dict of str to Fit
         Keyed by curve name, in the order given. Sampling-diagnostic warnings are
         kept in each fit's ``diagnostics`` rather than raised.
+
+    Examples
+    --------
+    >>> import bayesgrowth as bg
+    >>> fits = bg.fit_models(bg.load_demo(), ["exponential", "local-trend"], seed=1)
+    >>> {name: fit.engine for name, fit in fits.items()}
+    {'exponential': 'exact', 'local-trend': 'exact'}
     """
     from bayesgrowth.inference.run import fit_series
     from bayesgrowth.models.spec import ModelSpec, resolve_seasonal
@@ -330,6 +343,17 @@ def model_average(
         PSIS-LOO precisely because its draws are wrong. When every model failed,
         all are kept (nothing else could be averaged) and the comparison table
         flags each; the command line then exits non-zero unless accepted.
+
+    Examples
+    --------
+    >>> import bayesgrowth as bg
+    >>> series = bg.load_demo()
+    >>> fits = {"exponential": bg.fit_series(series, engine="exact", seed=1),
+    ...         "local trend": bg.fit_series(series, engine="exact", seed=1,
+    ...                                      model="local-trend")}
+    >>> avg = bg.model_average(fits, 4, seed=1)
+    >>> sorted(avg.forecasts), avg.averaged.table.shape[0]
+    (['exponential', 'local trend'], 4)
     """
     from bayesgrowth.forecast.forecast import forecast
 

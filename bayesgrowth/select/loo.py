@@ -294,6 +294,16 @@ def compare_models(fits: Mapping) -> ModelComparison:
     Returns
     -------
     ModelComparison
+
+    Examples
+    --------
+    >>> import bayesgrowth as bg
+    >>> series = bg.load_demo()
+    >>> flat = bg.Priors(growth=bg.GrowthPrior(0, 0.5))  # growth held near zero
+    >>> fits = {"free": bg.fit_series(series, engine="exact", seed=1),
+    ...         "flat": bg.fit_series(series, engine="exact", seed=1, priors=flat)}
+    >>> bg.compare_models(fits).best
+    'free'
     """
     if not fits:
         raise ValueError("give at least one fitted model to compare")
