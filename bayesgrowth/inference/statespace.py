@@ -428,13 +428,21 @@ class StateSpacePosterior:
         draws = {k: v[nodes] for k, v in self.params.items()}
         return nodes, {**draws, **named, "latest_log_growth": growth}
 
-    def pointwise_loglik(self, nodes: np.ndarray, beta: np.ndarray) -> np.ndarray:
-        """One-step log densities of the log values for draws ``(nodes, beta)``, ``(S, n)``."""
+    def one_step(self, nodes: np.ndarray, beta: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """One-step-ahead errors and their variances at the observations, ``(S, n)`` each.
+
+        For draw ``(node, beta)`` the filter's forecast of each log value from the
+        values before it is ``y - error`` with variance ``variance`` (the prediction
+        error decomposition: the errors are independent given the draw).
+        """
         used, inverse = np.unique(nodes, return_inverse=True)
         innov, var = _innovations(self._ctx, {k: v[used] for k, v in self.params.items()})
         v = innov[inverse]
-        e = v[..., 0] - np.einsum("snp,sp->sn", v[..., 1:], beta)
-        f = var[inverse]
+        return v[..., 0] - np.einsum("snp,sp->sn", v[..., 1:], beta), var[inverse]
+
+    def pointwise_loglik(self, nodes: np.ndarray, beta: np.ndarray) -> np.ndarray:
+        """One-step log densities of the log values for draws ``(nodes, beta)``, ``(S, n)``."""
+        e, f = self.one_step(nodes, beta)
         return -0.5 * (math.log(2 * math.pi) + np.log(f) + e**2 / f)
 
     def beta_of(self, draws: dict) -> np.ndarray:

@@ -77,15 +77,24 @@ def _title(forecast) -> str:
 
 
 def _draw_fit(ax: Axes, forecast, level: int) -> None:
-    curve = fitted_curve(forecast)
-    if curve is None:
-        return
+    """The fitted curve over the history, or a local trend's one-step-ahead forecasts."""
     t_obs = forecast.fit.series.t
+    curve = fitted_curve(forecast)
+    what = "Fitted curve"
+    if curve is None:
+        from bayesgrowth.forecast.history import one_step_history
+
+        found = one_step_history(forecast.fit, seed=int(getattr(forecast.fit, "seed", 0)))
+        if found is None or not hasattr(forecast.fit, "extra"):
+            return
+        curve, first = found
+        curve, t_obs = curve[:, first:], t_obs[first:]
+        what = "One-step-ahead forecasts"
     lo, hi = np.quantile(curve, band_probabilities(level), axis=0)
     ax.fill_between(t_obs, lo, hi, facecolor=BAND_SHADES[-1], edgecolor="none", zorder=1.8,
-                    label=f"Fitted curve, {level}% band")
+                    label=f"{what}, {level}% band")
     ax.plot(t_obs, np.median(curve, axis=0), color=FORECAST, linewidth=1.0,
-            linestyle=(0, (4, 2)), zorder=3, label="Fitted curve (median)")
+            linestyle=(0, (4, 2)), zorder=3, label=f"{what} (median)")
 
 
 def plot_fan(forecast, ax: Axes | None = None, *, show_curve: bool = False,

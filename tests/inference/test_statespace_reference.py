@@ -157,3 +157,24 @@ def test_compiled_statistics_equal_the_plain_filter():
         # quadratic form cancels about six digits, so agreement to ~1e-16 * 1e6 * 10
         for mine, plain in zip(compiled, ss._integrate(gram, logf, y.size, ctx), strict=True):
             np.testing.assert_allclose(mine, plain, rtol=1e-8, atol=1e-9)
+
+
+def test_one_step_forecasts_over_the_history_match_statsmodels():
+    # given theta and beta, the one-step-ahead forecasts of the observed log values and their
+    # variances are statsmodels' filter forecasts with the initial state known to be beta
+    ctx, j, y = _context(n=24, seasons=4, long_run=True, missing=())
+    theta = THETAS[0]
+    rho, sl, sg, sig = (np.array([c]) for c in theta)
+    ev = ss._evaluate(ctx, {"rho": rho, "sigma_level": sl, "sigma_growth": sg, "sigma": sig})
+    post = ss.StateSpacePosterior(
+        ctx, None, None, 0,
+        {**ev, "rho": rho, "sigma_level": sl, "sigma_growth": sg, "sigma": sig,
+         "half_life": np.array([np.inf])},
+        np.array([1.0]), {"drifting": 1.0}, 0.0, 1)
+    beta = ctx.mu0 + np.sqrt(ctx.var0) * np.linspace(-1, 1, ctx.mu0.size)
+    err, var = post.one_step(np.array([0]), beta[None, :])
+    mod = _full_model(y, ctx, *theta)
+    mod.ssm.initialize_known(beta, np.zeros((beta.size, beta.size)))
+    ref = mod.ssm.filter()
+    np.testing.assert_allclose(y - err[0], ref.forecasts[0], rtol=1e-9)
+    np.testing.assert_allclose(var[0], ref.forecasts_error_cov[0, 0], rtol=1e-9)

@@ -242,3 +242,18 @@ def test_unit_comes_from_the_option_or_the_value_column():
     assert unit_from_args(SimpleNamespace(unit="EUR m", value_col="revenue")) == "EUR m"
     assert unit_from_args(SimpleNamespace(unit=None, value_col="revenue")) == "revenue"
     assert unit_from_args(SimpleNamespace(unit=None, value_col="value")) is None
+
+
+def test_fan_of_a_local_trend_shows_its_one_step_forecasts_over_the_history():
+    import bayesgrowth as bg
+
+    fc = bg.GrowthModel(seed=2).fit(bg.load_demo()).forecast(4)
+    ax = _drawn(plot_fan(fc))
+    texts = _legend_texts(ax)
+    assert "One-step-ahead forecasts (median)" in texts
+    assert "One-step-ahead forecasts, 95% band" in texts
+    median = next(ln for ln in ax.get_lines()
+                  if ln.get_label() == "One-step-ahead forecasts (median)")
+    # shown once the model has seen as many periods as it has coefficients (6 here)
+    t = fc.fit.series.t
+    np.testing.assert_array_equal(np.asarray(median.get_xdata()), t[6:])
