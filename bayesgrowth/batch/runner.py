@@ -141,56 +141,17 @@ def run_batch(
         order = list(panel) + [n for n, _ in read_failures if n not in panel]
     own = executor is None
     executor = executor or LocalExecutor()
-    padded = 0
-    if settings.engine == "nuts" and panel:
-        from bayesgrowth.batch.compiled import padded_length
-
-        padded = padded_length(max(s.n for s in panel.values()))
-    threads = 1 if executor.workers > 1 else min(settings.chains, 2)
     store = RunStore(out_dir, settings.to_record(), protect or [])
-    settings = BatchSettings(
-        **{**settings.__dict__, "padded_length": padded, "threads": threads,
-           "posterior_dir": str(store.posterior_dir()) if save_posteriors else None}
-    )
-    if (settings.uses_compiled_nuts() and isinstance(executor, LocalExecutor)
-            and executor.workers > 1 and pending_any(panel, store)):
-        _compile_before_fork(next(iter(panel.values())), settings)
+    settings = _worker_settings(panel, settings, executor, store, save_posteriors)
     current = {name: s.fingerprint() for name, s in panel.items()}
     done = store.finished()
     pending = [s for name, s in panel.items() if done.get(name) != current[name]]
     skipped = len(panel) - len(pending)
     chunks = plan_chunks(pending, executor.workers, settings.engine, chunk_size)
-    failed: list[tuple[str, str]] = []
-    bar = None
-    n_ok = n_failed = 0
+    bar = _progress_bar(len(panel), skipped) if progress else None
     try:
         results = executor.run(fit_chunk, chunks, settings)
-        if progress:
-            from tqdm import tqdm
-
-            class _Bar(tqdm):
-                monitor_interval = 0  # no monitor thread: worker processes are forked
-
-            bar = _Bar(total=len(panel), initial=skipped, unit="series", desc="batch",
-                       dynamic_ncols=True)
-            bar.set_postfix(finished=0, failed=0)
-        for i, outcome in results:
-            if isinstance(outcome, BaseException):
-                reason = (f"worker failed: {type(outcome).__name__}: {outcome}; "
-                          "run the batch again to retry")
-                failed.extend((s.name, f"{s.name}: {reason}") for s in chunks[i])
-                n_failed += len(chunks[i])
-            else:
-                store.write_chunk(outcome)
-                bad = [(o.name, o.failure) for o in outcome if o.failure is not None]
-                failed.extend(bad)
-                n_failed += len(bad)
-                n_ok += len(outcome) - len(bad)
-                if on_chunk is not None:
-                    on_chunk(outcome)
-            if bar is not None:
-                bar.set_postfix(finished=n_ok, failed=n_failed, refresh=False)
-                bar.update(len(chunks[i]))
+        n_ok, failed = _record_results(results, chunks, store, on_chunk, bar)
     finally:
         if bar is not None:
             bar.close()
@@ -201,3 +162,55 @@ def run_batch(
         out=Path(out_dir), forecast=forecast, summary=summary, failures=failures,
         n_fitted=n_ok, n_skipped=skipped,
     )
+
+
+def _worker_settings(panel, settings: BatchSettings, executor: Executor, store: RunStore,
+                     save_posteriors: bool) -> BatchSettings:
+    """The settings the workers get: padded length, threads and where posteriors go."""
+    padded = 0
+    if settings.engine == "nuts" and panel:
+        from bayesgrowth.batch.compiled import padded_length
+
+        padded = padded_length(max(s.n for s in panel.values()))
+    threads = 1 if executor.workers > 1 else min(settings.chains, 2)
+    settings = BatchSettings(
+        **{**settings.__dict__, "padded_length": padded, "threads": threads,
+           "posterior_dir": str(store.posterior_dir()) if save_posteriors else None}
+    )
+    if (settings.uses_compiled_nuts() and isinstance(executor, LocalExecutor)
+            and executor.workers > 1 and pending_any(panel, store)):
+        _compile_before_fork(next(iter(panel.values())), settings)
+    return settings
+
+
+def _progress_bar(total: int, initial: int):
+    from tqdm import tqdm
+
+    class _Bar(tqdm):
+        monitor_interval = 0  # no monitor thread: worker processes are forked
+
+    bar = _Bar(total=total, initial=initial, unit="series", desc="batch", dynamic_ncols=True)
+    bar.set_postfix(finished=0, failed=0)
+    return bar
+
+
+def _record_results(results, chunks, store: RunStore, on_chunk, bar) -> tuple[int, list]:
+    """Record each chunk's outcomes as it finishes; the fitted count and the failures."""
+    failed: list[tuple[str, str]] = []
+    n_ok = 0
+    for i, outcome in results:
+        if isinstance(outcome, BaseException):
+            reason = (f"worker failed: {type(outcome).__name__}: {outcome}; "
+                      "run the batch again to retry")
+            failed.extend((s.name, f"{s.name}: {reason}") for s in chunks[i])
+        else:
+            store.write_chunk(outcome)
+            bad = [(o.name, o.failure) for o in outcome if o.failure is not None]
+            failed.extend(bad)
+            n_ok += len(outcome) - len(bad)
+            if on_chunk is not None:
+                on_chunk(outcome)
+        if bar is not None:
+            bar.set_postfix(finished=n_ok, failed=len(failed), refresh=False)
+            bar.update(len(chunks[i]))
+    return n_ok, failed

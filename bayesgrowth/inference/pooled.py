@@ -178,15 +178,7 @@ def fit_pooled(
     """
     from bayesgrowth.inference.nuts import diagnose
 
-    if isinstance(panel, list):
-        names = [s.name for s in panel]
-        if len(set(names)) != len(names):
-            raise ValueError("series names must be unique; pass a dict keyed by name")
-        panel = dict(zip(names, panel, strict=True))
-    if not panel:
-        raise ValueError("the panel has no series")
-    if errors not in ERRORS:
-        raise ValueError(f"errors must be one of {', '.join(ERRORS)}, got {errors!r}")
+    panel = _as_panel(panel, errors)
     priors = priors or Priors()
     group = group or GroupPrior()
     resolved = {name: priors.resolve(s) for name, s in panel.items()}
@@ -198,26 +190,9 @@ def fit_pooled(
         target_accept = TARGET_ACCEPT_SHORT if short else TARGET_ACCEPT
     data = stack_panel(list(panel.values()), list(resolved.values()), group.tau_scale)
     model = build_pymc_model(data, next(iter(resolved.values())), group, errors)
-    if sampler not in ("auto", "nutpie", "pymc"):
-        raise ValueError(f"sampler must be auto, nutpie or pymc, got {sampler!r}")
-    if sampler == "auto":
-        try:
-            import nutpie  # noqa: F401
-
-            sampler = "nutpie"
-        except ImportError:
-            sampler = "pymc"
-    if sampler == "nutpie":
-        import nutpie
-
-        compiled = nutpie.compile_pymc_model(model)
-        idata = nutpie.sample(
-            compiled, draws=draws, tune=tune, chains=chains, cores=cores, seed=seed,
-            target_accept=target_accept, save_warmup=False, progress_bar=progressbar,
-        )
-    else:
-        idata = sample_pymc(model, seed=seed, draws=draws, tune=tune, chains=chains,
-                            cores=cores, target_accept=target_accept, progressbar=progressbar)
+    sampler = _sampler(sampler)
+    idata = _sample(model, sampler, seed=seed, draws=draws, tune=tune, chains=chains,
+                    cores=cores, target_accept=target_accept, progressbar=progressbar)
     post = idata.posterior
     keys = ["log_a", "log1p_g", "sigma", "mu_growth", "tau_growth"]
     keys += ["phi"] if errors == "ar1" else []
@@ -235,3 +210,44 @@ def fit_pooled(
     )
     diagnostics.warn_if_failed()
     return fit
+
+
+def _as_panel(panel, errors: str) -> dict[str, GrowthSeries]:
+    """The panel as a dict keyed by unique names; refuse an empty one or unknown errors."""
+    if isinstance(panel, list):
+        names = [s.name for s in panel]
+        if len(set(names)) != len(names):
+            raise ValueError("series names must be unique; pass a dict keyed by name")
+        panel = dict(zip(names, panel, strict=True))
+    if not panel:
+        raise ValueError("the panel has no series")
+    if errors not in ERRORS:
+        raise ValueError(f"errors must be one of {', '.join(ERRORS)}, got {errors!r}")
+    return panel
+
+
+def _sampler(sampler: str) -> str:
+    """``"nutpie"`` or ``"pymc"``: ``"auto"`` takes nutpie when it is installed."""
+    if sampler not in ("auto", "nutpie", "pymc"):
+        raise ValueError(f"sampler must be auto, nutpie or pymc, got {sampler!r}")
+    if sampler != "auto":
+        return sampler
+    try:
+        import nutpie  # noqa: F401
+    except ImportError:
+        return "pymc"
+    return "nutpie"
+
+
+def _sample(model, sampler: str, *, seed, draws, tune, chains, cores, target_accept,
+            progressbar):
+    if sampler == "nutpie":
+        import nutpie
+
+        compiled = nutpie.compile_pymc_model(model)
+        return nutpie.sample(
+            compiled, draws=draws, tune=tune, chains=chains, cores=cores, seed=seed,
+            target_accept=target_accept, save_warmup=False, progress_bar=progressbar,
+        )
+    return sample_pymc(model, seed=seed, draws=draws, tune=tune, chains=chains, cores=cores,
+                       target_accept=target_accept, progressbar=progressbar)

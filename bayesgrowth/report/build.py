@@ -100,11 +100,8 @@ def build_report(
 
     matplotlib.use("Agg")
 
-    from bayesgrowth.comparison import compare_to_forecast
     from bayesgrowth.forecast.forecast import forecast
     from bayesgrowth.inference.run import fit_series
-    from bayesgrowth.leastsq import LeastSquaresError
-    from bayesgrowth.plots.compare import comparison_figure
     from bayesgrowth.plots.fan import plot_fan
 
     fit = fit_series(series, engine=engine, priors=priors, seed=seed, **(fit_options or {}))
@@ -124,27 +121,42 @@ def build_report(
         parts.timestamp = timestamp
     if average is not None:
         _add_average(parts, average, unit)
+    _add_comparison(parts, fc, unit)
+    settings = backtest_settings_for(series.n, horizon) if with_backtest else None
+    if settings is not None:
+        _add_backtest(parts, series, settings, engine=engine, seed=seed, priors=priors,
+                      fit_options=fit_options)
+    return render_report(parts)
+
+
+def _add_comparison(parts: ReportParts, fc, unit: str | None) -> None:
+    """The least-squares section: variants beside the forecast (none when they fail)."""
+    from bayesgrowth.comparison import compare_to_forecast
+    from bayesgrowth.leastsq import LeastSquaresError
+    from bayesgrowth.plots.compare import comparison_figure
+
     try:
         comp = compare_to_forecast(fc)
     except LeastSquaresError:
-        comp = None
-    if comp is not None:
-        parts.comparison = comp
-        parts.comparison_chart = figure_data_uri(comparison_figure(comp, unit=unit))
-    settings = backtest_settings_for(series.n, horizon) if with_backtest else None
-    if settings is not None:
-        from bayesgrowth.backtest import backtest
-        from bayesgrowth.plots.backtest import calibration_figure
+        return
+    parts.comparison = comp
+    parts.comparison_chart = figure_data_uri(comparison_figure(comp, unit=unit))
 
-        min_train, bt_h = settings
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore")
-            result = backtest(series, methods=(engine, "log-linear", "naive"), horizon=bt_h,
-                              min_train=min_train, levels=fc.levels, seed=seed, priors=priors,
-                              model_options=fit_options)
-        parts.backtest = result
-        parts.calibration_chart = figure_data_uri(calibration_figure(result))
-    return render_report(parts)
+
+def _add_backtest(parts: ReportParts, series: GrowthSeries, settings: tuple[int, int], *,
+                  engine: str, seed: int, priors, fit_options: dict | None) -> None:
+    """The calibration section: a backtest of the engine beside two plain methods."""
+    from bayesgrowth.backtest import backtest
+    from bayesgrowth.plots.backtest import calibration_figure
+
+    min_train, bt_h = settings
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        result = backtest(series, methods=(engine, "log-linear", "naive"), horizon=bt_h,
+                          min_train=min_train, levels=parts.forecast.levels, seed=seed,
+                          priors=priors, model_options=fit_options)
+    parts.backtest = result
+    parts.calibration_chart = figure_data_uri(calibration_figure(result))
 
 
 def _add_average(parts: ReportParts, average, unit: str | None) -> None:
