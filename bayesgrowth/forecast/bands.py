@@ -13,7 +13,7 @@ import numpy as np
 import pandas as pd
 
 __all__ = ["band_columns", "band_probabilities", "check_horizon", "draws_table",
-           "prob_at_least"]
+           "interval_summary", "prob_at_least"]
 
 
 def band_probabilities(level: float) -> list[float]:
@@ -85,3 +85,16 @@ def prob_at_least(periods: Sequence[str], draws: np.ndarray, target: float) -> p
     """Share of the draws of each period at least ``target``, indexed by period."""
     return pd.Series((draws >= target).mean(axis=0),
                      index=pd.Index(list(periods), name="period"), name="probability")
+
+
+def interval_summary(x: np.ndarray, levels=(80, 95)) -> dict:
+    """Median, mean and central bands of draws ``x``, as floats (JSON-ready)."""
+    # draws may be infinite (a doubling time where growth is not positive): the quantiles
+    # then are too, and numpy's interpolation between two infinities warns; say it in JSON
+    with np.errstate(invalid="ignore"):
+        out = {"median": float(np.median(x)), "mean": float(np.mean(x))}
+        for level in levels:
+            lo, hi = np.quantile(x, band_probabilities(level))
+            out[f"lower_{level}"] = float(lo)
+            out[f"upper_{level}"] = float(hi)
+    return out

@@ -14,8 +14,10 @@ from bayesgrowth.forecast.bands import (
     band_probabilities,
     check_horizon,
     draws_table,
+    interval_summary,
     prob_at_least,
 )
+from bayesgrowth.forecast.summaries import forecast_html, forecast_summary, forecast_text
 from bayesgrowth.inference.fit import Fit
 from bayesgrowth.inference.mixture import mixture_cdf, mixture_mean_exp, mixture_quantiles
 from bayesgrowth.inference.pooled import PooledFit
@@ -62,18 +64,6 @@ def saturates(fit) -> bool:
     return bool(spec is not None and spec.family.ceiling)
 
 
-def _interval(x: np.ndarray, levels=(80, 95)) -> dict:
-    # draws may be infinite (a doubling time where growth is not positive): the quantiles
-    # then are too, and numpy's interpolation between two infinities warns; say it in JSON
-    with np.errstate(invalid="ignore"):
-        out = {"median": float(np.median(x)), "mean": float(np.mean(x))}
-        for level in levels:
-            lo, hi = np.quantile(x, band_probabilities(level))
-            out[f"lower_{level}"] = float(lo)
-            out[f"upper_{level}"] = float(hi)
-    return out
-
-
 @dataclass
 class Forecast:
     """A posterior predictive forecast for ``horizon`` periods after the last observation.
@@ -113,13 +103,9 @@ class Forecast:
     exact: dict | None = None
 
     def __repr__(self) -> str:
-        from bayesgrowth.forecast.summaries import forecast_text
-
         return forecast_text(self)
 
     def _repr_html_(self) -> str:
-        from bayesgrowth.forecast.summaries import forecast_html
-
         return forecast_html(self)
 
     def _mixture_bands(self, sd_key: str, prefix: str = "") -> dict:
@@ -215,14 +201,14 @@ class Forecast:
         double and count as infinite, so its upper bounds can be ``inf``.
         """
         g = self.fit.derived()["growth_per_period"]
-        rows = {"growth_per_period": _interval(g)}
+        rows = {"growth_per_period": interval_summary(g)}
         ppy = self.fit.series.axis.periods_per_year
         if ppy is not None and ppy != 1:
-            rows["growth_per_year"] = _interval((1 + g) ** ppy - 1)
+            rows["growth_per_year"] = interval_summary((1 + g) ** ppy - 1)
         with np.errstate(divide="ignore"):
             log_growth = np.log1p(g)
             doubling = np.where(log_growth > 0, math.log(2) / log_growth, np.inf)
-        rows["doubling_time_periods"] = _interval(doubling)
+        rows["doubling_time_periods"] = interval_summary(doubling)
         rows["prob_growth_positive"] = {"median": float((g > 0).mean())}
         return pd.DataFrame(rows).T
 
@@ -234,71 +220,11 @@ class Forecast:
                                      saturates=saturates(self.fit))
 
     def summary(self, target: float | None = None, target_probability: float = 0.5) -> dict:
-        """A JSON-ready summary: parameters, growth, diagnostics, provenance, cautions."""
-        derived = self.fit.derived()
-        fit_flat = self.fit.flat()
-        growth = self.growth()
-        out = {
-            "series": self.fit.series.name,
-            "engine": self.fit.engine,
-            "model": self.fit.model,
-            "model_options": self.fit.spec.to_dict(),
-            "model_description": self.fit.spec.label(),
-            "seed": self.fit.seed,
-            "forecast_seed": self.seed,
-            "horizon": self.horizon,
-            "levels": list(self.levels),
-            "frequency": self.fit.series.axis.frequency,
-            "last_observed_period": self.fit.series.labels[-1],
-            "initial_value": {
-                "reference_period": self.fit.priors.reference_period,
-                **_interval(derived["initial_value"]),
-            },
-            "growth_per_period": _interval(derived["growth_per_period"]),
-        }
-        if "ceiling" in derived:
-            out["ceiling"] = _interval(derived["ceiling"])
-        if self.fit.state_space is not None and self.fit.spec.growth_fades:
-            out["growth_fades"] = _fading_summary(self.fit, fit_flat["half_life"])
-        elif "half_life" in fit_flat:
-            out["half_life_periods"] = _interval(fit_flat["half_life"])
-        for name in ("growth_per_year", "doubling_time_periods"):
-            if name in growth.index:
-                out[name] = {k: _finite(v) for k, v in growth.loc[name].items()}
-        out["prob_growth_positive"] = float(growth.loc["prob_growth_positive", "median"])
-        final = self.draws[:, -1]
-        out["final_period"] = {"period": self.periods[-1], **_interval(final, self.levels)}
-        if self.exact is not None:  # the exact mixture's numbers, as in the table
-            last = self.table.iloc[-1]
-            out["final_period"].update({k: float(last[k]) for k in out["final_period"]
-                                        if k != "period" and k in last.index})
-        if target is not None:
-            out["target"] = {
-                "value": target,
-                "probability_at_least_by_period": {
-                    k: float(v) for k, v in self.prob_exceeds(target).items()
-                },
-                "probability": target_probability,
-                "first_period_reaching": self.first_period_reaching(target, target_probability),
-            }
-            out["time_to_target"] = self.time_to_target(target).to_dict(
-                (0.5, 0.8, target_probability))
-        fit = self.fit
-        out["diagnostics"] = fit.diagnostics.to_dict()
-        out["priors"] = {
-            "used": fit.priors.to_dict(), "in_words": fit.priors.describe(fit.spec)
-        }
-        out["settings"] = fit.settings
-        out["input"] = {
-            "source": fit.series.source,
-            "n_observations": fit.series.n,
-            "first_period": fit.series.labels[0],
-            "missing_periods": list(fit.series.gaps),
-            "fingerprint_sha256": fit.series.fingerprint(),
-        }
-        out["bayesgrowth_version"] = fit.attrs()["bayesgrowth_version"]
-        out["cautions"] = [c for c in (self.caution, CAUTION) if c]
-        return out
+        """A JSON-ready summary: parameters, growth, diagnostics, provenance, cautions.
+
+        See :func:`bayesgrowth.forecast.summaries.forecast_summary`.
+        """
+        return forecast_summary(self, target, target_probability)
 
     def predictive_groups(self) -> dict:
         """The draws in the form :meth:`Fit.to_inference_data` takes."""
@@ -307,19 +233,6 @@ class Forecast:
     def to_inference_data(self):
         """InferenceData with posterior, posterior predictive, log likelihood and observed data."""
         return self.fit.to_inference_data(self.predictive_groups())
-
-
-def _fading_summary(fit: Fit, half_life: np.ndarray) -> dict:
-    """How likely growth fades, and its half-life among the draws where it does."""
-    fades = np.isfinite(half_life)
-    out = {"probability": float(fit.state_space.branch_weight.get("fading", fades.mean()))}
-    if fades.sum() >= 20:
-        out["half_life_periods_if_fading"] = _interval(half_life[fades])
-    return out
-
-
-def _finite(v: float) -> float | None:
-    return float(v) if math.isfinite(v) else None
 
 
 def forecast(

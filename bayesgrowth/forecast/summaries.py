@@ -1,10 +1,16 @@
-"""Short summaries of a forecast for people: its ``repr`` and its notebook table."""
+"""Summaries of a forecast: the JSON-ready summary, its ``repr`` and its notebook table."""
 
 from __future__ import annotations
 
-from bayesgrowth.display import fmt_interval, fmt_number, html_summary, text_summary
+import math
 
-__all__ = ["forecast_html", "forecast_text"]
+import numpy as np
+
+from bayesgrowth.display import fmt_interval, fmt_number, html_summary, text_summary
+from bayesgrowth.forecast.bands import interval_summary
+from bayesgrowth.inference.fit import Fit
+
+__all__ = ["forecast_html", "forecast_summary", "forecast_text"]
 
 
 def _title(fc) -> str:
@@ -39,3 +45,99 @@ def forecast_html(fc) -> str:
         for _, row in table.iterrows()
     ]
     return html_summary(_title(fc), _headline(fc), cols, rows)
+
+
+def forecast_summary(fc, target: float | None = None, target_probability: float = 0.5) -> dict:
+    """A JSON-ready summary of a forecast: parameters, growth, diagnostics, provenance, cautions.
+
+    Parameters
+    ----------
+    fc : Forecast
+    target : float, optional
+        A value whose probability of being reached is summarised per period.
+    target_probability : float
+        The probability at which the target counts as reached.
+
+    Returns
+    -------
+    dict
+    """
+    from bayesgrowth.forecast.forecast import CAUTION
+
+    derived = fc.fit.derived()
+    fit_flat = fc.fit.flat()
+    growth = fc.growth()
+    out = {
+        "series": fc.fit.series.name,
+        "engine": fc.fit.engine,
+        "model": fc.fit.model,
+        "model_options": fc.fit.spec.to_dict(),
+        "model_description": fc.fit.spec.label(),
+        "seed": fc.fit.seed,
+        "forecast_seed": fc.seed,
+        "horizon": fc.horizon,
+        "levels": list(fc.levels),
+        "frequency": fc.fit.series.axis.frequency,
+        "last_observed_period": fc.fit.series.labels[-1],
+        "initial_value": {
+            "reference_period": fc.fit.priors.reference_period,
+            **interval_summary(derived["initial_value"]),
+        },
+        "growth_per_period": interval_summary(derived["growth_per_period"]),
+    }
+    if "ceiling" in derived:
+        out["ceiling"] = interval_summary(derived["ceiling"])
+    if fc.fit.state_space is not None and fc.fit.spec.growth_fades:
+        out["growth_fades"] = _fading_summary(fc.fit, fit_flat["half_life"])
+    elif "half_life" in fit_flat:
+        out["half_life_periods"] = interval_summary(fit_flat["half_life"])
+    for name in ("growth_per_year", "doubling_time_periods"):
+        if name in growth.index:
+            out[name] = {k: _finite(v) for k, v in growth.loc[name].items()}
+    out["prob_growth_positive"] = float(growth.loc["prob_growth_positive", "median"])
+    final = fc.draws[:, -1]
+    out["final_period"] = {"period": fc.periods[-1], **interval_summary(final, fc.levels)}
+    if fc.exact is not None:  # the exact mixture's numbers, as in the table
+        last = fc.table.iloc[-1]
+        out["final_period"].update({k: float(last[k]) for k in out["final_period"]
+                                    if k != "period" and k in last.index})
+    if target is not None:
+        out["target"] = {
+            "value": target,
+            "probability_at_least_by_period": {
+                k: float(v) for k, v in fc.prob_exceeds(target).items()
+            },
+            "probability": target_probability,
+            "first_period_reaching": fc.first_period_reaching(target, target_probability),
+        }
+        out["time_to_target"] = fc.time_to_target(target).to_dict(
+            (0.5, 0.8, target_probability))
+    fit = fc.fit
+    out["diagnostics"] = fit.diagnostics.to_dict()
+    out["priors"] = {
+        "used": fit.priors.to_dict(), "in_words": fit.priors.describe(fit.spec)
+    }
+    out["settings"] = fit.settings
+    out["input"] = {
+        "source": fit.series.source,
+        "n_observations": fit.series.n,
+        "first_period": fit.series.labels[0],
+        "missing_periods": list(fit.series.gaps),
+        "fingerprint_sha256": fit.series.fingerprint(),
+    }
+    out["bayesgrowth_version"] = fit.attrs()["bayesgrowth_version"]
+    out["cautions"] = [c for c in (fc.caution, CAUTION) if c]
+    return out
+
+
+def _fading_summary(fit: Fit, half_life: np.ndarray) -> dict:
+    """How likely growth fades, and its half-life among the draws where it does."""
+    fades = np.isfinite(half_life)
+    out = {"probability": float(fit.state_space.branch_weight.get("fading", fades.mean()))}
+    if fades.sum() >= 20:
+        out["half_life_periods_if_fading"] = interval_summary(half_life[fades])
+    return out
+
+
+def _finite(v: float) -> float | None:
+    return float(v) if math.isfinite(v) else None
