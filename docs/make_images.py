@@ -7,10 +7,11 @@ Run from the repository root::
     python docs/make_images.py --only fan_chart.png report.png
 
 Every figure uses a fixed seed and the invented demo series, except calibration_gdp.png
-(US real GDP from statsmodels' macrodata, public domain; needs statsmodels). report.png is
-the top of the example report, screenshot by headless Chromium (Debian's ``chromium``
-package); without Chromium it is skipped with a note. The numbers quoted in the guide pages
-are printed on the way.
+(US real GDP from statsmodels' macrodata, public domain; needs statsmodels). It also rewrites
+docs/example-report.html (make_report.py: the report of the command written there); report.png
+is the top of that page, screenshot by headless Chromium (Debian's ``chromium`` package);
+without Chromium it is skipped with a note. The numbers quoted in the guide pages are printed
+on the way.
 """
 
 from __future__ import annotations
@@ -34,6 +35,7 @@ sys.path.insert(0, str(HERE))  # the per-page scripts beside this one
 import make_calibration_figures  # noqa: E402
 import make_figures  # noqa: E402
 import make_model_figures  # noqa: E402
+import make_report  # noqa: E402
 
 IMAGES = HERE / "images"
 
@@ -42,18 +44,13 @@ REPORT_WINDOW = (1200, 1100)
 
 
 def report_screenshot(images: Path = IMAGES) -> list[str]:
-    """report.png: the top of the demo's HTML report, as headless Chromium shows it."""
-    from bayesgrowth.report import build_report
-
+    """docs/example-report.html (see make_report.py) and report.png, the top of that page."""
+    page = make_report.example_page()
+    make_report.PAGE.write_text(page, encoding="utf-8")
     chrome = shutil.which("chromium") or shutil.which("chromium-browser")
     if chrome is None:
         print("report.png: skipped, no Chromium on this machine (apt-get install chromium)")
-        return []
-    page = build_report(
-        __import__("bayesgrowth").load_demo(), 8, engine="exact", seed=1,
-        target=make_figures.TARGET, unit=make_figures.UNIT, fit_options={"model": "exponential"},
-        command="python docs/make_images.py", timestamp="(example)",
-    )
+        return ["../example-report.html"]
     with tempfile.TemporaryDirectory() as tmp:
         html_path = Path(tmp) / "report.html"
         html_path.write_text(page, encoding="utf-8")
@@ -69,7 +66,7 @@ def report_screenshot(images: Path = IMAGES) -> list[str]:
         if not shot.exists():
             raise RuntimeError("report.png: Chromium wrote no screenshot")
         shutil.copyfile(shot, images / "report.png")
-    return ["report.png"]
+    return ["../example-report.html", "report.png"]
 
 
 def _comparison(images: Path) -> list[str]:
@@ -80,7 +77,8 @@ def _comparison(images: Path) -> list[str]:
 MAKERS: list[tuple[tuple[str, ...], Callable[[Path], list[str]], bool]] = [
     (("fan_chart.png",), make_figures.fan_chart, False),
     (("comparison.png",), _comparison, False),
-    (("report.png",), report_screenshot, False),
+    (("report.png", "example-report.html"), report_screenshot, False),
+    (("scenario.png",), make_figures.scenario_chart, False),
     (("calibration_demo.png", "backtest_fans_demo.png"), make_calibration_figures.demo_figures,
      False),
     (("calibration_gdp.png",), make_calibration_figures.gdp_figure, False),

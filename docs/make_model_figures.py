@@ -88,7 +88,7 @@ def models_figure(images: Path = IMAGES) -> list[str]:
         row = fc.table.iloc[-1]
         print(name, round(row["median"]), round(row["lower_80"]), round(row["upper_80"]))
     print(ma.averaged.table.iloc[-1])
-    ax = plot_model_bands(ma.forecasts, ma.averaged)
+    ax = plot_model_bands(ma.forecasts, ma.averaged, comparison=ma.comparison)
     _save(ax.figure, "models.png", images)
     return ["models.png"]
 

@@ -188,7 +188,7 @@ def _save_fan(fc, path: Path, *, unit: str | None = None, target: float | None =
     if scenario is not None:
         from bayesgrowth.plots.scenario import draw_scenario
 
-        draw_scenario(ax, *scenario)
+        draw_scenario(ax, *scenario, base_fc=fc)
     ax.figure.savefig(path, dpi=110)
     plt.close(ax.figure)
 

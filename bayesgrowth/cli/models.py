@@ -235,6 +235,7 @@ def _save_plot(ma, path, *, level: int, unit: str | None = None) -> None:
 
     from bayesgrowth.plots.models import plot_model_bands
 
-    ax = plot_model_bands(ma.forecasts, ma.averaged, level=level, unit=unit)
+    ax = plot_model_bands(ma.forecasts, ma.averaged, level=level, unit=unit,
+                          comparison=ma.comparison)
     ax.figure.savefig(path, dpi=110)
     plt.close(ax.figure)

@@ -190,7 +190,7 @@ def sensitivity_lines(result) -> list[str]:
         share = (hi - lo) / width if width > 0 else float("inf")
         verdict = ("moves it little: the data decide" if share < LITTLE else
                    f"moves it by {share:.0%} of the band's width: this prior matters")
-        settings = f"{rows['setting'].iloc[0]} to {rows['setting'].iloc[-1]}"
+        settings = f"from {rows['setting'].iloc[0]} to {rows['setting'].iloc[-1]}"
         lines.append(f"  {factor} ({settings}): median {fmt_interval(lo, hi)}; {verdict}")
     if not tab["diagnostics_ok"].all():
         lines.append("warning: sampling diagnostics failed for some settings (column "

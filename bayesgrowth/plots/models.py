@@ -32,7 +32,7 @@ MODEL_DASHES = ("-", (0, (5, 1.5)), (0, (1.5, 1.5)), (0, (6, 1.5, 1.5, 1.5)), (0
 
 def plot_model_bands(forecasts, averaged=None, *, weights=None, level: int = 80,
                      history: int | None = 12, ax=None, title: str | None = None,
-                     unit: str | None = None):
+                     unit: str | None = None, comparison=None):
     """Overlay each model's forecast band and the model-averaged band.
 
     Parameters
@@ -52,6 +52,8 @@ def plot_model_bands(forecasts, averaged=None, *, weights=None, level: int = 80,
     title : str, optional
     unit : str, optional
         Y-axis label (default: the series' value column if known, else "Value").
+    comparison : ModelComparison, optional
+        When given, the legend shows each weight with its 90% bootstrap interval.
 
     Returns
     -------
@@ -93,6 +95,10 @@ def plot_model_bands(forecasts, averaged=None, *, weights=None, level: int = 80,
         dash = MODEL_DASHES[i % len(MODEL_DASHES)]
         tab = fc.table
         share = "" if weights is None else f" (weight {weights.get(name, 0.0):.2f})"
+        if comparison is not None and name in set(comparison.table["model"]):
+            row = comparison.table.set_index("model").loc[name]
+            share = (f" (weight {row['weight']:.2f}, 90% interval "
+                     f"{row['weight_lower_90']:.2f} to {row['weight_upper_90']:.2f})")
         ax.plot(x, joined("median", tab), color=color, lw=1.6, ls=dash, zorder=5,
                 label=f"{name}{share}: median")
         for col in (f"lower_{level}", f"upper_{level}"):
@@ -159,7 +165,7 @@ def plot_prior_predictive(prior, ax=None, *, log_scale: bool = True, title: str 
         ax.set_ylabel(f"{ax.get_ylabel()} (log scale)")
     ax.set_title(title or f"{literal(series.name)}\nWhat the priors imply before fitting\n"
                  f"{prior.spec.label()}", fontsize=11)
-    legend_in_reading_order(ax)
+    legend_in_reading_order(ax, where="below")  # inside, it would hide the wide bands
     return ax
 
 

@@ -15,7 +15,8 @@ __all__ = ["SCENARIO_COLOR", "draw_scenario", "plot_fan_with_scenario"]
 SCENARIO_COLOR = CATEGORICAL[2]
 
 
-def draw_scenario(ax: Axes, scenario_fc, description: str, *, level: int | None = None) -> Axes:
+def draw_scenario(ax: Axes, scenario_fc, description: str, *, level: int | None = None,
+                  base_fc=None) -> Axes:
     """Draw a scenario's median and one band over a fan chart of its base case.
 
     Parameters
@@ -29,6 +30,9 @@ def draw_scenario(ax: Axes, scenario_fc, description: str, *, level: int | None 
         The scenario in words, shown in the legend.
     level : int, optional
         The band drawn (default 80 when among the levels, else the widest).
+    base_fc : Forecast, optional
+        The base case: when given, the scenario is drawn from the last period it
+        leaves unchanged, so it does not hide the base case before it departs.
 
     Returns
     -------
@@ -40,9 +44,17 @@ def draw_scenario(ax: Axes, scenario_fc, description: str, *, level: int | None 
     series = scenario_fc.fit.series
     table = scenario_fc.table
     x = np.concatenate([[series.t[-1]], scenario_fc.t])
+    start = 0
+    if base_fc is not None:
+        same = np.isclose(table["median"].to_numpy(dtype=float),
+                          base_fc.table["median"].to_numpy(dtype=float), rtol=1e-12)
+        start = int(np.argmin(same)) if not same.all() else len(same)
 
     def joined(col):
-        return np.concatenate([[series.values[-1]], table[col].to_numpy(dtype=float)])
+        full = np.concatenate([[series.values[-1]], table[col].to_numpy(dtype=float)])
+        return full[start:]
+
+    x = x[start:]
 
     lo, hi = joined(f"lower_{level}"), joined(f"upper_{level}")
     ax.fill_between(x, lo, hi, facecolor="none", edgecolor=SCENARIO_COLOR, hatch="////",
@@ -83,4 +95,4 @@ def plot_fan_with_scenario(base_fc, scenario_fc, description: str, **fan_options
     from bayesgrowth.plots.fan import plot_fan
 
     ax = plot_fan(base_fc, **fan_options)
-    return draw_scenario(ax, scenario_fc, description)
+    return draw_scenario(ax, scenario_fc, description, base_fc=base_fc)

@@ -165,7 +165,8 @@ def _add_average(parts: ReportParts, average, unit: str | None) -> None:
     from bayesgrowth.report.averaging import models_note, models_table
 
     level = 80 if 80 in average.averaged.levels else max(average.averaged.levels)
-    ax = plot_model_bands(average.forecasts, average.averaged, level=level, unit=unit)
+    ax = plot_model_bands(average.forecasts, average.averaged, level=level, unit=unit,
+                          comparison=average.comparison)
     parts.models = models_table(average.comparison)
     parts.models_note = models_note(average)
     parts.models_chart = figure_data_uri(ax.figure)

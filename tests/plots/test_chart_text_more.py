@@ -70,3 +70,23 @@ def test_sensitivity_chart_text(demo):
     suptitle = axes[0].figure.get_suptitle()
     assert demo.name in suptitle and result.model in suptitle
     assert _legend_texts(axes[0])[-2:] == ["base setting", "other settings"]
+
+
+def test_models_chart_legend_gives_each_weight_with_its_interval(demo):
+    from bayesgrowth.inference import fit_series
+    from bayesgrowth.plots.models import plot_model_bands
+    from bayesgrowth.priors import InitialValuePrior, Priors
+    from bayesgrowth.select import model_average
+
+    fits = {"default": fit_series(demo, engine="exact", seed=2),
+            "fixed start": fit_series(demo, engine="exact", seed=2,
+                                      priors=Priors(initial=InitialValuePrior(0)))}
+    ma = model_average(fits, 4, seed=2)
+    ax = plot_model_bands(ma.forecasts, ma.averaged, comparison=ma.comparison, unit="Revenue")
+    texts = _legend_texts(ax)
+    for row in ma.comparison.table.itertuples():
+        assert (f"{row.model} (weight {row.weight:.2f}, 90% interval {row.weight_lower_90:.2f} "
+                f"to {row.weight_upper_90:.2f}): median") in texts
+    assert texts[0] == "Observed history" and "Model average: 80% band" in texts
+    assert ax.get_ylabel() == "Revenue" and ax.get_xlabel() == "Period"
+    assert "stacking average" in ax.get_title()
