@@ -23,8 +23,12 @@ COMMAND = ("bayesgrowth report bayesgrowth/data/demo_revenue.csv --horizon 8 --t
            "--unit 'Revenue (EUR thousand)' --models exponential,local-trend --out report/")
 
 
-def example_page() -> str:
-    """The HTML page :data:`COMMAND` writes, time stamp "(example)"."""
+def example_page(*, with_backtest: bool = True, with_models: bool = True) -> str:
+    """The HTML page :data:`COMMAND` writes, time stamp "(example)".
+
+    ``with_backtest=False`` and ``with_models=False`` leave those sections' work out (for a
+    quick check of the rest against the shipped page).
+    """
     from bayesgrowth.cli.common import checked_model_options, priors_from_args
     from bayesgrowth.cli.main import build_parser
     from bayesgrowth.cli.report_models import average_from_args
@@ -43,7 +47,8 @@ def example_page() -> str:
         levels=args.levels, target=args.target, target_probability=args.target_probability,
         command=COMMAND, unit=unit_from_args(args), timestamp="(example)",
         fit_options={"draws": args.draws, "chains": args.chains, **spec_options},
-        average=average_from_args(args, series, priors),
+        average=average_from_args(args, series, priors) if with_models else None,
+        with_backtest=with_backtest,
     )
 
 
