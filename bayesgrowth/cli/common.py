@@ -9,6 +9,7 @@ import warnings
 from pathlib import Path
 
 from bayesgrowth.cli.acceptance import add_accept_option
+from bayesgrowth.cli.prior_options import add_common_priors, add_curve_priors
 from bayesgrowth.config import DEFAULT_ENGINE, DEFAULT_LEVELS, DEFAULT_MODEL, check_levels
 from bayesgrowth.data.series import GrowthSeries, read_series
 
@@ -90,8 +91,8 @@ def add_model_options(p: argparse.ArgumentParser, *, horizon_required: bool = Tr
     _add_run_options(p, horizon_required)
     _add_model_choice(p)
     g = p.add_argument_group("priors (see docs/user-guide.md)")
-    _add_common_priors(g)
-    _add_curve_priors(g)
+    add_common_priors(g)
+    add_curve_priors(g)
     p.add_argument("--quiet", action="store_true", help="no progress output")
     add_accept_option(p)
 
@@ -183,91 +184,6 @@ def _add_model_choice(p: argparse.ArgumentParser) -> None:
         "towards the long-run rate with an uncertain half-life (a damped trend); random-walk: "
         "it drifts without fading; adaptive: either, weighted by the evidence (exact engine) "
         f"[{DEFAULT_MODEL['drift']}]",
-    )
-
-
-def _add_common_priors(g) -> None:
-    """Priors every model has: initial value, growth, noise."""
-    g.add_argument(
-        "--initial-give-or-take",
-        type=float,
-        default=50.0,
-        metavar="PCT",
-        help="initial value: the observed value give or take PCT%%; 0 fixes it [50]",
-    )
-    g.add_argument(
-        "--initial-value",
-        type=float,
-        default=None,
-        metavar="V",
-        help="centre of the initial-value prior [observed value]",
-    )
-    g.add_argument(
-        "--reference-period",
-        default=None,
-        metavar="LABEL",
-        help="period the initial value refers to [first observation]",
-    )
-    g.add_argument(
-        "--growth",
-        type=float,
-        default=0.0,
-        metavar="PCT",
-        help="central growth per period in percent [0]",
-    )
-    g.add_argument(
-        "--growth-give-or-take",
-        type=float,
-        default=30.0,
-        metavar="PTS",
-        help="spread of the growth prior in percentage points [30]",
-    )
-    g.add_argument(
-        "--noise",
-        type=float,
-        default=30.0,
-        metavar="PCT",
-        help="typical deviation from trend in percent (half-normal scale) [30]",
-    )
-
-
-def _add_curve_priors(g) -> None:
-    """Priors of the bending curves: ceiling and half-life of growth."""
-    g.add_argument(
-        "--ceiling",
-        type=float,
-        default=None,
-        metavar="V",
-        help="logistic/gompertz: central ceiling (market size) on the data's scale",
-    )
-    g.add_argument(
-        "--ceiling-multiple",
-        type=float,
-        default=3.0,
-        metavar="M",
-        help="logistic/gompertz: ceiling about M times the latest value, if --ceiling unset [3]",
-    )
-    g.add_argument(
-        "--ceiling-give-or-take",
-        type=float,
-        default=100.0,
-        metavar="PCT",
-        help="spread of the ceiling prior in percent [100]",
-    )
-    g.add_argument(
-        "--half-life",
-        type=float,
-        default=None,
-        metavar="PERIODS",
-        help="damped/logistic/gompertz, and the local trend when growth fades: periods over "
-        "which growth halves [two years]",
-    )
-    g.add_argument(
-        "--half-life-factor",
-        type=float,
-        default=3.0,
-        metavar="F",
-        help="spread of the half-life prior: within a factor of F [3]",
     )
 
 

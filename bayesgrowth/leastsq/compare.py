@@ -168,22 +168,27 @@ def fit_table(
         }
     )
     if predictive_draws is not None:
-        draws = np.asarray(predictive_draws, dtype=float)
-        if draws.ndim != 1 or draws.size == 0 or not np.all(np.isfinite(draws)):
-            raise ValueError("predictive_draws must be a non-empty 1-D array of finite numbers")
-        lv = check_levels(levels)
-        table["bayes_median"] = float(np.median(draws))
-        for level in lv:
-            lo, hi = np.quantile(draws, [(100.0 - level) / 200.0, (100.0 + level) / 200.0])
-            table[f"bayes_lower_{level_name(level)}"] = float(lo)
-            table[f"bayes_upper_{level_name(level)}"] = float(hi)
-        sorted_draws = np.sort(draws)
-        below = np.searchsorted(sorted_draws, table["value_at_horizon"].to_numpy(), side="left")
-        table["prob_at_least"] = (draws.size - below) / draws.size
+        _add_bayes_columns(table, predictive_draws, levels)
     table.attrs["horizon"] = horizon
     table.attrs["t_target"] = t_target
     table.attrs["spread"] = forecast_spread(table)
     return table
+
+
+def _add_bayes_columns(table: pd.DataFrame, predictive_draws, levels) -> None:
+    """The Bayesian median and bands (same on every row) and each row's ``prob_at_least``."""
+    draws = np.asarray(predictive_draws, dtype=float)
+    if draws.ndim != 1 or draws.size == 0 or not np.all(np.isfinite(draws)):
+        raise ValueError("predictive_draws must be a non-empty 1-D array of finite numbers")
+    lv = check_levels(levels)
+    table["bayes_median"] = float(np.median(draws))
+    for level in lv:
+        lo, hi = np.quantile(draws, [(100.0 - level) / 200.0, (100.0 + level) / 200.0])
+        table[f"bayes_lower_{level_name(level)}"] = float(lo)
+        table[f"bayes_upper_{level_name(level)}"] = float(hi)
+    sorted_draws = np.sort(draws)
+    below = np.searchsorted(sorted_draws, table["value_at_horizon"].to_numpy(), side="left")
+    table["prob_at_least"] = (draws.size - below) / draws.size
 
 
 def compare_fits(

@@ -240,21 +240,8 @@ def fit_log_linear(
         residual_sd=line.residual_sd,
         dof=line.dof,
     )
-    a = float(np.exp(line.intercept))
-    g = float(np.expm1(line.slope))
-    fitted = a * np.exp(line.slope * (t - t_ref))
-    return GrowthFit(
-        variant=variant,
-        n_points=int(t.size),
-        initial_value=a,
-        growth_per_period=g,
-        t_ref=t_ref,
-        t_last=_resolve_t_last(t, t_last),
-        r_squared=line.r_squared,
-        rmse=_rmse(y, fitted),
-        t_used=tuple(float(v) for v in t),
-        log_scale=stats,
-    )
+    return _log_scale_fit(variant, t, y, t_ref, t_last, float(np.exp(line.intercept)), stats,
+                          line.r_squared)
 
 
 def fit_log_linear_anchored(
@@ -308,15 +295,25 @@ def fit_log_linear_anchored(
         residual_sd=float(np.sqrt(s2)),
         dof=dof,
     )
-    fitted = y_ref * np.exp(slope * s)
+    return _log_scale_fit(variant, t, y, t_ref, t_last, y_ref, stats)
+
+
+def _log_scale_fit(variant: str, t, y, t_ref: float, t_last, a: float, stats: LogScaleStats,
+                   r_squared: float | None = None) -> GrowthFit:
+    """The fit of a log-scale line with initial value ``a`` and the slope in ``stats``.
+
+    ``r_squared`` defaults to that of the log values.
+    """
+    fitted = a * np.exp(stats.slope * (t - t_ref))
     return GrowthFit(
         variant=variant,
         n_points=int(t.size),
-        initial_value=y_ref,
-        growth_per_period=float(np.expm1(slope)),
+        initial_value=a,
+        growth_per_period=float(np.expm1(stats.slope)),
         t_ref=t_ref,
         t_last=_resolve_t_last(t, t_last),
-        r_squared=_r_squared(np.log(y), np.log(fitted)),
+        r_squared=(_r_squared(np.log(y), np.log(fitted)) if r_squared is None
+                   else r_squared),
         rmse=_rmse(y, fitted),
         t_used=tuple(float(v) for v in t),
         log_scale=stats,

@@ -129,24 +129,24 @@ def fit_nonlinear(
     def residuals(params: np.ndarray) -> np.ndarray:
         return model(x, params) - y
 
-    solver_jac: str | Callable[[np.ndarray], np.ndarray] = "2-point"
-    if jac is not None:
-
-        def solver_jac(params: np.ndarray) -> np.ndarray:
-            return jac(x, params)
-
     with np.errstate(over="ignore", invalid="ignore"):
         start = residuals(p0)
     if start.shape != y.shape or not np.all(np.isfinite(start)):
         raise LeastSquaresError("the model does not give finite values at the starting point")
+    solver_jac: str | Callable[[np.ndarray], np.ndarray] = (
+        "2-point" if jac is None else (lambda params: jac(x, params)))
+    result = _solve(residuals, p0, solver_jac, xtol=xtol, ftol=ftol, gtol=gtol,
+                    max_nfev=max_nfev)
+    return _finish(result, residuals, model, jac, x, y.size)
 
+
+def _solve(residuals, p0: np.ndarray, jac, **options):
+    """Levenberg-Marquardt from ``p0``; solver failures become :class:`LeastSquaresError`."""
     try:
         with np.errstate(over="ignore", invalid="ignore"):
-            result = least_squares(residuals, p0, jac=solver_jac, method="lm", xtol=xtol,
-                                   ftol=ftol, gtol=gtol, max_nfev=max_nfev)
+            return least_squares(residuals, p0, jac=jac, method="lm", **options)
     except ValueError as exc:  # scipy reports bad input and non-finite steps this way
         raise LeastSquaresError(f"the least-squares solver failed: {exc}") from exc
-    return _finish(result, residuals, model, jac, x, y.size)
 
 
 def _checked_inputs(x, y, p0) -> tuple[np.ndarray, np.ndarray, np.ndarray]:

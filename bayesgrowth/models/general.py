@@ -226,11 +226,16 @@ def simulate_log(
     eps = _noise_draws(spec, draws, shape, rng)
     if spec.errors == "independent":
         return curve + eps, curve
-    phi = np.asarray(draws["phi"], dtype=float)
-    e = np.asarray(log_obs, dtype=float)[-1] - log_trend(
+    last = np.asarray(log_obs, dtype=float)[-1] - log_trend(
         spec, draws, np.array([t_last]), t_ref, axis
     )[:, 0]
-    errors = np.empty(shape)
+    return curve + _ar1_errors(draws["phi"], last, t_last, t_future, eps), curve
+
+
+def _ar1_errors(phi, e, t_last: int, t_future: np.ndarray, eps: np.ndarray) -> np.ndarray:
+    """AR(1) errors at ``t_future`` from the last observed error ``e`` and innovations ``eps``."""
+    phi = np.asarray(phi, dtype=float)
+    errors = np.empty(eps.shape)
     prev_t = t_last
     for h, tf in enumerate(t_future):
         k = int(tf - prev_t)
@@ -238,7 +243,7 @@ def simulate_log(
         e = phi**k * e + ratio * eps[:, h]
         errors[:, h] = e
         prev_t = tf
-    return curve + errors, curve
+    return errors
 
 
 def complete_draws(spec: ModelSpec, priors, draws: dict, t, log_y, axis,

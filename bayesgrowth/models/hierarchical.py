@@ -235,18 +235,7 @@ def build_pymc_model(
         y = pm.Data("log_y", data.log_y)
         anchor = pm.Data("anchor", data.anchor)
         centre = pm.Data("centre", data.centre)
-        mu_g = pm.Normal("mu_growth", mu=priors.log1p_g_mu, sigma=priors.log1p_g_sd)
-        tau_g = pm.HalfNormal("tau_growth", sigma=group.tau_scale)
-        b = pt.zeros(n)
-        c_idx = np.flatnonzero(data.centred)
-        n_idx = np.flatnonzero(~data.centred)
-        if n_idx.size:
-            z_g = pm.Normal("z_growth", 0.0, 1.0, shape=n_idx.size)
-            b = pt.set_subtensor(b[n_idx], mu_g + tau_g * z_g)
-        if c_idx.size:
-            b_c = pm.Normal("growth_centred", mu=mu_g, sigma=tau_g, shape=c_idx.size)
-            b = pt.set_subtensor(b[c_idx], b_c)
-        b = pm.Deterministic("log1p_g", b, dims="series")
+        b = _pooled_growth(data, priors, group)
         level = pm.Normal("level", mu=anchor + b * centre, sigma=priors.log_a_sd, dims="series")
         log_a = pm.Deterministic("log_a", level - b * centre, dims="series")
         if group.pool_noise:
@@ -258,16 +247,43 @@ def build_pymc_model(
             sigma = pm.HalfNormal("sigma", sigma=priors.sigma_scale, dims="series")
         resid = y - (log_a[idx] + b[idx] * dt)
         if errors == "ar1":
-            phi = pm.Beta("phi", alpha=priors.phi_alpha, beta=priors.phi_beta, dims="series")
-            lag = pm.Data("lag", data.lag)
-            first = pm.Data("first", data.first.astype(float))
-            prev = pt.concatenate([resid[:1], resid[:-1]])  # previous obs; unused for firsts
-            phik = phi[idx] ** lag
-            innov = resid - (1.0 - first) * phik * prev
-            one_minus = 1.0 - phi[idx] ** 2
-            ratio = first / one_minus + (1.0 - first) * (1.0 - phik**2) / one_minus
-            scale = sigma[idx] * pt.sqrt(ratio)
+            innov, scale = _ar1_innovations(data, priors, resid, sigma, idx)
         else:
             innov, scale = resid, sigma[idx]
         pm.Potential("loglik", pm.logp(pm.Normal.dist(mu=0.0, sigma=scale), innov).sum())
     return model
+
+
+def _pooled_growth(data: PanelData, priors: ResolvedPriors, group: GroupPrior):
+    """Each series' log growth around the group centre, centred or not per series."""
+    import pymc as pm
+    import pytensor.tensor as pt
+
+    mu_g = pm.Normal("mu_growth", mu=priors.log1p_g_mu, sigma=priors.log1p_g_sd)
+    tau_g = pm.HalfNormal("tau_growth", sigma=group.tau_scale)
+    b = pt.zeros(data.n_series)
+    c_idx = np.flatnonzero(data.centred)
+    n_idx = np.flatnonzero(~data.centred)
+    if n_idx.size:
+        z_g = pm.Normal("z_growth", 0.0, 1.0, shape=n_idx.size)
+        b = pt.set_subtensor(b[n_idx], mu_g + tau_g * z_g)
+    if c_idx.size:
+        b_c = pm.Normal("growth_centred", mu=mu_g, sigma=tau_g, shape=c_idx.size)
+        b = pt.set_subtensor(b[c_idx], b_c)
+    return pm.Deterministic("log1p_g", b, dims="series")
+
+
+def _ar1_innovations(data: PanelData, priors: ResolvedPriors, resid, sigma, idx):
+    """AR(1) innovations of the stacked residuals and their scales (``phi`` per series)."""
+    import pymc as pm
+    import pytensor.tensor as pt
+
+    phi = pm.Beta("phi", alpha=priors.phi_alpha, beta=priors.phi_beta, dims="series")
+    lag = pm.Data("lag", data.lag)
+    first = pm.Data("first", data.first.astype(float))
+    prev = pt.concatenate([resid[:1], resid[:-1]])  # previous obs; unused for firsts
+    phik = phi[idx] ** lag
+    innov = resid - (1.0 - first) * phik * prev
+    one_minus = 1.0 - phi[idx] ** 2
+    ratio = first / one_minus + (1.0 - first) * (1.0 - phik**2) / one_minus
+    return innov, sigma[idx] * pt.sqrt(ratio)

@@ -187,63 +187,72 @@ def conditional_draws(
     t_future = np.asarray(t_future, dtype=int)
     idx = t_obs - int(t_ref)
     fidx = t_future - int(t_ref)
-    j_last = int(idx[-1])
     n_grid = int(max(idx.max(), fidx.max() if fidx.size else 0)) + 1
     n, h = idx.size, fidx.size
     levels, values, growths = [], [], []
     draws = {**draws, "_y": resid_mean}
     for d in _chunks(draws, resid_mean.shape[0]):
-        s = d["_y"].shape[0]
-        rho = np.asarray(d["rho"]) if spec.mean_reverting else None
-        a, c, b = coefficients(rho, n_grid)
-        if rho is None:
-            a, c = np.broadcast_to(a, (s, *a.shape)), np.broadcast_to(c, (s, *c.shape))
-        sg = np.asarray(d["sigma_growth"], dtype=float)[:, None, None]
-        sl = np.asarray(d["sigma_level"], dtype=float)[:, None, None]
-        rows = np.concatenate([idx, fidx])
-        # loadings of [level at obs and future; growth at the last observation] on (u, z)
-        load_u = np.concatenate([a[:, rows, :], c[:, [j_last], :]], axis=1) * sg
-        load_z = np.concatenate(
-            [np.broadcast_to(b[rows], (s, rows.size, n_grid - 1)),
-             np.zeros((s, 1, n_grid - 1))], axis=1) * sl
-        lat = load_u @ np.swapaxes(load_u, -1, -2) + load_z @ np.swapaxes(load_z, -1, -2)
-        # add the errors: observations and future values get them, levels do not
-        m = n + h
-        k = n + 2 * h + 1
-        sel = np.zeros((k, m + 1))  # map [obs levels, future levels, growth] -> outputs
-        sel[:n, :n] = np.eye(n)
-        sel[n:n + h, n:n + h] = np.eye(h)  # future levels
-        sel[n + h:n + 2 * h, n:n + h] = np.eye(h)  # future values share the level
-        sel[-1, -1] = 1.0
-        cov = sel @ lat @ sel.T
-        err = error_covariance(
-            d["sigma"], d.get("phi") if spec.errors == "ar1" else None,
-            np.concatenate([t_obs, t_future]),
-        )
-        pos = np.concatenate([np.arange(n), np.arange(n + h, n + 2 * h)])
-        cov[:, pos[:, None], pos[None, :]] += err
-        level_mean, growth_mean = mean_paths(d, n_grid, spec.mean_reverting)
-        mean = np.concatenate(
-            [level_mean[:, idx], level_mean[:, fidx], level_mean[:, fidx],
-             growth_mean[:, [j_last]]], axis=1,
-        )
-        s_oo = cov[:, :n, :n] + _JITTER * np.eye(n)
-        s_fo = cov[:, n:, :n]
-        s_ff = cov[:, n:, n:]
-        chol = np.linalg.cholesky(s_oo)
-        gain = np.swapaxes(
-            np.linalg.solve(np.swapaxes(chol, -1, -2), np.linalg.solve(chol, np.swapaxes(
-                s_fo, -1, -2))), -1, -2)
-        cmean = mean[:, n:] + (gain @ (d["_y"] - mean[:, :n])[..., None])[..., 0]
-        ccov = s_ff - gain @ np.swapaxes(s_fo, -1, -2)
-        ccov = 0.5 * (ccov + np.swapaxes(ccov, -1, -2))
-        evals, evecs = np.linalg.eigh(ccov)
-        root = evecs * np.sqrt(np.clip(evals, 0, None))[:, None, :]
-        x = cmean + (root @ rng.standard_normal((s, k - n, 1)))[..., 0]
+        cov, mean = _joint(spec, d, idx, fidx, np.concatenate([t_obs, t_future]), n_grid)
+        x = _condition(cov, mean, d["_y"], n, rng)
         levels.append(x[:, :h])
         values.append(x[:, h:2 * h])
         growths.append(x[:, -1])
     return (np.concatenate(levels), np.concatenate(values), np.concatenate(growths))
+
+
+def _joint(spec, d: dict, idx, fidx, t_all, n_grid: int):
+    """Covariance and mean of (observations, future levels, future values, last growth)."""
+    s = d["_y"].shape[0]
+    n, h, j_last = idx.size, fidx.size, int(idx[-1])
+    rho = np.asarray(d["rho"]) if spec.mean_reverting else None
+    a, c, b = coefficients(rho, n_grid)
+    if rho is None:
+        a, c = np.broadcast_to(a, (s, *a.shape)), np.broadcast_to(c, (s, *c.shape))
+    sg = np.asarray(d["sigma_growth"], dtype=float)[:, None, None]
+    sl = np.asarray(d["sigma_level"], dtype=float)[:, None, None]
+    rows = np.concatenate([idx, fidx])
+    # loadings of [level at obs and future; growth at the last observation] on (u, z)
+    load_u = np.concatenate([a[:, rows, :], c[:, [j_last], :]], axis=1) * sg
+    load_z = np.concatenate(
+        [np.broadcast_to(b[rows], (s, rows.size, n_grid - 1)),
+         np.zeros((s, 1, n_grid - 1))], axis=1) * sl
+    lat = load_u @ np.swapaxes(load_u, -1, -2) + load_z @ np.swapaxes(load_z, -1, -2)
+    # add the errors: observations and future values get them, levels do not
+    m = n + h
+    k = n + 2 * h + 1
+    sel = np.zeros((k, m + 1))  # map [obs levels, future levels, growth] -> outputs
+    sel[:n, :n] = np.eye(n)
+    sel[n:n + h, n:n + h] = np.eye(h)  # future levels
+    sel[n + h:n + 2 * h, n:n + h] = np.eye(h)  # future values share the level
+    sel[-1, -1] = 1.0
+    cov = sel @ lat @ sel.T
+    err = error_covariance(d["sigma"], d.get("phi") if spec.errors == "ar1" else None, t_all)
+    pos = np.concatenate([np.arange(n), np.arange(n + h, n + 2 * h)])
+    cov[:, pos[:, None], pos[None, :]] += err
+    level_mean, growth_mean = mean_paths(d, n_grid, spec.mean_reverting)
+    mean = np.concatenate(
+        [level_mean[:, idx], level_mean[:, fidx], level_mean[:, fidx],
+         growth_mean[:, [j_last]]], axis=1,
+    )
+    return cov, mean
+
+
+def _condition(cov, mean, y, n: int, rng: np.random.Generator) -> np.ndarray:
+    """One draw of the last rows of a joint normal given its first ``n`` rows equal ``y``."""
+    s, k = mean.shape
+    s_oo = cov[:, :n, :n] + _JITTER * np.eye(n)
+    s_fo = cov[:, n:, :n]
+    s_ff = cov[:, n:, n:]
+    chol = np.linalg.cholesky(s_oo)
+    gain = np.swapaxes(
+        np.linalg.solve(np.swapaxes(chol, -1, -2), np.linalg.solve(chol, np.swapaxes(
+            s_fo, -1, -2))), -1, -2)
+    cmean = mean[:, n:] + (gain @ (y - mean[:, :n])[..., None])[..., 0]
+    ccov = s_ff - gain @ np.swapaxes(s_fo, -1, -2)
+    ccov = 0.5 * (ccov + np.swapaxes(ccov, -1, -2))
+    evals, evecs = np.linalg.eigh(ccov)
+    root = evecs * np.sqrt(np.clip(evals, 0, None))[:, None, :]
+    return cmean + (root @ rng.standard_normal((s, k - n, 1)))[..., 0]
 
 
 def design(spec, idx: np.ndarray, rho=None, season_rows=None, xp=np):

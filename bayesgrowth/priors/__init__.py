@@ -75,7 +75,7 @@ Student-t noise
 from __future__ import annotations
 
 import math
-from dataclasses import asdict, dataclass, field
+from dataclasses import asdict, dataclass, field, fields
 
 from bayesgrowth.priors.resolved import NU_ALPHA, NU_BETA, ResolvedPriors
 from bayesgrowth.priors.stated import (
@@ -148,6 +148,18 @@ class Priors:
     local_trend: LocalTrendPrior = field(default_factory=LocalTrendPrior)
     seasonal: SeasonalPrior = field(default_factory=SeasonalPrior)
 
+    def _ceiling_centre(self, series) -> float:
+        """The ceiling prior's centre: the stated market size, or a multiple of the latest value."""
+        if self.ceiling.value is None:
+            return self.ceiling.multiple * float(series.values[-1])
+        top = float(max(series.values))
+        _check(
+            self.ceiling.value > top,
+            f"ceiling {self.ceiling.value:,.6g} is not above the largest observed value "
+            f"{top:,.6g}; state a ceiling above the data (or a multiple of the latest value)",
+        )
+        return self.ceiling.value
+
     def resolve(self, series) -> ResolvedPriors:
         """Translate to the log scale for ``series`` (a :class:`GrowthSeries`).
 
@@ -161,16 +173,7 @@ class Priors:
         i_ref = 0 if self.reference_period is None else series.index_of(self.reference_period)
         anchor = self.initial.value if self.initial.value is not None else series.values[i_ref]
         g0 = self.growth.center_pct / 100
-        top = float(max(series.values))
-        if self.ceiling.value is not None:
-            _check(
-                self.ceiling.value > top,
-                f"ceiling {self.ceiling.value:,.6g} is not above the largest observed value "
-                f"{top:,.6g}; state a ceiling above the data (or a multiple of the latest value)",
-            )
-            k_centre = self.ceiling.value
-        else:
-            k_centre = self.ceiling.multiple * float(series.values[-1])
+        k_centre = self._ceiling_centre(series)
         ppy = series.axis.periods_per_year
         half_life = self.half_life.periods
         if half_life is None:
@@ -186,17 +189,8 @@ class Priors:
             sigma_scale=float(math.log1p(self.noise.typical_pct / 100)),
             t_ref=int(series.t[i_ref]),
             reference_period=series.labels[i_ref],
-            stated={
-                "initial": asdict(self.initial),
-                "growth": asdict(self.growth),
-                "noise": asdict(self.noise),
-                "ceiling": asdict(self.ceiling),
-                "half_life": asdict(self.half_life),
-                "long_run": asdict(self.long_run),
-                "persistence": asdict(self.persistence),
-                "local_trend": asdict(self.local_trend),
-                "seasonal": asdict(self.seasonal),
-            },
+            stated={f.name: asdict(getattr(self, f.name)) for f in fields(self)
+                    if f.name != "reference_period"},
             log_k_mu=float(math.log(k_centre)),
             log_k_sd=float(math.log1p(self.ceiling.give_or_take_pct / 100)),
             log_h_mu=float(math.log(half_life)),

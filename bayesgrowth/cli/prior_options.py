@@ -1,0 +1,94 @@
+"""The prior options of the commands that fit: stated the way a practitioner thinks.
+
+Each option maps to a field of :class:`bayesgrowth.priors.Priors`
+(:func:`bayesgrowth.cli.common.priors_from_args` builds it).
+"""
+
+from __future__ import annotations
+
+__all__ = ["add_common_priors", "add_curve_priors"]
+
+
+def add_common_priors(g) -> None:
+    """Priors every model has: initial value, growth, noise."""
+    g.add_argument(
+        "--initial-give-or-take",
+        type=float,
+        default=50.0,
+        metavar="PCT",
+        help="initial value: the observed value give or take PCT%%; 0 fixes it [50]",
+    )
+    g.add_argument(
+        "--initial-value",
+        type=float,
+        default=None,
+        metavar="V",
+        help="centre of the initial-value prior [observed value]",
+    )
+    g.add_argument(
+        "--reference-period",
+        default=None,
+        metavar="LABEL",
+        help="period the initial value refers to [first observation]",
+    )
+    g.add_argument(
+        "--growth",
+        type=float,
+        default=0.0,
+        metavar="PCT",
+        help="central growth per period in percent [0]",
+    )
+    g.add_argument(
+        "--growth-give-or-take",
+        type=float,
+        default=30.0,
+        metavar="PTS",
+        help="spread of the growth prior in percentage points [30]",
+    )
+    g.add_argument(
+        "--noise",
+        type=float,
+        default=30.0,
+        metavar="PCT",
+        help="typical deviation from trend in percent (half-normal scale) [30]",
+    )
+
+
+def add_curve_priors(g) -> None:
+    """Priors of the bending curves: ceiling and half-life of growth."""
+    g.add_argument(
+        "--ceiling",
+        type=float,
+        default=None,
+        metavar="V",
+        help="logistic/gompertz: central ceiling (market size) on the data's scale",
+    )
+    g.add_argument(
+        "--ceiling-multiple",
+        type=float,
+        default=3.0,
+        metavar="M",
+        help="logistic/gompertz: ceiling about M times the latest value, if --ceiling unset [3]",
+    )
+    g.add_argument(
+        "--ceiling-give-or-take",
+        type=float,
+        default=100.0,
+        metavar="PCT",
+        help="spread of the ceiling prior in percent [100]",
+    )
+    g.add_argument(
+        "--half-life",
+        type=float,
+        default=None,
+        metavar="PERIODS",
+        help="damped/logistic/gompertz, and the local trend when growth fades: periods over "
+        "which growth halves [two years]",
+    )
+    g.add_argument(
+        "--half-life-factor",
+        type=float,
+        default=3.0,
+        metavar="F",
+        help="spread of the half-life prior: within a factor of F [3]",
+    )
