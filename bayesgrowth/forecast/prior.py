@@ -317,11 +317,7 @@ def prior_predictive(
     >>> prior.draws.shape[0], prior.levels
     (4000, (50, 80, 95))
     """
-    if int(horizon) != horizon or horizon < 0:
-        raise ValueError(f"horizon must be a whole number of periods >= 0, got {horizon}")
-    if int(draws) != draws or draws < 1:
-        raise ValueError(f"draws must be a whole number >= 1, got {draws}")
-    horizon, draws = int(horizon), int(draws)
+    horizon, draws = _check_sizes(horizon, draws)
     levels = check_levels(levels)
     spec = ModelSpec(model=model, errors=errors, noise=noise, seasonal=seasonal, drift=drift)
     if spec.seasonal:
@@ -336,17 +332,9 @@ def prior_predictive(
             "leave the reference period unset"
         )
     params, used = sample_prior(spec, resolved, series, draws=draws, seed=seed, sampler=sampler)
-    rng = stream(seed, "prior_paths")
     t = np.arange(int(series.t[0]), series.t_last + horizon + 1)
-    t_ref = resolved.t_ref
-    if spec.is_plain_exponential:
-        log_values = exponential.simulate_log(params, t, t_ref, rng)
-        curve = exponential.log_mean(params, t, t_ref)
-    else:
-        curve = general.log_trend(spec, params, t, t_ref, series.axis)
-        if spec.family.states:
-            curve = curve + _local_trend_shocks(spec, params, t.size, rng)
-        log_values = curve + _prior_errors(spec, params, curve.shape, rng)
+    log_values, curve = _prior_paths(spec, params, t, resolved.t_ref, series.axis,
+                                     stream(seed, "prior_paths"))
     with np.errstate(over="ignore"):
         values, curve_values = np.exp(log_values), np.exp(curve)
     return PriorPredictive(
@@ -363,3 +351,23 @@ def prior_predictive(
         seed=seed,
         sampler=used,
     )
+
+
+def _check_sizes(horizon, draws) -> tuple[int, int]:
+    if int(horizon) != horizon or horizon < 0:
+        raise ValueError(f"horizon must be a whole number of periods >= 0, got {horizon}")
+    if int(draws) != draws or draws < 1:
+        raise ValueError(f"draws must be a whole number >= 1, got {draws}")
+    return int(horizon), int(draws)
+
+
+def _prior_paths(spec: ModelSpec, params: dict, t: np.ndarray, t_ref: int, axis,
+                 rng: np.random.Generator) -> tuple[np.ndarray, np.ndarray]:
+    """Log value paths and log curves over ``t`` of the parameter draws ``params``."""
+    if spec.is_plain_exponential:
+        return exponential.simulate_log(params, t, t_ref, rng), exponential.log_mean(
+            params, t, t_ref)
+    curve = general.log_trend(spec, params, t, t_ref, axis)
+    if spec.family.states:
+        curve = curve + _local_trend_shocks(spec, params, t.size, rng)
+    return curve + _prior_errors(spec, params, curve.shape, rng), curve

@@ -22,7 +22,7 @@ import numpy as np
 import pandas as pd
 
 from bayesgrowth.data.series import GrowthSeries
-from bayesgrowth.forecast.bands import band_probabilities
+from bayesgrowth.forecast.bands import band_probabilities, check_horizon
 from bayesgrowth.models.spec import ModelSpec
 from bayesgrowth.priors import CeilingPrior, Priors
 
@@ -180,16 +180,9 @@ def prior_sensitivity(
     >>> result.period
     '2026Q4'
     """
-    from bayesgrowth.forecast.forecast import forecast
-    from bayesgrowth.inference.run import fit_series
-
     spec = ModelSpec(model=model, errors=errors, noise=noise, seasonal=seasonal, drift=drift)
-    if engine not in ("auto", "exact", "nuts"):
-        raise ValueError(f"engine must be auto, exact or nuts, got {engine!r}")
-    if engine == "auto":
-        engine = "exact" if spec.is_plain_exponential else "nuts"
-    if int(horizon) != horizon or horizon < 1:
-        raise ValueError(f"horizon must be a whole number of periods >= 1, got {horizon}")
+    engine = _engine(spec, engine)
+    horizon = check_horizon(horizon)
     if not 0 < level < 100 or int(level) != level:
         raise ValueError(f"level must be a whole percentage between 1 and 99, got {level}")
     level = int(level)
@@ -200,18 +193,10 @@ def prior_sensitivity(
         options.setdefault("progressbar", False)
     cache: dict = {}
     rows = []
-    lo, hi = band_probabilities(level)
-    period = series.future_labels(int(horizon))[-1]
+    period = series.future_labels(horizon)[-1]
     for factor, setting, value, pr in grid:
         if pr not in cache:
-            with warnings.catch_warnings():
-                warnings.simplefilter("ignore")  # diagnostics are reported in the table
-                fit = fit_series(series, engine=engine, priors=pr, seed=seed, model=spec.model,
-                                 errors=spec.errors, noise=spec.noise, seasonal=spec.seasonal,
-                                 drift=spec.drift, **options)
-            x = forecast(fit, int(horizon), levels=(level,), seed=seed).draws[:, -1]
-            q = np.quantile(x, [0.5, lo, hi])
-            cache[pr] = (q, bool(fit.diagnostics.ok))
+            cache[pr] = _final_band(series, spec, engine, pr, seed, horizon, level, options)
         q, ok = cache[pr]
         rows.append({
             "factor": factor, "setting": setting, "value": value, "is_base": pr == base,
@@ -220,5 +205,28 @@ def prior_sensitivity(
         })
     return SensitivityResult(
         table=pd.DataFrame(rows), series_name=series.name, model=spec.label(),
-        horizon=int(horizon), period=period, level=level,
+        horizon=horizon, period=period, level=level,
     )
+
+
+def _engine(spec: ModelSpec, engine: str) -> str:
+    if engine not in ("auto", "exact", "nuts"):
+        raise ValueError(f"engine must be auto, exact or nuts, got {engine!r}")
+    if engine == "auto":
+        return "exact" if spec.is_plain_exponential else "nuts"
+    return engine
+
+
+def _final_band(series, spec: ModelSpec, engine: str, priors, seed: int, horizon: int,
+                level: int, options: dict) -> tuple[np.ndarray, bool]:
+    """Median and band at the horizon under ``priors``, and whether the fit's checks passed."""
+    from bayesgrowth.forecast.forecast import forecast
+    from bayesgrowth.inference.run import fit_series
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # diagnostics are reported in the table
+        fit = fit_series(series, engine=engine, priors=priors, seed=seed, model=spec.model,
+                         errors=spec.errors, noise=spec.noise, seasonal=spec.seasonal,
+                         drift=spec.drift, **options)
+    x = forecast(fit, horizon, levels=(level,), seed=seed).draws[:, -1]
+    return np.quantile(x, [0.5, *band_probabilities(level)]), bool(fit.diagnostics.ok)

@@ -64,70 +64,89 @@ def forecast_summary(fc, target: float | None = None, target_probability: float 
     """
     from bayesgrowth.forecast.forecast import CAUTION
 
-    derived = fc.fit.derived()
-    fit_flat = fc.fit.flat()
-    growth = fc.growth()
+    fit = fc.fit
     out = {
-        "series": fc.fit.series.name,
-        "engine": fc.fit.engine,
-        "model": fc.fit.model,
-        "model_options": fc.fit.spec.to_dict(),
-        "model_description": fc.fit.spec.label(),
-        "seed": fc.fit.seed,
+        "series": fit.series.name,
+        "engine": fit.engine,
+        "model": fit.model,
+        "model_options": fit.spec.to_dict(),
+        "model_description": fit.spec.label(),
+        "seed": fit.seed,
         "forecast_seed": fc.seed,
         "horizon": fc.horizon,
         "levels": list(fc.levels),
-        "frequency": fc.fit.series.axis.frequency,
-        "last_observed_period": fc.fit.series.labels[-1],
-        "initial_value": {
-            "reference_period": fc.fit.priors.reference_period,
-            **interval_summary(derived["initial_value"]),
-        },
+        "frequency": fit.series.axis.frequency,
+        "last_observed_period": fit.series.labels[-1],
+        **_parameters(fc),
+        "final_period": _final_period(fc),
+    }
+    if target is not None:
+        out.update(_target(fc, target, target_probability))
+    out.update(_provenance(fit))
+    out["cautions"] = [c for c in (fc.caution, CAUTION) if c]
+    return out
+
+
+def _parameters(fc) -> dict:
+    """Initial value, growth (per period and year, doubling time), ceiling, half-life."""
+    derived, flat, growth = fc.fit.derived(), fc.fit.flat(), fc.growth()
+    out = {
+        "initial_value": {"reference_period": fc.fit.priors.reference_period,
+                          **interval_summary(derived["initial_value"])},
         "growth_per_period": interval_summary(derived["growth_per_period"]),
     }
     if "ceiling" in derived:
         out["ceiling"] = interval_summary(derived["ceiling"])
     if fc.fit.state_space is not None and fc.fit.spec.growth_fades:
-        out["growth_fades"] = _fading_summary(fc.fit, fit_flat["half_life"])
-    elif "half_life" in fit_flat:
-        out["half_life_periods"] = interval_summary(fit_flat["half_life"])
+        out["growth_fades"] = _fading_summary(fc.fit, flat["half_life"])
+    elif "half_life" in flat:
+        out["half_life_periods"] = interval_summary(flat["half_life"])
     for name in ("growth_per_year", "doubling_time_periods"):
         if name in growth.index:
             out[name] = {k: _finite(v) for k, v in growth.loc[name].items()}
     out["prob_growth_positive"] = float(growth.loc["prob_growth_positive", "median"])
-    final = fc.draws[:, -1]
-    out["final_period"] = {"period": fc.periods[-1], **interval_summary(final, fc.levels)}
+    return out
+
+
+def _final_period(fc) -> dict:
+    """The last forecast period: median, mean and bands (the exact mixture's, if any)."""
+    out = {"period": fc.periods[-1], **interval_summary(fc.draws[:, -1], fc.levels)}
     if fc.exact is not None:  # the exact mixture's numbers, as in the table
         last = fc.table.iloc[-1]
-        out["final_period"].update({k: float(last[k]) for k in out["final_period"]
-                                    if k != "period" and k in last.index})
-    if target is not None:
-        out["target"] = {
+        out.update({k: float(last[k]) for k in out if k != "period" and k in last.index})
+    return out
+
+
+def _target(fc, target: float, target_probability: float) -> dict:
+    """The probability of reaching ``target`` by each period, and the time to reach it."""
+    return {
+        "target": {
             "value": target,
             "probability_at_least_by_period": {
                 k: float(v) for k, v in fc.prob_exceeds(target).items()
             },
             "probability": target_probability,
             "first_period_reaching": fc.first_period_reaching(target, target_probability),
-        }
-        out["time_to_target"] = fc.time_to_target(target).to_dict(
-            (0.5, 0.8, target_probability))
-    fit = fc.fit
-    out["diagnostics"] = fit.diagnostics.to_dict()
-    out["priors"] = {
-        "used": fit.priors.to_dict(), "in_words": fit.priors.describe(fit.spec)
+        },
+        "time_to_target": fc.time_to_target(target).to_dict((0.5, 0.8, target_probability)),
     }
-    out["settings"] = fit.settings
-    out["input"] = {
-        "source": fit.series.source,
-        "n_observations": fit.series.n,
-        "first_period": fit.series.labels[0],
-        "missing_periods": list(fit.series.gaps),
-        "fingerprint_sha256": fit.series.fingerprint(),
+
+
+def _provenance(fit: Fit) -> dict:
+    """Diagnostics, priors, settings, the input's fingerprint and the package version."""
+    return {
+        "diagnostics": fit.diagnostics.to_dict(),
+        "priors": {"used": fit.priors.to_dict(), "in_words": fit.priors.describe(fit.spec)},
+        "settings": fit.settings,
+        "input": {
+            "source": fit.series.source,
+            "n_observations": fit.series.n,
+            "first_period": fit.series.labels[0],
+            "missing_periods": list(fit.series.gaps),
+            "fingerprint_sha256": fit.series.fingerprint(),
+        },
+        "bayesgrowth_version": fit.attrs()["bayesgrowth_version"],
     }
-    out["bayesgrowth_version"] = fit.attrs()["bayesgrowth_version"]
-    out["cautions"] = [c for c in (fc.caution, CAUTION) if c]
-    return out
 
 
 def _fading_summary(fit: Fit, half_life: np.ndarray) -> dict:
