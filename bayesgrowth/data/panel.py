@@ -18,7 +18,7 @@ import pandas as pd
 
 from bayesgrowth.data.csvfile import read_csv_file, separator_of
 from bayesgrowth.data.excel import EXCEL_SUFFIXES
-from bayesgrowth.data.series import GrowthSeries, InputError, _from_columns
+from bayesgrowth.data.series import GrowthSeries, InputError, _from_columns, require_columns
 
 __all__ = ["read_panel", "Panel", "invented_panel", "panel_frame"]
 
@@ -112,33 +112,15 @@ def read_panel(
     else:
         path = Path(data)
         frame, source, offset = read_csv_file(path), path.name, 2
-    options = (
-        (series_col, "--series-col"), (period_col, "--period-col"), (value_col, "--value-col")
-    )
-    for col, option in options:
-        if col not in frame.columns:
-            have = ", ".join(repr(str(c)) for c in frame.columns)
-            raise InputError(
-                f"{source}: no column {col!r} (columns are {have}); name the right one with "
-                f"{option}"
-            )
+    require_columns(frame, source, ((series_col, "--series-col"),
+                                    (period_col, "--period-col"), (value_col, "--value-col")))
     if len(frame) == 0:
         raise InputError(f"{source}: no rows below the header; add one row per series and period")
-    raw_names = (frame[series_col].astype(str).tolist() if path is None
-                 else _names_as_written(path, frame, series_col))
-    names = pd.Series(raw_names, dtype=object).str.strip()
-    blank = (names == "") | names.str.lower().isin(("nan", "none", "null"))
-    if blank.any():
-        row = int(blank.to_numpy().nonzero()[0][0]) + offset
-        raise InputError(
-            f"{source}, row {row}, column {series_col!r}: series name is missing; "
-            "fill it in or delete the row"
-        )
-    _check_spellings(raw_names, source, series_col, offset)
+    names = _series_names(frame, path, series_col, source, offset)
     periods = frame[period_col].astype(str).tolist()
     values = frame[value_col].tolist()
     groups: dict[str, list[int]] = {}
-    for i, name in enumerate(names.tolist()):
+    for i, name in enumerate(names):
         groups.setdefault(name, []).append(i)
     good: Panel = {}
     failures: list[tuple[str, str]] = []
@@ -159,6 +141,23 @@ def read_panel(
         except InputError as exc:
             failures.append((name, str(exc)))
     return good, failures
+
+
+def _series_names(frame: pd.DataFrame, path: Path | None, series_col: str, source: str,
+                  offset: int) -> list[str]:
+    """Each row's series name, stripped; refuse a missing name or two spellings of one."""
+    raw_names = (frame[series_col].astype(str).tolist() if path is None
+                 else _names_as_written(path, frame, series_col))
+    names = pd.Series(raw_names, dtype=object).str.strip()
+    blank = (names == "") | names.str.lower().isin(("nan", "none", "null"))
+    if blank.any():
+        row = int(blank.to_numpy().nonzero()[0][0]) + offset
+        raise InputError(
+            f"{source}, row {row}, column {series_col!r}: series name is missing; "
+            "fill it in or delete the row"
+        )
+    _check_spellings(raw_names, source, series_col, offset)
+    return names.tolist()
 
 
 def panel_frame(panel: Panel) -> pd.DataFrame:

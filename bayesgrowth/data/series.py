@@ -187,30 +187,8 @@ def _from_columns(
     ``decimal`` and ``fiscal_start`` are as in :func:`read_series`; ``separator`` is
     the file's column separator (see :func:`bayesgrowth.data.formats.decimal_mark`).
     """
-    from bayesgrowth.data.fiscal import read_labels, restyle
-    from bayesgrowth.data.formats import amount, decimal_mark
-
-    wheres = [_where(source, row, value_col) for row in rows]
-    mark = decimal_mark([str(v).strip() for v in raw_values], wheres, decimal, separator)
-    currencies: dict[str, str] = {}
-    values = []
-    for raw, row, where in zip(raw_values, rows, wheres, strict=True):
-        text = str(raw).strip()
-        if text == "" or text.lower() in ("nan", "na", "none", "null"):
-            raise InputError(f"{where}: value is missing; fill it in or delete the row")
-        value = amount(text, mark, where, currencies)
-        if value <= 0:
-            raise InputError(
-                f"{_where(source, row, value_col)}: value {text} is not above zero; the growth "
-                "model works on the log scale and needs every value > 0"
-            )
-        if value > MAX_VALUE:
-            raise InputError(
-                f"{_where(source, row, value_col)}: value {text} is above {MAX_VALUE:g}, too "
-                "close to the largest number a computer holds to forecast from; express the "
-                "values in larger units (divide them all by the same power of ten)"
-            )
-        values.append(value)
+    values = _values(raw_values, rows, source=source, value_col=value_col, decimal=decimal,
+                     separator=separator)
     for label, row in zip(periods, rows, strict=True):
         if str(label).strip() == "":
             raise InputError(f"{_where(source, row, period_col)}: period is missing")
@@ -225,23 +203,8 @@ def _from_columns(
             "series that never changes has no growth to fit and would get bands of zero "
             "width; check that this is the right column"
         )
-    try:
-        canonical, style = read_labels([str(p).strip() for p in periods], fiscal_start)
-        axis, t = parse_periods(canonical)
-    except PeriodError as exc:
-        raise InputError(f"{_where(source, rows[exc.position], period_col)}: {exc}") from None
-    axis = restyle(axis, style)
-    t_arr = np.asarray(t, dtype=int)
-    order = np.argsort(t_arr, kind="stable")
-    t_sorted = t_arr[order]
-    dup = np.flatnonzero(np.diff(t_sorted) == 0)
-    if dup.size:
-        first, second = order[dup[0]], order[dup[0] + 1]
-        lo, hi = sorted((rows[first], rows[second]))
-        raise InputError(
-            f"{_where(source, hi, period_col)}: period {periods[second]!r} repeats row {lo}; "
-            "keep one value per period"
-        )
+    axis, t_sorted, order = _time_axis(periods, rows, source=source, period_col=period_col,
+                                       fiscal_start=fiscal_start)
     missing = sorted(set(range(int(t_sorted[-1]) + 1)) - set(t_sorted.tolist()))
     gaps = tuple(axis.labels(missing))
     if gaps:
@@ -259,6 +222,61 @@ def _from_columns(
         source=source,
         gaps=gaps,
     )
+
+
+
+def _values(raw_values: list[str], rows: list[int], *, source: str, value_col: str,
+            decimal: str, separator: str) -> list[float]:
+    """The cells as numbers above zero (decimal mark and currency read once for all)."""
+    from bayesgrowth.data.formats import amount, decimal_mark
+
+    wheres = [_where(source, row, value_col) for row in rows]
+    mark = decimal_mark([str(v).strip() for v in raw_values], wheres, decimal, separator)
+    currencies: dict[str, str] = {}
+    values = []
+    for raw, where in zip(raw_values, wheres, strict=True):
+        text = str(raw).strip()
+        if text == "" or text.lower() in ("nan", "na", "none", "null"):
+            raise InputError(f"{where}: value is missing; fill it in or delete the row")
+        value = amount(text, mark, where, currencies)
+        if value <= 0:
+            raise InputError(
+                f"{where}: value {text} is not above zero; the growth "
+                "model works on the log scale and needs every value > 0"
+            )
+        if value > MAX_VALUE:
+            raise InputError(
+                f"{where}: value {text} is above {MAX_VALUE:g}, too "
+                "close to the largest number a computer holds to forecast from; express the "
+                "values in larger units (divide them all by the same power of ten)"
+            )
+        values.append(value)
+    return values
+
+
+def _time_axis(periods: list[str], rows: list[int], *, source: str, period_col: str,
+               fiscal_start: int | None):
+    """The calendar, the sorted time indices and the order that sorts the rows."""
+    from bayesgrowth.data.fiscal import read_labels, restyle
+
+    try:
+        canonical, style = read_labels([str(p).strip() for p in periods], fiscal_start)
+        axis, t = parse_periods(canonical)
+    except PeriodError as exc:
+        raise InputError(f"{_where(source, rows[exc.position], period_col)}: {exc}") from None
+    axis = restyle(axis, style)
+    t_arr = np.asarray(t, dtype=int)
+    order = np.argsort(t_arr, kind="stable")
+    t_sorted = t_arr[order]
+    dup = np.flatnonzero(np.diff(t_sorted) == 0)
+    if dup.size:
+        first, second = order[dup[0]], order[dup[0] + 1]
+        lo, hi = sorted((rows[first], rows[second]))
+        raise InputError(
+            f"{_where(source, hi, period_col)}: period {periods[second]!r} repeats row {lo}; "
+            "keep one value per period"
+        )
+    return axis, t_sorted, order
 
 
 def read_series(
@@ -326,6 +344,17 @@ def read_series(
                             decimal=decimal, fiscal_start=fiscal_start)
 
 
+def require_columns(frame: pd.DataFrame, source: str, columns) -> None:
+    """Refuse a table without one of ``columns`` (pairs of name and the option that sets it)."""
+    for col, option in columns:
+        if col not in frame.columns:
+            have = ", ".join(repr(str(c)) for c in frame.columns)
+            raise InputError(
+                f"{source}: no column {col!r} (columns are {have}); name the right one with "
+                f"{option}"
+            )
+
+
 def _frame_to_series(
     frame: pd.DataFrame,
     source: str,
@@ -336,13 +365,7 @@ def _frame_to_series(
     decimal: str = "auto",
     fiscal_start: int | None = None,
 ) -> GrowthSeries:
-    for col, option in ((period_col, "--period-col"), (value_col, "--value-col")):
-        if col not in frame.columns:
-            have = ", ".join(repr(str(c)) for c in frame.columns)
-            raise InputError(
-                f"{source}: no column {col!r} (columns are {have}); name the right one with "
-                f"{option}"
-            )
+    require_columns(frame, source, ((period_col, "--period-col"), (value_col, "--value-col")))
     # Rows as the user counts them: CSV line numbers (header = 1), or DataFrame positions.
     rows = [i + header_offset for i in range(len(frame))]
     return _from_columns(
