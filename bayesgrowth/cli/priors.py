@@ -223,6 +223,11 @@ def run_sensitivity(args) -> int:
                                        level=level, seed=args.seed, **options, **settings)
         except ValueError as exc:
             raise UsageError(f"{exc}") from None
+        from bayesgrowth.report.words import per_period
+
+        # Growth centres in the calendar's words ("5% per quarter").
+        result.table["setting"] = result.table["setting"].str.replace(
+            "% per period", f"% {per_period(series.axis)}", regex=False)
         write_csv(result.table, stage / "prior_sensitivity.csv")
         _save(plot_sensitivity(result), stage / "prior_sensitivity.png")
     for line in sensitivity_lines(result):
