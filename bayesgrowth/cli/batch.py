@@ -92,7 +92,6 @@ def _executor(args):
 def run(args) -> int:
     """Run the batch subcommand; returns the exit code."""
     from bayesgrowth.batch.runner import run_batch
-    from bayesgrowth.batch.store import OUTPUTS
     from bayesgrowth.batch.work import BatchSettings
     from bayesgrowth.data.panel import quiet_read_panel
 
@@ -134,6 +133,13 @@ def run(args) -> int:
         return 130
     finally:
         executor.close()
+    return _report(args, result, order, settings)
+
+
+def _report(args, result, order: list[str], settings) -> int:
+    """Print what the run did (counts, recalibration, failures); returns the exit code."""
+    from bayesgrowth.batch.store import OUTPUTS
+
     n_bad = len(result.failures)
     n_done = len(result.summary)
     print(f"{n_done} of {len(order)} series forecast ({result.n_fitted} fitted now, "

@@ -58,6 +58,20 @@ def build_parser() -> argparse.ArgumentParser:
     parser.add_argument("--version", action="version", version=f"{PROG} {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=Parser)
 
+    _add_forecast_parser(sub)
+    _add_demo_parser(sub)
+    compare.add_parser(sub)
+    backtest.add_parser(sub)
+    report.add_parser(sub)
+    batch.add_parser(sub)
+    models.add_parser(sub)
+    priors.add_parsers(sub)
+    pool.add_parser(sub)
+    return parser
+
+
+def _add_forecast_parser(sub) -> None:
+    """The ``forecast`` command's options."""
     fc = sub.add_parser(
         "forecast",
         help="fit a growth model and forecast with credible bands",
@@ -90,6 +104,9 @@ def build_parser() -> argparse.ArgumentParser:
     add_scenario_options(fc)
     fc.set_defaults(run=_run_forecast)
 
+
+def _add_demo_parser(sub) -> None:
+    """The ``demo`` command's options: ``forecast`` on the bundled demo series."""
     demo = sub.add_parser(
         "demo",
         help="forecast the bundled demo series (an invented company)",
@@ -109,14 +126,6 @@ def build_parser() -> argparse.ArgumentParser:
     add_recalibrate_options(demo)
     add_scenario_options(demo)
     demo.set_defaults(run=_run_demo)
-    compare.add_parser(sub)
-    backtest.add_parser(sub)
-    report.add_parser(sub)
-    batch.add_parser(sub)
-    models.add_parser(sub)
-    priors.add_parsers(sub)
-    pool.add_parser(sub)
-    return parser
 
 
 def _run_forecast(args, series: GrowthSeries | None = None) -> int:

@@ -224,7 +224,6 @@ def _from_columns(
     )
 
 
-
 def _values(raw_values: list[str], rows: list[int], *, source: str, value_col: str,
             decimal: str, separator: str) -> list[float]:
     """The cells as numbers above zero (decimal mark and currency read once for all)."""
