@@ -12,7 +12,7 @@ from bayesgrowth.cli.acceptance import diagnostics_exit
 from bayesgrowth.cli.common import UsageError, add_input, add_model_options, read_input, say
 from bayesgrowth.cli.output import add_force_option, check_output, staged_output
 from bayesgrowth.cli.report_models import add_models_option, average_from_args
-from bayesgrowth.cli.text import add_unit_option, unit_from_args
+from bayesgrowth.cli.text import add_unit_option, forecast_lines, unit_from_args
 
 __all__ = ["add_parser"]
 
@@ -43,7 +43,8 @@ def run(args) -> int:
     """Run ``report``; returns the exit code."""
     from bayesgrowth.cli.common import checked_model_options, priors_from_args
     from bayesgrowth.inference.diagnostics import SamplingWarning
-    from bayesgrowth.report import build_report, write_report
+    from bayesgrowth.report import render_report, write_report
+    from bayesgrowth.report.build import report_parts
 
     series = read_input(args)
     if args.target is not None and not (args.target > 0 and math.isfinite(args.target)):
@@ -61,20 +62,23 @@ def run(args) -> int:
     with staged as stage, warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", SamplingWarning)  # the forecast's own fit
         average = average_from_args(args, series, priors)
-        page = build_report(
+        parts = report_parts(
             series, args.horizon, engine=args.engine, seed=args.seed, priors=priors,
             levels=args.levels, target=args.target, target_probability=args.target_probability,
             with_backtest=not args.no_backtest, command=command, unit=unit_from_args(args),
             fit_options={"draws": args.draws, "chains": args.chains, **spec_options},
             average=average,
         )
-        write_report(stage / "report.html", page)
+        write_report(stage / "report.html", render_report(parts))
     failed = [str(w.message) for w in caught if issubclass(w.category, SamplingWarning)]
     failed += [f"{m}: diagnostics failed, left out of the comparison"
                for m in (average.excluded if average is not None else ())]
     for w in caught:
         if not issubclass(w.category, SamplingWarning):
             warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
+    fc = parts.forecast
+    for line in forecast_lines(fc, fc.summary(args.target, args.target_probability))[:-1]:
+        print(line)  # the page's headline; its sampling checks are in its diagnostics section
     print(f"wrote report.html to {args.out}")
     print("caution: the report extrapolates past growth; it is not investment advice")
     return diagnostics_exit(args, failed, args.out)

@@ -9,7 +9,7 @@ from bayesgrowth.config import DEFAULT_LEVELS
 from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.report.html import ReportParts, figure_data_uri, render_report
 
-__all__ = ["build_report", "write_report", "backtest_settings_for"]
+__all__ = ["backtest_settings_for", "build_report", "report_parts", "write_report"]
 
 #: Fewest training points at the first backtest origin in a report.
 MIN_TRAIN_FLOOR = 6
@@ -96,6 +96,33 @@ def build_report(
     >>> page.startswith("<!DOCTYPE html>"), "not investment advice" in page
     (True, True)
     """
+    return render_report(report_parts(
+        series, horizon, engine=engine, seed=seed, priors=priors, levels=levels, target=target,
+        target_probability=target_probability, with_backtest=with_backtest, models=models,
+        models_note=models_note, average=average, command=command, fit_options=fit_options,
+        timestamp=timestamp, unit=unit,
+    ))
+
+
+def report_parts(series: GrowthSeries, horizon: int, *, engine: str = "exact", seed: int = 1,
+                 priors=None, levels=DEFAULT_LEVELS, target: float | None = None,
+                 target_probability: float = 0.5, with_backtest: bool = True, models=None,
+                 models_note: str | None = None, average=None, command: str | None = None,
+                 fit_options: dict | None = None, timestamp: str | None = None,
+                 unit: str | None = None) -> ReportParts:
+    """Everything :func:`build_report` computes, before it is rendered.
+
+    The parameters are those of :func:`build_report`; the result's ``forecast``
+    lets a caller print the same headline as the page
+    (:func:`~bayesgrowth.report.html.render_report` renders it).
+
+    Examples
+    --------
+    >>> import bayesgrowth as bg
+    >>> parts = report_parts(bg.load_demo(), 4, with_backtest=False)
+    >>> parts.forecast.periods[-1]
+    '2026Q4'
+    """
     import matplotlib
 
     matplotlib.use("Agg")
@@ -126,7 +153,7 @@ def build_report(
     if settings is not None:
         _add_backtest(parts, series, settings, engine=engine, seed=seed, priors=priors,
                       fit_options=fit_options)
-    return render_report(parts)
+    return parts
 
 
 def _add_comparison(parts: ReportParts, fc, unit: str | None) -> None:

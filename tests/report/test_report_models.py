@@ -47,3 +47,17 @@ def test_report_refuses_an_unknown_model_and_writes_nothing(tmp_path, capsys):
                "exponential,cubic", "--quiet"])
     assert rc == 2 and not out.exists()
     assert "unknown model 'cubic'" in capsys.readouterr().err
+
+
+def test_cli_report_prints_the_pages_headline(tmp_path, capsys):
+    import re as _re
+
+    out = tmp_path / "rep"
+    assert main(["report", str(demo_path()), "-H", "4", "--target", "9000", "--out", str(out),
+                 "--no-backtest", "--quiet"]) == 0
+    printed = capsys.readouterr().out
+    page = (out / "report.html").read_text()
+    headline = _re.search(r'<p class="headline">(.*?)</p>', page, _re.S).group(1)
+    median = _re.search(r"<strong>([\d,]+)</strong>", headline).group(1)
+    assert f"median {median};" in printed  # the same number on the terminal and the page
+    assert "target 9,000: probability" in printed and "not investment advice" in printed
