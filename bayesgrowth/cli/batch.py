@@ -18,7 +18,7 @@ from bayesgrowth.cli.common import (
     PROG,
     UsageError,
     _positive_int,
-    add_format_options,
+    add_input,
     add_model_options,
     checked_model_options,
     model_options_from_args,
@@ -48,12 +48,7 @@ def add_parser(subparsers) -> argparse.ArgumentParser:
         "interrupted batch. Exit code 0: all series done; 3: some series failed (see "
         "failures.csv); 2: bad input or usage.",
     )
-    p.add_argument("file", type=Path, help="CSV file (comma, semicolon or tab "
-                   "separated) or .xlsx workbook with series, period and value columns")
-    p.add_argument("--series-col", default="series", help="name of the series column [series]")
-    p.add_argument("--period-col", default="period", help="name of the period column [period]")
-    p.add_argument("--value-col", default="value", help="name of the value column [value]")
-    add_format_options(p)
+    add_input(p, panel=True)
     add_model_options(p)
     p.add_argument("--out", type=Path, required=True, help="output folder (resumed if it "
                    "holds an interrupted batch with the same options)")

@@ -77,10 +77,18 @@ def add_format_options(p: argparse.ArgumentParser) -> None:
                    "April-June 2023")
 
 
-def add_input(p: argparse.ArgumentParser) -> None:
-    """Options naming the input file and its columns, and how it writes numbers and periods."""
+def add_input(p: argparse.ArgumentParser, *, panel: bool = False) -> None:
+    """Options naming the input file and its columns, and how it writes numbers and periods.
+
+    With ``panel``, the file holds many series: a series column names each row's.
+    """
+    what = ("series, period and value columns" if panel
+            else "a period column and a value column")
     p.add_argument("file", type=Path, help="CSV file (comma, semicolon or tab separated) or "
-                   ".xlsx workbook with a period column and a value column")
+                   f".xlsx workbook with {what}")
+    if panel:
+        p.add_argument("--series-col", default="series",
+                       help="name of the series column [series]")
     p.add_argument("--period-col", default="period", help="name of the period column [period]")
     p.add_argument("--value-col", default="value", help="name of the value column [value]")
     add_format_options(p)

@@ -16,7 +16,7 @@ from bayesgrowth.cli.common import (
     UsageError,
     _levels,
     _positive_int,
-    add_format_options,
+    add_input,
     priors_from_args,
     say,
 )
@@ -45,12 +45,7 @@ def add_parser(sub) -> None:
         "Writes pooled_forecast.csv, pooled_growth.csv and group_total.csv. Uses the NUTS "
         "sampler: the first run on a machine compiles the model (about 30 s).",
     )
-    p.add_argument("file", type=Path, help="CSV file or .xlsx workbook with series, period "
-                   "and value columns")
-    p.add_argument("--series-col", default="series", help="name of the series column [series]")
-    p.add_argument("--period-col", default="period", help="name of the period column [period]")
-    p.add_argument("--value-col", default="value", help="name of the value column [value]")
-    add_format_options(p)
+    add_input(p, panel=True)
     p.add_argument("--horizon", "-H", type=_positive_int, required=True,
                    help="number of future periods to forecast")
     p.add_argument("--out", type=Path, required=True, help="output folder")
