@@ -113,6 +113,16 @@ def model_choices() -> tuple[str, ...]:
     return (default, *(n for n in registry.names() if n != default))
 
 
+def _others() -> str:
+    """The summaries the model registry gives of the families not described above."""
+    from bayesgrowth.models import registry
+
+    described = (DEFAULT_MODEL["model"], "exponential")
+    text = " ".join(f"{f.name}: {f.summary}." for f in registry.families()
+                    if f.name not in described)
+    return text.replace("%", "%%")  # argparse formats help texts with %
+
+
 def _add_run_options(p: argparse.ArgumentParser, horizon_required: bool) -> None:
     """Horizon, engine, seed, band levels and sampler settings."""
     p.add_argument(
@@ -160,7 +170,7 @@ def _add_model_choice(p: argparse.ArgumentParser) -> None:
         help="growth model. local-trend (default): level and growth rate move over time; its "
         "bands held close to their stated coverage on real competition series. exponential: "
         "one fixed curve; with independent errors it assumes deviations do not persist, and "
-        "its bands were far too narrow on real series (docs/benchmark.md) "
+        f"its bands were far too narrow on real series (docs/benchmark.md). {_others()} "
         f"[{DEFAULT_MODEL['model']}]",
     )
     m.add_argument(

@@ -55,20 +55,28 @@ def add_common_priors(g) -> None:
 
 
 def add_curve_priors(g) -> None:
-    """Priors of the bending curves: ceiling and half-life of growth."""
+    """Priors of the bending curves: ceiling and half-life of growth.
+
+    The help texts name the families that have each parameter (from the model registry).
+    """
+    from bayesgrowth.models import registry
+
+    ceiling = "/".join(f.name for f in registry.families() if f.ceiling)
+    fading = "/".join(f.name for f in registry.families()
+                      if "half_life" in f.parameter_names() and not f.drifts)
     g.add_argument(
         "--ceiling",
         type=float,
         default=None,
         metavar="V",
-        help="logistic/gompertz: central ceiling (market size) on the data's scale",
+        help=f"{ceiling}: central ceiling (market size) on the data's scale",
     )
     g.add_argument(
         "--ceiling-multiple",
         type=float,
         default=3.0,
         metavar="M",
-        help="logistic/gompertz: ceiling about M times the latest value, if --ceiling unset [3]",
+        help=f"{ceiling}: ceiling about M times the latest value, if --ceiling unset [3]",
     )
     g.add_argument(
         "--ceiling-give-or-take",
@@ -82,7 +90,7 @@ def add_curve_priors(g) -> None:
         type=float,
         default=None,
         metavar="PERIODS",
-        help="damped/logistic/gompertz, and the local trend when growth fades: periods over "
+        help=f"{fading}, and the local trend when growth fades: periods over "
         "which growth halves [two years]",
     )
     g.add_argument(

@@ -56,9 +56,8 @@ FAMILY = register(ModelFamily(
 
 
 def design_matrix(t: np.ndarray, t_ref: int) -> np.ndarray:
-    """Columns ``[1, t - t_ref]`` of the log-linear model."""
-    t = np.asarray(t, dtype=float)
-    return np.column_stack([np.ones_like(t), t - t_ref])
+    """Columns ``[1, t - t_ref]`` of the log-linear model (:func:`design`), for the exact engine."""
+    return design(np.asarray(t, dtype=float) - t_ref)
 
 
 def log_mean(draws: dict[str, np.ndarray], t: np.ndarray, t_ref: int) -> np.ndarray:

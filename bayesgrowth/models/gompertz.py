@@ -35,7 +35,8 @@ def ceiling_offset(kappa, decay, xp=np):
 
 FAMILY = register(ModelFamily(
     name="gompertz",
-    summary="growth toward a ceiling, steepest early: growth rate halves every half-life",
+    summary="growth toward a ceiling whose growth rate halves every half-life (steepest at "
+    "37% of the ceiling)",
     parameters=(CEILING, HALF_LIFE),
     log_mean=curve,
     prior_lines=prior_lines,

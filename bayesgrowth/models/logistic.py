@@ -39,7 +39,7 @@ def prior_lines(resolved, spec) -> list[str]:
 
 FAMILY = register(ModelFamily(
     name="logistic",
-    summary="S-shaped growth toward a ceiling, symmetric around its steepest point",
+    summary="S-shaped growth toward a ceiling, steepest at half the ceiling",
     parameters=(CEILING, HALF_LIFE),
     log_mean=curve,
     prior_lines=prior_lines,

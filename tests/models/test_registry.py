@@ -83,7 +83,8 @@ def test_toy_in_cli_choices(toy_family, capsys):
     assert args.model == TOY
     with pytest.raises(SystemExit):
         build_parser().parse_args(["forecast", "--help"])
-    assert TOY in capsys.readouterr().out
+    help_text = " ".join(capsys.readouterr().out.split())
+    assert f"{TOY}: {toy_family.summary}" in help_text  # listed and described
 
 
 def test_cli_refuses_the_exact_engine_for_the_toy(toy_family, tmp_path, capsys):
