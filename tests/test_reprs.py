@@ -101,3 +101,61 @@ def test_model_comparison_repr_names_the_best_and_its_weight(demo):
 
 def demo_exact_fit_of(series, priors=None):
     return bg.fit_series(series, engine="exact", seed=3, priors=priors)
+
+
+@pytest.fixture(scope="module")
+def pooled_fit(demo):
+    # A pooled posterior written down directly (no sampling): two series of the demo,
+    # 2 chains x 200 draws around 8% growth per period.
+    import numpy as np
+
+    from bayesgrowth.inference.diagnostics import Diagnostics
+    from bayesgrowth.inference.pooled import PooledFit
+    from bayesgrowth.models.hierarchical import GroupPrior
+
+    rng = np.random.default_rng(5)
+    series = {"older": dataclasses.replace(demo, name="older"),
+              "newer": dataclasses.replace(demo.head(12), name="newer")}
+    shape = (2, 200, 2)
+    posterior = {
+        "log_a": np.log(demo.values[0]) + 0.02 * rng.standard_normal(shape),
+        "log1p_g": np.log1p(0.08) + 0.005 * rng.standard_normal(shape),
+        "sigma": 0.05 + 0.005 * rng.random(shape),
+        "mu_growth": np.log1p(0.08) + 0.01 * rng.standard_normal(shape[:2]),
+        "tau_growth": 0.02 + 0.01 * rng.random(shape[:2]),
+    }
+    return PooledFit(series=series, priors={n: Priors().resolve(s) for n, s in series.items()},
+                     group=GroupPrior(), errors="independent", seed=3, posterior=posterior,
+                     diagnostics=Diagnostics.from_values(1.0, 1000, 1000, 0, "NUTS (test)"),
+                     settings={})
+
+
+def test_pooled_fit_and_forecast_reprs_give_the_group_and_the_total(pooled_fit):
+    import numpy as np
+
+    from bayesgrowth.display import fmt_percent
+
+    text = repr(pooled_fit)
+    _short(text)
+    centre = np.expm1(np.median(pooled_fit.posterior["mu_growth"]))
+    assert f"group growth centre {fmt_percent(centre)} per period" in text
+    assert pooled_fit._repr_html_().count("<tr>") == 1 + 2
+    fc = bg.forecast(pooled_fit, 3, levels=(80,))
+    np.testing.assert_array_equal(fc.total_draws, fc.aligned["older"] + fc.aligned["newer"])
+    text = repr(fc)
+    _short(text)
+    last = fc.total.iloc[-1]
+    assert f"group total in {last['period']}: median {fmt_number(last['median'])}" in text
+
+
+def test_model_average_reprs_name_the_weights_and_the_last_band(demo):
+    fits = {"exponential": demo_exact_fit_of(demo),
+            "local trend": bg.fit_series(demo, engine="exact", seed=3, model="local-trend")}
+    avg = bg.model_average(fits, 4, seed=1)
+    text = repr(avg)
+    _short(text)
+    w = avg.averaged.weights
+    assert f"exponential {w['exponential']:.2f}, local trend {w['local trend']:.2f}" in text
+    last = avg.averaged.table.iloc[-1]
+    assert f"median {fmt_number(last['median'])}" in text and "median" in repr(avg.averaged)
+    assert avg.averaged._repr_html_().count("<tr>") == 1 + 4

@@ -14,8 +14,10 @@ import numpy as np
 import pandas as pd
 
 from bayesgrowth.config import DEFAULT_LEVELS, check_levels
+from bayesgrowth.display import fmt_interval, fmt_number, html_summary, text_summary
 from bayesgrowth.forecast.bands import band_columns, check_horizon
 from bayesgrowth.forecast.forecast import forecast
+from bayesgrowth.forecast.summaries import forecast_headline
 from bayesgrowth.inference.pooled import PooledFit
 from bayesgrowth.seeds import series_seed
 
@@ -48,6 +50,27 @@ class PooledForecast:
     total_draws: np.ndarray | None
     aligned: dict | None = None
     note: str | None = None
+
+    def _summary(self) -> tuple[str, str]:
+        first = next(iter(self.forecasts.values()))
+        title = f"Pooled forecast of {len(self.forecasts)} series, {first.horizon} periods"
+        if self.total is None:
+            return title, f"no group total: {self.note}"
+        last, level = self.total.iloc[-1], max(first.levels)
+        band = fmt_interval(last[f"lower_{level}"], last[f"upper_{level}"])
+        return title, (f"group total in {last['period']}: median {fmt_number(last['median'])}, "
+                       f"{level}% band {band}")
+
+    def __repr__(self) -> str:
+        title, headline = self._summary()
+        return text_summary(title, [headline] + [f"{name}: {forecast_headline(fc)}"
+                                                 for name, fc in list(self.forecasts.items())[:3]]
+                            + (["..."] if len(self.forecasts) > 3 else []))
+
+    def _repr_html_(self) -> str:
+        title, headline = self._summary()
+        rows = [[name, forecast_headline(fc)] for name, fc in self.forecasts.items()]
+        return html_summary(title, headline, ["series", "last period"], rows)
 
     @property
     def table(self) -> pd.DataFrame:

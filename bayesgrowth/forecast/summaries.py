@@ -10,15 +10,18 @@ from bayesgrowth.display import fmt_interval, fmt_number, html_summary, text_sum
 from bayesgrowth.forecast.bands import interval_summary
 from bayesgrowth.inference.fit import Fit
 
-__all__ = ["forecast_html", "forecast_summary", "forecast_text"]
+__all__ = ["forecast_headline", "forecast_html", "forecast_summary", "forecast_text"]
 
 
 def _title(fc) -> str:
     fit = fc.fit
-    return f"Forecast of {fit.series.name!r}: {fit.spec.label()}; {fit.engine} engine"
+    spec = getattr(fit, "spec", None)
+    model = f"{spec.label()}; {fit.engine} engine" if spec is not None else fit.engine
+    return f"Forecast of {fit.series.name!r}: {model}"
 
 
-def _headline(fc) -> str:
+def forecast_headline(fc) -> str:
+    """The last period's median and widest band, in one line."""
     row = fc.table.iloc[-1]
     level = max(fc.levels)
     band = fmt_interval(row[f"lower_{level}"], row[f"upper_{level}"])
@@ -31,7 +34,7 @@ def forecast_text(fc) -> str:
     return text_summary(_title(fc), [
         f"{fc.horizon} periods, {fc.periods[0]} to {fc.periods[-1]}; bands {levels}%; "
         f"{fc.draws.shape[0]:,} draws; seed {fc.seed}",
-        _headline(fc),
+        forecast_headline(fc),
     ])
 
 
@@ -44,7 +47,7 @@ def forecast_html(fc) -> str:
         + [fmt_interval(row[f"lower_{v}"], row[f"upper_{v}"]) for v in fc.levels]
         for _, row in table.iterrows()
     ]
-    return html_summary(_title(fc), _headline(fc), cols, rows)
+    return html_summary(_title(fc), forecast_headline(fc), cols, rows)
 
 
 def forecast_summary(fc, target: float | None = None, target_probability: float = 0.5) -> dict:

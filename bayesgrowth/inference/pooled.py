@@ -18,6 +18,7 @@ import pandas as pd
 
 from bayesgrowth.config import DEFAULT_CHAINS, DEFAULT_DRAWS, DEFAULT_TUNE
 from bayesgrowth.data.series import GrowthSeries
+from bayesgrowth.display import fmt_percent, html_summary, text_summary
 from bayesgrowth.inference.diagnostics import Diagnostics
 from bayesgrowth.inference.fit import Fit
 from bayesgrowth.inference.nuts import SHORT_SERIES, sample_pymc
@@ -65,6 +66,25 @@ class PooledFit:
     posterior: dict[str, np.ndarray]
     diagnostics: Diagnostics
     settings: dict
+
+    def _headline(self) -> str:
+        g = self.group_summary()["growth_centre"]
+        return (f"group growth centre {fmt_percent(g['median'])} per period (95% interval "
+                f"{fmt_percent(g['lower_95'])} to {fmt_percent(g['upper_95'])})")
+
+    def __repr__(self) -> str:
+        d = self.diagnostics
+        return text_summary(
+            f"Pooled fit of {len(self.series)} series: {d.method}, {self.errors} errors",
+            [self._headline(),
+             "diagnostics ok" if d.ok else "diagnostics failed: " + "; ".join(d.problems)])
+
+    def _repr_html_(self) -> str:
+        rows = [[r.series, str(r.n_observations), fmt_percent(r.growth_median),
+                 f"{fmt_percent(r.growth_lower_95)} to {fmt_percent(r.growth_upper_95)}"]
+                for r in self.summary().itertuples()]
+        return html_summary(f"Pooled fit of {len(self.series)} series", self._headline(),
+                            ["series", "observations", "growth", "95% interval"], rows)
 
     @property
     def names(self) -> list[str]:

@@ -19,7 +19,9 @@ import pandas as pd
 
 from bayesgrowth.config import DEFAULT_LEVELS
 from bayesgrowth.data.series import GrowthSeries
+from bayesgrowth.display import html_summary, text_summary
 from bayesgrowth.forecast.bands import draws_table, prob_at_least
+from bayesgrowth.forecast.summaries import forecast_headline, forecast_html, forecast_text
 from bayesgrowth.seeds import stream
 from bayesgrowth.select.loo import ModelComparison, compare_models
 
@@ -186,6 +188,12 @@ class AveragedForecast:
         """A stand-in carrying the series, so :func:`plot_fan` can draw this forecast."""
         return _AverageSource(self.series, f"average of {len(self.models)} models by stacking")
 
+    def __repr__(self) -> str:
+        return forecast_text(self)
+
+    def _repr_html_(self) -> str:
+        return forecast_html(self)
+
     @property
     def shares(self) -> dict[str, float]:
         """Share of the mixture draws that came from each model."""
@@ -312,6 +320,24 @@ class ModelAverage:
     forecasts: dict
     averaged: AveragedForecast
     excluded: dict = field(default_factory=dict)
+
+    @property
+    def _title(self) -> str:
+        avg = self.averaged
+        return f"Model average of {len(avg.models)} models of {avg.series.name!r}"
+
+    def _headline(self) -> str:
+        weights = ", ".join(f"{m} {w:.2f}" for m, w in self.averaged.weights.items())
+        return f"stacking weights {weights}; {forecast_headline(self.averaged)}"
+
+    def __repr__(self) -> str:
+        lines = [self._headline()]
+        lines += [f"left out (checks failed): {', '.join(self.excluded)}"] if self.excluded else []
+        return text_summary(self._title, lines)
+
+    def _repr_html_(self) -> str:
+        return html_summary(self._title, self._headline(), ["model", "elpd_loo", "elpd_diff", "dse",
+                                                      "weight"], self.comparison._rows())
 
 
 def model_average(
