@@ -22,7 +22,7 @@ import numpy as np
 import pandas as pd
 
 from bayesgrowth.data.series import GrowthSeries
-from bayesgrowth.forecast.bands import band_probabilities, check_horizon
+from bayesgrowth.forecast.bands import check_horizon
 from bayesgrowth.models.spec import ModelSpec
 from bayesgrowth.priors import CeilingPrior, Priors
 
@@ -228,5 +228,8 @@ def _final_band(series, spec: ModelSpec, engine: str, priors, seed: int, horizon
         fit = fit_series(series, engine=engine, priors=priors, seed=seed, model=spec.model,
                          errors=spec.errors, noise=spec.noise, seasonal=spec.seasonal,
                          drift=spec.drift, **options)
-    x = forecast(fit, horizon, levels=(level,), seed=seed).draws[:, -1]
-    return np.quantile(x, [0.5, *band_probabilities(level)]), bool(fit.diagnostics.ok)
+    # The forecast's own table: for the exact state-space engine its bands come from the
+    # exact mixture, so the numbers match what `forecast` reports for the same priors.
+    row = forecast(fit, horizon, levels=(level,), seed=seed).table.iloc[-1]
+    band = np.array([row["median"], row[f"lower_{level}"], row[f"upper_{level}"]], dtype=float)
+    return band, bool(fit.diagnostics.ok)
