@@ -131,10 +131,11 @@ def _engine_for(name: str, options: dict, engine: str | None) -> str:
     if engine is None:
         engine = "exact" if covered else "nuts"
     if engine == "exact" and not covered:
+        from bayesgrowth.models.registry import exact_coverage
+
         raise ValueError(
-            f"model {name!r}: the exact engine fits the local trend (normal noise, independent "
-            f"errors) and the exponential curve with independent normal errors, not "
-            f"{spec.label()}; use the nuts engine ({_nuts_name(name)})"
+            f"model {name!r}: the exact engine fits {exact_coverage()}, not {spec.label()}; "
+            f"use the nuts engine ({_nuts_name(name)})"
         )
     if engine == "nuts" and spec.adaptive:
         raise ValueError(f"model {name!r}: adaptive drift needs the exact engine")

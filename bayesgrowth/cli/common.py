@@ -286,11 +286,10 @@ def exact_covers(spec) -> bool:
 
 def exact_refusal(spec, option: str = "--engine") -> str:
     """The one-line refusal for a model the exact engine does not fit."""
-    return (
-        f"{option}: the exact engine fits the local trend (normal noise, independent errors) "
-        f"and the exponential curve with independent normal errors and no seasons, not "
-        f"{spec.label()}; use nuts instead of exact"
-    )
+    from bayesgrowth.models.registry import exact_coverage
+
+    return (f"{option}: the exact engine fits {exact_coverage()}, not {spec.label()}; "
+            "use nuts instead of exact")
 
 
 def checked_model_options(args, engines, option: str = "--engine") -> dict:

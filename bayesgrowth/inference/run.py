@@ -78,10 +78,10 @@ def fit_series(
     seasonal = resolve_seasonal(seasonal, series.axis, series.t, model)
     spec = ModelSpec(model=model, errors=errors, noise=noise, seasonal=seasonal, drift=drift)
     if engine == "exact" and not spec.exact_fits:
+        from bayesgrowth.models.registry import exact_coverage
+
         raise ValueError(
-            f"engine='exact' covers the local trend (normal noise, independent errors) and the "
-            f"exponential model with independent normal errors and no seasonal factors, not "
-            f"{spec.label()}; use engine='nuts'"
+            f"engine='exact' covers {exact_coverage()}, not {spec.label()}; use engine='nuts'"
         )
     if engine == "nuts" and spec.adaptive:
         raise ValueError(

@@ -27,10 +27,12 @@ from dataclasses import dataclass, field
 
 __all__ = [
     "ENGINES",
+    "EXACT_CONDITIONS",
     "ModelFamily",
     "Parameter",
     "families",
     "get_family",
+    "exact_coverage",
     "names",
     "register",
     "unregister",
@@ -40,6 +42,13 @@ __all__ = [
 #: grid of scales), the exact Gaussian engine (quadrature over the noise scale of a
 #: linear model) and PyMC's NUTS.
 ENGINES = ("state-space", "gaussian", "nuts")
+
+#: What each exact engine needs of a model besides its family (checked by
+#: :class:`~bayesgrowth.models.spec.ModelSpec`: ``is_state_space``, ``is_plain_exponential``).
+EXACT_CONDITIONS = {
+    "state-space": "normal noise, independent errors",
+    "gaussian": "independent normal errors, no seasonal factors",
+}
 
 #: How a family's PyMC model integrates its linear coefficients while sampling
 #: (see :mod:`bayesgrowth.models.linear`): ``"growth"`` (level, growth and
@@ -200,6 +209,12 @@ def names() -> tuple[str, ...]:
 def families() -> tuple[ModelFamily, ...]:
     """The registered families, in registration order."""
     return tuple(_FAMILIES.values())
+
+
+def exact_coverage() -> str:
+    """The models the exact engines fit, in words (for refusals), from the declarations."""
+    return " and ".join(f"the {f.name} model ({EXACT_CONDITIONS[f.exact_engine]})"
+                        for f in _FAMILIES.values() if f.exact_engine is not None)
 
 
 def get_family(name: str) -> ModelFamily:

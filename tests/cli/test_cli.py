@@ -191,7 +191,9 @@ def test_exact_engine_refuses_other_curves(tmp_path, command):
                           text=True, check=False)
     assert proc.returncode == 2
     assert len(proc.stderr.strip().splitlines()) == 1
-    assert "the exact engine fits the local trend" in proc.stderr
+    # the models it does fit are named from the model registry
+    assert "the exact engine fits the exponential model" in proc.stderr
+    assert "the local-trend model" in proc.stderr and "not logistic" in proc.stderr
     assert not out.exists()
 
 
