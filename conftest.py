@@ -13,3 +13,7 @@ NEEDS_EXTRA = {
 }
 
 collect_ignore = [path for path, module in NEEDS_EXTRA.items() if find_spec(module) is None]
+
+#: The test folders' conftest files are plugins, not modules with examples: collected as
+#: doctest modules, two files of the same name clash on import.
+collect_ignore_glob = ["tests/conftest.py", "tests/*/conftest.py"]
