@@ -35,6 +35,9 @@ _HOMES = {
     "fit_models": "bayesgrowth.select",
     "model_average": "bayesgrowth.select",
     "registered_models": "bayesgrowth.select",
+    "ModelFamily": "bayesgrowth.models.registry",
+    "Parameter": "bayesgrowth.models.registry",
+    "register_model": "bayesgrowth.models.registry",
 }
 
 __all__ = [
@@ -50,7 +53,9 @@ __all__ = [
     "GrowthSeries",
     "InitialValuePrior",
     "InputError",
+    "ModelFamily",
     "NoisePrior",
+    "Parameter",
     "PooledFit",
     "Priors",
     "SamplingWarning",
@@ -71,6 +76,7 @@ __all__ = [
     "prior_sensitivity",
     "read_panel",
     "read_series",
+    "register_model",
     "registered_models",
     "run_batch",
 ]

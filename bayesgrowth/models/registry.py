@@ -35,6 +35,7 @@ __all__ = [
     "exact_coverage",
     "names",
     "register",
+    "register_model",
     "unregister",
 ]
 
@@ -194,6 +195,10 @@ def register(family: ModelFamily) -> ModelFamily:
         raise ValueError(f"a model called {family.name!r} is already registered")
     _FAMILIES[family.name] = family
     return family
+
+
+#: :func:`register` under the name the package exports (``bayesgrowth.register_model``).
+register_model = register
 
 
 def unregister(name: str) -> None:
