@@ -17,7 +17,7 @@ def _public_functions():
 
 @pytest.mark.parametrize("name", _public_functions())
 def test_every_public_function_has_an_example_that_runs(name):
-    # ``--doctest-modules`` (pyproject) runs the examples; here: there is one that is not skipped
+    # tests/test_doctests.py runs the examples; here: there is one that is not skipped
     examples = doctest.DocTestParser().get_examples(inspect.getdoc(getattr(bg, name)) or "")
     running = [e for e in examples if not e.options.get(doctest.OPTIONFLAGS_BY_NAME["SKIP"])]
     assert running, f"{name}: add an Examples section whose lines run (exact engine, no sampling)"
