@@ -190,6 +190,18 @@ def register(family: ModelFamily) -> ModelFamily:
     ------
     ValueError
         If another family already has the name.
+
+    Examples
+    --------
+    >>> import copy
+    >>> from bayesgrowth.models import registry
+    >>> curve = next(f for f in registry.families() if f.name == "exponential")
+    >>> registry.register(curve) is curve  # the same family again changes nothing
+    True
+    >>> registry.register(copy.copy(curve))
+    Traceback (most recent call last):
+    ...
+    ValueError: a model called 'exponential' is already registered
     """
     if family.name in _FAMILIES and _FAMILIES[family.name] is not family:
         raise ValueError(f"a model called {family.name!r} is already registered")
