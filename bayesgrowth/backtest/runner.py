@@ -155,13 +155,16 @@ def backtest(
     _check_min(window, "window")
     if isinstance(n_draws, bool) or not isinstance(n_draws, (int, np.integer)) or n_draws < 2:
         raise ValueError(f"n_draws must be a whole number of at least 2, got {n_draws!r}")
-    splits = list(splitter.split(series.n))
+    splits = bar = list(splitter.split(series.n))
     if progress:
         from tqdm.auto import tqdm
 
-        splits = tqdm(splits, desc="backtest origins", unit="origin")
-    blocks, diag_rows = _run_origins(series, choices, splits, splitter.horizon, levels,
-                                     seed=seed, priors=priors, n_draws=int(n_draws))
+        splits = bar = tqdm(splits, desc="backtest origins", unit="origin")
+    try:
+        blocks, diag_rows = _run_origins(series, choices, splits, splitter.horizon, levels,
+                                         seed=seed, priors=priors, n_draws=int(n_draws))
+    finally:  # also on Ctrl-C, so that the bar's line ends before the message
+        getattr(bar, "close", lambda: None)()
     forecasts = _forecast_frame(blocks, levels)
     diagnostics = pd.DataFrame(diag_rows, columns=DIAGNOSTIC_COLUMNS)
     _warn_failed(diagnostics, choices)

@@ -8,9 +8,12 @@ each series' seed is fixed by the global seed and its name.
 
 from __future__ import annotations
 
+import ctypes
 import logging
 import multiprocessing
 import os
+import signal
+import sys
 from collections.abc import Callable, Iterator
 from concurrent.futures import ProcessPoolExecutor, as_completed
 
@@ -26,6 +29,28 @@ def available_cores() -> int:
     return os.cpu_count() or 1
 
 
+#: prctl option: the signal a process gets when its parent dies (linux/prctl.h).
+PR_SET_PDEATHSIG = 1
+
+
+def _worker_start(parent: int) -> None:
+    """Set up a local worker process so that it never outlives the run.
+
+    The parent alone decides what an interrupt means (it stops the workers
+    itself), so a worker ignores Ctrl-C and takes a termination request at face
+    value; on Linux the kernel kills it when the parent dies, even by ``kill -9``.
+    """
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+    signal.signal(signal.SIGTERM, signal.SIG_DFL)
+    if sys.platform.startswith("linux"):
+        try:
+            ctypes.CDLL(None, use_errno=True).prctl(PR_SET_PDEATHSIG, signal.SIGKILL)
+        except (OSError, AttributeError):
+            pass
+    if os.getppid() != parent:  # the parent died before the line above took effect
+        os._exit(1)
+
+
 class Executor:
     """Base class: ``with executor: for i, result in executor.run(fn, chunks, arg): ...``."""
 
@@ -39,6 +64,10 @@ class Executor:
 
     def close(self) -> None:
         """Release the workers."""
+
+    def abort(self) -> None:
+        """Stop the workers now, dropping the chunks in flight (after an interrupt)."""
+        self.close()
 
     def run(self, fn: Callable, chunks: list, arg) -> Iterator[tuple[int, object]]:
         """Yield ``(index, fn(chunks[index], arg))`` (or the exception) as chunks finish."""
@@ -73,7 +102,8 @@ class LocalExecutor(Executor):
             return
         ctx = multiprocessing.get_context("fork")
         self._pool = ProcessPoolExecutor(max_workers=min(self.workers, len(chunks)),
-                                         mp_context=ctx)
+                                         mp_context=ctx, initializer=_worker_start,
+                                         initargs=(os.getpid(),))
         futures = {self._pool.submit(fn, chunk, arg): i for i, chunk in enumerate(chunks)}
         for future in as_completed(futures):
             i = futures.pop(future)
@@ -87,6 +117,17 @@ class LocalExecutor(Executor):
         if self._pool is not None:
             self._pool.shutdown(wait=True, cancel_futures=True)
             self._pool = None
+
+    def abort(self) -> None:  # noqa: D102 - see Executor.abort
+        pool, self._pool = self._pool, None
+        if pool is None:
+            return
+        processes = list((getattr(pool, "_processes", None) or {}).values())
+        for process in processes:
+            process.kill()
+        pool.shutdown(wait=False, cancel_futures=True)
+        for process in processes:
+            process.join(timeout=10)
 
 
 class DaskExecutor(Executor):

@@ -58,8 +58,9 @@ def plan_chunks(series: list[GrowthSeries], workers: int, engine: str,
 
 def pending_any(panel: dict[str, GrowthSeries], store: RunStore) -> bool:
     """Whether any series of ``panel`` is not finished in ``store``."""
-    done = store.finished()
-    return any(done.get(name) != s.fingerprint() for name, s in panel.items())
+    current = {name: s.fingerprint() for name, s in panel.items()}
+    done = store.finished(current)
+    return any(done.get(name) != fp for name, fp in current.items())
 
 
 def _compile_before_fork(series: GrowthSeries, settings: BatchSettings) -> None:
@@ -142,24 +143,32 @@ def run_batch(
     own = executor is None
     executor = executor or LocalExecutor()
     store = RunStore(out_dir, settings.to_record(), protect or [])
-    settings = _worker_settings(panel, settings, executor, store, save_posteriors)
-    current = {name: s.fingerprint() for name, s in panel.items()}
-    done = store.finished()
-    pending = [s for name, s in panel.items() if done.get(name) != current[name]]
-    skipped = len(panel) - len(pending)
-    chunks = plan_chunks(pending, executor.workers, settings.engine, chunk_size)
-    bar = _progress_bar(len(panel), skipped) if progress else None
     try:
-        results = executor.run(fit_chunk, chunks, settings)
-        n_ok, failed = _record_results(results, chunks, store, on_chunk, bar)
+        settings = _worker_settings(panel, settings, executor, store, save_posteriors)
+        current = {name: s.fingerprint() for name, s in panel.items()}
+        done = store.finished(current)
+        pending = [s for name, s in panel.items() if done.get(name) != current[name]]
+        skipped = len(panel) - len(pending)
+        if pending:  # no finished-looking file of an earlier run beside this run's new ones
+            store.clear_results([s.name for s in pending])
+        chunks = plan_chunks(pending, executor.workers, settings.engine, chunk_size)
+        bar = _progress_bar(len(panel), skipped) if progress else None
+        try:
+            results = executor.run(fit_chunk, chunks, settings)
+            n_ok, failed = _record_results(results, chunks, store, on_chunk, bar)
+        finally:
+            if bar is not None:
+                bar.close()
+            if own:
+                executor.close()
+        forecast, summary, failures = store.merge(current, order, read_failures + failed)
+    except BaseException:  # interrupted: the chunks in flight are lost, stop their workers
+        executor.abort()
+        raise
     finally:
-        if bar is not None:
-            bar.close()
-        if own:
-            executor.close()
-    forecast, summary, failures = store.merge(current, order, read_failures + failed)
+        store.release()
     return BatchResult(
-        out=Path(out_dir), forecast=forecast, summary=summary, failures=failures,
+        out=store.out, forecast=forecast, summary=summary, failures=failures,
         n_fitted=n_ok, n_skipped=skipped,
     )
 

@@ -13,7 +13,10 @@ spreadsheet formulas (:mod:`bayesgrowth.data.export`); the chunk files keep the
 names as they are, since merging matches them, and live in the hidden state folder.
 
 Every file is written to a temporary name in its own folder and renamed into
-place, so no file is ever half-written. A chunk counts as finished only once its
+place, so no file is ever half-written; temporary files of a run that was killed
+are removed by the next run (:mod:`bayesgrowth.data.leftovers`), and so are the
+tables of a chunk whose marker was never written. One run at a time writes to a
+folder (``.bayesgrowth-batch/lock`` holds its process id). A chunk counts as finished only once its
 ``done.json`` exists, and that is renamed into place last. A later run into the
 same folder with the same settings skips every series whose name and input
 fingerprint a finished chunk records as forecast; series that failed are tried
@@ -24,6 +27,7 @@ other settings is refused rather than mixing results.
 from __future__ import annotations
 
 import json
+import os
 import secrets
 from pathlib import Path
 
@@ -31,6 +35,7 @@ import pandas as pd
 
 from bayesgrowth.batch.work import SUMMARY_COLUMNS, SeriesOutcome
 from bayesgrowth.data.export import atomic_write, json_text, write_csv
+from bayesgrowth.data.leftovers import TMP_PREFIX, pid_alive, remove_abandoned
 from bayesgrowth.data.series import InputError
 
 __all__ = ["RunStore", "OUTPUTS", "STATE_DIR", "atomic_write"]
@@ -38,6 +43,7 @@ __all__ = ["RunStore", "OUTPUTS", "STATE_DIR", "atomic_write"]
 OUTPUTS = ("forecast.csv", "summary.csv", "failures.csv")
 STATE_DIR = ".bayesgrowth-batch"
 FLOAT_FORMAT = "%.6g"
+CHUNK_FILES = ("forecast.csv", "summary.csv", "failures.csv", "done.json")
 
 
 def _write_csv(frame: pd.DataFrame, path: Path, float_format: str | None = None) -> None:
@@ -116,10 +122,66 @@ class RunStore:
                     "resume, or choose another folder"
                 )
         self.parts.mkdir(parents=True, exist_ok=True)
+        self._lock = self.state / "lock"
+        self._take_lock()
+        self._remove_leftovers()
         if not manifest.exists():
             atomic_write(manifest, lambda tmp: tmp.write_text(json_text(record)))
         self._run = secrets.token_hex(4)
         self._count = 0
+
+    def _take_lock(self) -> None:
+        while True:
+            try:
+                fd = os.open(self._lock, os.O_CREAT | os.O_EXCL | os.O_WRONLY, 0o644)
+            except FileExistsError:
+                try:
+                    pid = int(self._lock.read_text().strip() or 0)
+                except (OSError, ValueError):
+                    pid = 0
+                if pid != os.getpid() and pid_alive(pid):
+                    raise InputError(
+                        f"--out {self.out}: another batch run (process {pid}) is writing "
+                        "there; wait for it to finish or choose another folder"
+                    ) from None
+                self._lock.unlink(missing_ok=True)  # left by a run that was killed
+                continue
+            with os.fdopen(fd, "w") as f:
+                f.write(str(os.getpid()))
+            return
+
+    def release(self) -> None:
+        """Let other runs write to the folder (the end of this run)."""
+        try:
+            if self._lock.read_text().strip() == str(os.getpid()):
+                self._lock.unlink()
+        except OSError:
+            pass
+
+    def _remove_leftovers(self) -> None:
+        """Temporary files of killed runs, and chunk tables whose marker never came."""
+        for folder in (self.out, self.state, self.parts, self.out / "posteriors"):
+            if folder.is_dir():
+                remove_abandoned(folder, TMP_PREFIX)
+        marked = {p.name[: -len(".done.json")] for p in self.parts.glob("*.done.json")}
+        for path in self.parts.glob("*.csv"):
+            if not path.name.startswith(".") and path.name.split(".", 1)[0] not in marked:
+                path.unlink(missing_ok=True)
+
+    def clear_results(self, pending: list[str]) -> None:
+        """Remove the merged results, and the posteriors of ``pending`` series, of earlier runs.
+
+        Called before a run that has work to do: until it merges its own results, the
+        folder holds no finished-looking file of an earlier run beside new ones.
+        """
+        from bayesgrowth.batch.work import posterior_file_name
+
+        for name in OUTPUTS:
+            (self.out / name).unlink(missing_ok=True)
+        folder = self.out / "posteriors"
+        if folder.is_dir():
+            for name in pending:
+                (folder / posterior_file_name(name)).unlink(missing_ok=True)
 
     def posterior_dir(self) -> Path:
         """The folder for per-series posterior files (created)."""
@@ -136,17 +198,35 @@ class RunStore:
                 continue  # an unreadable marker: that chunk is simply redone
         return found
 
-    def finished(self) -> dict[str, str]:
-        """Input fingerprints of the series forecast by earlier chunks, by name."""
+    def finished(self, current: dict[str, str] | None = None) -> dict[str, str]:
+        """Input fingerprints of the series forecast by earlier chunks, by name.
+
+        Parameters
+        ----------
+        current : dict of str to str, optional
+            Fingerprints of this run's input: a series forecast from this input by any
+            chunk maps to it, even when other chunks forecast it from an older input.
+        """
+        current = current or {}
         done: dict[str, str] = {}
         for _, names in self._markers():
-            done.update(names)
+            for name, fingerprint in names.items():
+                if name not in current or done.get(name) != current[name]:
+                    done[name] = fingerprint
         return done
 
     def write_chunk(self, outcomes: list[SeriesOutcome]) -> None:
         """Record a finished chunk: its tables first, then its marker (the commit point)."""
         self._count += 1
         chunk = f"{self._run}-{self._count:05d}"
+        try:
+            self._write_chunk(chunk, outcomes)
+        except BaseException:  # interrupted or failed half-way: none of the chunk stays
+            for suffix in CHUNK_FILES:
+                (self.parts / f"{chunk}.{suffix}").unlink(missing_ok=True)
+            raise
+
+    def _write_chunk(self, chunk: str, outcomes: list[SeriesOutcome]) -> None:
         forecasts = [o.forecast for o in outcomes if o.forecast is not None]
         summaries = [o.summary for o in outcomes if o.summary is not None]
         failures = [(o.name, o.failure) for o in outcomes if o.failure is not None]

@@ -2,8 +2,8 @@
 
 Exit codes: 0 every series has a forecast; 3 some series failed (listed in
 failures.csv, the others have forecasts); 2 bad input or usage (nothing written);
-1 an unexpected failure; 130 interrupted (finished chunks are kept; the same
-command resumes).
+1 an unexpected failure; 130 interrupted, 143 terminated (finished chunks are kept
+in a hidden folder, results of earlier runs are removed; the same command resumes).
 """
 
 from __future__ import annotations
@@ -31,6 +31,7 @@ from bayesgrowth.cli.recalibration import (
     panel_recalibration,
     recalibration_line,
 )
+from bayesgrowth.cli.signals import Terminated, exit_code
 
 __all__ = ["add_parser", "EXIT_SOME_FAILED"]
 
@@ -122,10 +123,11 @@ def run(args) -> int:
             protect=[args.file], chunk_size=args.chunk_size,
             save_posteriors=args.save_posteriors, progress=not args.quiet,
         )
-    except KeyboardInterrupt:
-        print(f"{PROG}: interrupted; finished series are kept in {args.out}: run the same "
-              "command again to resume", file=sys.stderr)
-        return 130
+    except KeyboardInterrupt as exc:
+        what = "terminated" if isinstance(exc, Terminated) else "interrupted"
+        print(f"{PROG}: {what}; no results written, finished series are kept in {args.out}: "
+              "run the same command again to resume", file=sys.stderr)
+        return exit_code(exc)
     finally:
         executor.close()
     return _report(args, result, order, settings)

@@ -2,7 +2,8 @@
 
 Exit codes: 0 done, 2 bad input or usage (one line on stderr, no output files),
 1 an unexpected failure, 4 outputs written but the sampling diagnostics failed
-(``--accept-warnings`` makes that 0), 3 (batch) some series failed, 130 interrupted.
+(``--accept-warnings`` makes that 0), 3 (batch) some series failed, 130 interrupted
+(Ctrl-C), 143 terminated (SIGTERM).
 """
 
 from __future__ import annotations
@@ -41,6 +42,7 @@ from bayesgrowth.cli.scenario import (
     scenario_summary,
     scenario_table,
 )
+from bayesgrowth.cli.signals import exit_code, handled_signals, stop_line
 from bayesgrowth.cli.text import add_unit_option, forecast_lines, outlook_lines, unit_from_args
 from bayesgrowth.data.export import NOT_AVAILABLE_KEY, json_ready, json_text, write_csv
 from bayesgrowth.data.series import GrowthSeries, InputError
@@ -214,18 +216,19 @@ def main(argv: list[str] | None = None) -> int:
     """Run the command line; returns the exit code."""
     parser = build_parser()
     try:
-        args = parser.parse_args(argv)
-        if args.command is None:
-            parser.print_help()
-            return 2
-        with library_warnings(debug=bool(os.environ.get("BAYESGROWTH_DEBUG"))):
-            return args.run(args)
+        with handled_signals():  # a termination request cleans up like Ctrl-C
+            args = parser.parse_args(argv)
+            if args.command is None:
+                parser.print_help()
+                return 2
+            with library_warnings(debug=bool(os.environ.get("BAYESGROWTH_DEBUG"))):
+                return args.run(args)
     except (UsageError, InputError) as exc:
         print(f"{PROG}: error: {exc}", file=sys.stderr)
         return 2
-    except KeyboardInterrupt:
-        print(f"{PROG}: interrupted; no output written", file=sys.stderr)
-        return 130
+    except KeyboardInterrupt as exc:
+        print(f"{PROG}: {stop_line(exc)}", file=sys.stderr)
+        return exit_code(exc)
     except Exception as exc:  # an unexpected failure: one line, traceback on request
         if os.environ.get("BAYESGROWTH_DEBUG"):
             raise

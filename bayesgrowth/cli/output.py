@@ -20,7 +20,9 @@ from collections.abc import Iterator
 from contextlib import contextmanager
 from pathlib import Path
 
+from bayesgrowth.cli.signals import deferred
 from bayesgrowth.data.export import atomic_write
+from bayesgrowth.data.leftovers import TMP_PREFIX, remove_abandoned, temp_prefix
 from bayesgrowth.data.series import InputError
 
 __all__ = ["MANIFEST", "add_force_option", "check_output", "staged_output"]
@@ -94,7 +96,9 @@ def _make_stage(out: Path) -> tuple[Path, bool]:
     created = not out.exists()
     try:
         out.mkdir(parents=False, exist_ok=True)
-        return Path(tempfile.mkdtemp(prefix=STAGE_PREFIX, dir=out)), created
+        for prefix in (STAGE_PREFIX, TMP_PREFIX):  # of runs killed outright
+            remove_abandoned(out, prefix)
+        return Path(tempfile.mkdtemp(prefix=temp_prefix(STAGE_PREFIX), dir=out)), created
     except FileNotFoundError:
         raise InputError(
             f"--out {out}: its parent folder {out.resolve().parent} does not exist; create it "
@@ -144,9 +148,15 @@ def staged_output(
         yield stage
         check_output(out, names, protect, force)  # nothing of the user's appeared meanwhile
         written = {n: _sha256(stage / n) for n in names if (stage / n).exists()}
-        for name in written:
-            os.replace(stage / name, out / name)
-        _write_manifest(out, {**_read_manifest(out), **written})
+        try:
+            with deferred():  # all files and their record, or none: an interrupt waits
+                for name in written:
+                    os.replace(stage / name, out / name)
+                _write_manifest(out, {**_read_manifest(out), **written})
+        except KeyboardInterrupt as exc:  # it came during the moves: the outputs are done
+            exc.outputs_complete = out
+            created = False
+            raise
     except BaseException:
         shutil.rmtree(stage, ignore_errors=True)
         if created and out.is_dir() and not any(out.iterdir()):

@@ -33,6 +33,8 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
+from bayesgrowth.data.leftovers import TMP_PREFIX, temp_prefix
+
 __all__ = [
     "FORMULA_TRIGGERS",
     "NOT_AVAILABLE_KEY",
@@ -218,7 +220,9 @@ def atomic_write(path: str | Path, write: Callable[[Path], None], *, suffix: str
     ('done', ['a.txt'])
     """
     path = Path(path)
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=suffix, dir=path.parent)
+    # named with this process's id, so that a later run removes it if this one is killed
+    fd, tmp = tempfile.mkstemp(prefix=temp_prefix(TMP_PREFIX), suffix=f".{path.name}{suffix}",
+                               dir=path.parent)
     os.close(fd)
     try:
         write(Path(tmp))

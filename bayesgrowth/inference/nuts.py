@@ -11,6 +11,7 @@ from bayesgrowth.config import DEFAULT_CHAINS, DEFAULT_DRAWS, DEFAULT_TUNE
 from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.inference.diagnostics import Diagnostics
 from bayesgrowth.inference.fit import Fit
+from bayesgrowth.inference.interrupt import check_complete, stoppable
 from bayesgrowth.models import exponential, general, linear
 from bayesgrowth.models.spec import ModelSpec
 from bayesgrowth.priors import ResolvedPriors
@@ -61,15 +62,17 @@ def sample_pymc(model, *, seed: int, draws: int, tune: int, chains: int, cores: 
     if not progressbar:
         logger.setLevel(logging.WARNING)  # quiet runs: no sampler chatter
     try:
-        with model, warnings.catch_warnings():
+        with model, warnings.catch_warnings(), stoppable():
             warnings.filterwarnings("ignore", "overflow encountered", RuntimeWarning)
-            return pm.sample(
+            idata = pm.sample(
                 draws=draws, tune=tune, chains=chains, cores=cores, random_seed=seed,
                 target_accept=target_accept, progressbar=progressbar,
                 compute_convergence_checks=False, mp_ctx="fork" if cores > 1 else None,
             )
     finally:
         logger.setLevel(level)
+    check_complete(idata, chains, draws)  # PyMC returns the draws so far when interrupted
+    return idata
 
 
 def fit_nuts(

@@ -21,6 +21,7 @@ from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.display import fmt_percent, html_summary, text_summary
 from bayesgrowth.inference.diagnostics import Diagnostics
 from bayesgrowth.inference.fit import Fit
+from bayesgrowth.inference.interrupt import check_complete, stoppable
 from bayesgrowth.inference.nuts import SHORT_SERIES, sample_pymc
 from bayesgrowth.models.hierarchical import ERRORS, GroupPrior, build_pymc_model, stack_panel
 from bayesgrowth.models.spec import ModelSpec
@@ -265,9 +266,12 @@ def _sample(model, sampler: str, *, seed, draws, tune, chains, cores, target_acc
         import nutpie
 
         compiled = nutpie.compile_pymc_model(model)
-        return nutpie.sample(
-            compiled, draws=draws, tune=tune, chains=chains, cores=cores, seed=seed,
-            target_accept=target_accept, save_warmup=False, progress_bar=progressbar,
-        )
+        with stoppable():  # nutpie returns the draws so far on Ctrl-C: stop instead
+            idata = nutpie.sample(
+                compiled, draws=draws, tune=tune, chains=chains, cores=cores, seed=seed,
+                target_accept=target_accept, save_warmup=False, progress_bar=progressbar,
+            )
+        check_complete(idata, chains, draws)
+        return idata
     return sample_pymc(model, seed=seed, draws=draws, tune=tune, chains=chains, cores=cores,
                        target_accept=target_accept, progressbar=progressbar)

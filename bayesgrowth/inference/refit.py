@@ -137,19 +137,22 @@ def sample_compiled(
     """
     import nutpie
 
+    from bayesgrowth.inference.interrupt import check_complete, stoppable
     from bayesgrowth.inference.nuts import diagnose
 
-    idata = nutpie.sample(
-        data,
-        draws=draws,
-        tune=tune,
-        chains=chains,
-        cores=cores,
-        seed=int(seed),
-        target_accept=target_accept,
-        save_warmup=False,
-        progress_bar=False,
-    )
+    with stoppable():  # nutpie returns the draws so far on Ctrl-C: stop instead
+        idata = nutpie.sample(
+            data,
+            draws=draws,
+            tune=tune,
+            chains=chains,
+            cores=cores,
+            seed=int(seed),
+            target_accept=target_accept,
+            save_warmup=False,
+            progress_bar=False,
+        )
+    check_complete(idata, chains, draws)
     post = idata.posterior
     posterior = {k: np.asarray(post[k].values, dtype=float) for k in names if k in post}
     divergences = int(idata.sample_stats["diverging"].sum())
