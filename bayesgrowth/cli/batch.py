@@ -101,6 +101,12 @@ def run(args) -> int:
     )
     for note in notes:
         say(args, f"note: {note}")
+    if panel:  # the longest series, in every worker at once
+        from bayesgrowth.batch.executors import available_cores
+        from bayesgrowth.cli.limits import check_run_size
+
+        check_run_size(args, max(s.n for s in panel.values()),
+                       parallel=min(len(panel), args.workers or available_cores()))
     priors = priors_from_args(args)
     options = model_options_from_args(args)
     checked_model_options(args, (args.engine,))

@@ -220,6 +220,9 @@ def read_input(args) -> GrowthSeries:
                              fiscal_start=getattr(args, "fiscal_start", None))
     for w in caught:
         say(args, f"note: {w.message}")
+    from bayesgrowth.cli.limits import check_run_size
+
+    check_run_size(args, series.n)  # before any work: the memory the options ask for
     return series
 
 

@@ -28,6 +28,7 @@ from bayesgrowth.cli.common import (
     say,
 )
 from bayesgrowth.cli.library_notes import library_warnings
+from bayesgrowth.cli.limits import check_run_size
 from bayesgrowth.cli.output import add_force_option, staged_output
 from bayesgrowth.cli.recalibration import (
     add_recalibrate_options,
@@ -208,8 +209,10 @@ def _run_demo(args) -> int:
     from bayesgrowth.data.demo import demo_path, load_demo
 
     args.file = demo_path()
+    series = load_demo()
+    check_run_size(args, series.n)
     say(args, f"demo: quarterly revenue of an invented company, from {args.file.name}")
-    return _run_forecast(args, load_demo())
+    return _run_forecast(args, series)
 
 
 def main(argv: list[str] | None = None) -> int:
