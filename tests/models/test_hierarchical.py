@@ -155,8 +155,12 @@ def _marginal_growth_prior(b, m, s, tau_scale):
     grid of tau (trapezoid rule on 4,001 points up to 10 tau_scale)."""
     tau = np.linspace(0.0, 10 * tau_scale, 4001)
     w = stats.halfnorm.pdf(tau, scale=tau_scale)
-    dens = stats.norm.pdf(b[:, None], loc=m, scale=np.sqrt(s**2 + tau[None, :] ** 2))
-    return np.trapezoid(dens * w[None, :], tau, axis=1)
+    scale = np.sqrt(s**2 + tau[None, :] ** 2)
+    # in chunks of 2,000 values: 100,000 draws at once would take 3 GB per temporary
+    return np.concatenate([
+        np.trapezoid(stats.norm.pdf(chunk[:, None], loc=m, scale=scale) * w[None, :], tau,
+                     axis=1)
+        for chunk in np.array_split(b, max(1, b.size // 2000))])
 
 
 @pytest.mark.slow
