@@ -220,18 +220,29 @@ def main(argv: list[str] | None = None) -> int:
     parser = build_parser()
     try:
         with handled_signals():  # a termination request cleans up like Ctrl-C
-            args = parser.parse_args(argv)
+            try:
+                args = parser.parse_args(argv)
+            finally:  # --help and --version print, then exit: a closed pipe shows here
+                sys.stdout.flush()
             if args.command is None:
                 parser.print_help()
                 return 2
             with library_warnings(debug=bool(os.environ.get("BAYESGROWTH_DEBUG"))):
-                return args.run(args)
+                code = args.run(args)
+            sys.stdout.flush()
+            return code
     except (UsageError, InputError) as exc:
         print(f"{PROG}: error: {exc}", file=sys.stderr)
         return 2
     except KeyboardInterrupt as exc:
         print(f"{PROG}: {stop_line(exc)}", file=sys.stderr)
         return exit_code(exc)
+    except BrokenPipeError:
+        # the reader of the printed output went away (`... | head`): stop quietly, as a
+        # program killed by SIGPIPE would (128 + 13); unfinished outputs were cleaned up
+        # on the way out, and nothing more is printed to the closed pipe
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        return 141
     except Exception as exc:  # an unexpected failure: one line, traceback on request
         if os.environ.get("BAYESGROWTH_DEBUG"):
             raise
