@@ -29,6 +29,9 @@ REFERENCE = REPO.parent / "shared" / "reference"
 MEMORY_LIMIT = 4 * 1024**3
 _STARTED = time.monotonic()
 _WORKERS: dict[str, dict] = {}
+#: Tests that raised their process's peak memory by more than this are named at the end.
+PEAK_STEP = 256 * 2**20
+_PEAK_TESTS: list[tuple[int, int, str]] = []  # (raise, new peak, test id)
 
 
 @pytest.fixture
@@ -90,7 +93,19 @@ def _summary(own: dict) -> tuple[list[str], list[str]]:
                  if fig[kind] > MEMORY_LIMIT]
     lines.append(f"total time {own['seconds']:.0f} s ({own['seconds'] / 60:.1f} min); "
                  f"memory limit {MEMORY_LIMIT / gib:.0f} GiB per process")
+    for step, peak, nodeid in sorted(_PEAK_TESTS, reverse=True)[:8]:
+        lines.append(f"  raised its process's peak by {step / gib:.2f} to {peak / gib:.2f} GiB: "
+                     f"{nodeid}")
     return lines, over
+
+
+@pytest.hookimpl(hookwrapper=True)
+def pytest_runtest_protocol(item, nextitem):
+    before = _measure()["self"]
+    yield
+    after = _measure()["self"]  # a high-water mark: only a test that pushed it up shows here
+    if after - before > PEAK_STEP:
+        _PEAK_TESTS.append((after - before, after, item.nodeid))
 
 
 def pytest_sessionfinish(session, exitstatus):
@@ -98,6 +113,7 @@ def pytest_sessionfinish(session, exitstatus):
     workeroutput = getattr(session.config, "workeroutput", None)
     if workeroutput is not None:  # an xdist worker: hand the figures to the controller
         workeroutput["bayesgrowth_resources"] = figures
+        workeroutput["bayesgrowth_peak_tests"] = _PEAK_TESTS
         return
     lines, over = _summary(figures)
     session.config.stash[_RESOURCES] = (lines, over)
@@ -110,6 +126,8 @@ def pytest_testnodedown(node, error):
     figures = getattr(node, "workeroutput", {}).get("bayesgrowth_resources")
     if figures is not None:
         _WORKERS[node.gateway.id] = figures
+    _PEAK_TESTS.extend(tuple(t) for t in
+                       getattr(node, "workeroutput", {}).get("bayesgrowth_peak_tests", []))
 
 
 def pytest_terminal_summary(terminalreporter, exitstatus, config):
