@@ -243,7 +243,7 @@ def gram_filter(y, season, grid_index, rho, sigma_level, sigma_growth, sigma, lo
 
 
 def _integrate_kernel(gram, logf, n, mu0, sd0, loglik, beta_mean, beta_cov):  # pragma: no cover
-    """Per node, what :func:`bayesgrowth.inference.statespace._integrate` computes in numpy.
+    """Per node, what :func:`bayesgrowth.inference.statespace_nodes.integrate` computes in numpy.
 
     A Cholesky factor ``L`` of ``M = I + S A S`` gives ``log|M|``, ``z = M^-1 S b``
     and ``M^-1 = L^-T L^-1``.
@@ -306,7 +306,7 @@ _INTEGRATE = None
 def integrate_compiled(gram, logf, n, mu0, var0):
     """Marginal log likelihood and normal posterior of ``beta`` per node, compiled (numba).
 
-    Equals :func:`bayesgrowth.inference.statespace._integrate` (checked in the tests).
+    Equals :func:`bayesgrowth.inference.statespace_nodes.integrate` (checked in the tests).
     """
     global _INTEGRATE
     if _INTEGRATE is None:

@@ -29,216 +29,19 @@ data weight them by their exact evidence (Bayesian model averaging).
 from __future__ import annotations
 
 import math
-import sys
-from dataclasses import dataclass, field
 
 import numpy as np
 
-from bayesgrowth.inference.kalman import augmented_filter, gram_filter, integrate_compiled
-from bayesgrowth.inference.theta import ThetaDim, rho_of, theta_dims
+from bayesgrowth.inference import statespace_grid as grid
+from bayesgrowth.inference.statespace_nodes import Context, design, growth_loading, innovations
 from bayesgrowth.models import linear
 from bayesgrowth.seeds import stream
 
 __all__ = ["StateSpacePosterior", "state_space_posterior"]
 
-_COARSE = {False: 6, True: 5}  # points per dimension of the locating grid (3-D, 4-D)
-_FINE = {False: 8, True: 6}  # and of the weighting grid
-_KEEP = 15.0  # coarse-grid cells within e^-15 of the best bound the fine box
 _PRUNE = 1e-10  # nodes below this weight are dropped after normalising
-_MASS = 1e-4  # a fine-grid cell row with less marginal mass than this leaves the box
 _SETTLE = 0.02  # quantiles settled when they move less than 2% of the 10-90 width
 _PROBE = np.array([0.1, 0.5, 0.9])
-
-
-@dataclass
-class _Context:
-    """What the filter needs about the series, fixed across nodes."""
-
-    idx: np.ndarray  # calendar positions of the observations, from 0
-    y: np.ndarray  # log values
-    season: np.ndarray | None  # seasonal design rows at the observations
-    mu0: np.ndarray
-    var0: np.ndarray
-    long_run: bool  # the design has a long-run growth column
-    n_seasons: int
-
-
-def _w(rho: np.ndarray, j: np.ndarray) -> np.ndarray:
-    """``sum_{i=1..j} rho^i``, the growth mean's loading on the level (``j`` at ``rho = 1``)."""
-    r = rho[:, None]
-    with np.errstate(divide="ignore", invalid="ignore"):
-        w = r * (1 - r ** j[None, :]) / (1 - r)
-    return np.where(r == 1.0, j[None, :].astype(float), w)
-
-
-def _design(ctx: _Context, rho: np.ndarray, j: np.ndarray, season) -> np.ndarray:
-    """Mean-path design ``(G, len(j), p)``: level, starting growth, long run, seasons."""
-    jf = np.asarray(j, dtype=float)
-    w = _w(rho, jf)
-    cols = [np.ones_like(w), w]
-    if ctx.long_run:
-        cols.append(jf[None, :] - w)
-    x = np.stack(cols, axis=-1)
-    if season is not None:
-        x = np.concatenate([x, np.broadcast_to(season, (rho.size, *season.shape))], axis=-1)
-    return x
-
-
-def _integrate(gram, logf, n: int, ctx: _Context):
-    """Marginal log likelihood and the normal posterior of ``beta`` per node.
-
-    ``gram`` is ``V' diag(1/F) V`` of the filtered columns ``[y, X]``. With ``r =
-    v_y - V_X mu0``, ``A = V_X' F^-1 V_X``, ``b = V_X' F^-1 r`` and ``S =
-    diag(sd0)``, the log values are ``N(X mu0, L (F + V_X S S V_X') L')`` with
-    ``|L| = 1``, so by the matrix determinant lemma and Woodbury's identity
-    ``log p = -1/2 [n log 2 pi + sum log F + log|M| + r' F^-1 r - (S b)' M^-1 (S b)]``
-    with ``M = I + S A S``, and ``beta | y ~ N(mu0 + S M^-1 S b, S M^-1 S)``.
-    Zero prior sds (fixed coefficients) are handled without inverting ``S``.
-    """
-    mu0 = ctx.mu0
-    a = gram[:, 1:, 1:]
-    xy = gram[:, 1:, 0]
-    amu = a @ mu0
-    rr = gram[:, 0, 0] - 2 * xy @ mu0 + amu @ mu0
-    b = xy - amu
-    s = np.sqrt(ctx.var0)
-    m = np.eye(s.size) + s[:, None] * a * s[None, :]
-    chol = np.linalg.cholesky(m)
-    sb = s * b
-    z = np.linalg.solve(m, sb[..., None])[..., 0]
-    logdet = 2 * np.log(np.diagonal(chol, axis1=1, axis2=2)).sum(axis=1)
-    quad = rr - (sb * z).sum(axis=1)
-    loglik = -0.5 * (n * math.log(2 * math.pi) + logf + logdet + quad)
-    minv = np.linalg.inv(m)
-    return loglik, mu0 + s * z, s[:, None] * minv * s[None, :]
-
-
-#: Below this many node-observations the filter runs in numpy: compiling (or loading the
-#: compiled kernel, about a second with numba's import) costs more than it saves. Once a
-#: process has filtered ``_WARM`` node-observations in all (a backtest, a batch) or has
-#: loaded numba anyway, the compiled kernel serves every size.
-_COMPILE_ABOVE = 150_000
-_WARM = 2_000_000
-_filtered = 0
-_ROUTE = "auto"  # or "numpy", "compiled"
-
-
-def _use_compiled(work: int) -> bool:
-    """Whether to filter ``work`` node-observations with the compiled kernel."""
-    global _filtered
-    if _ROUTE != "auto":
-        return _ROUTE == "compiled"
-    _filtered += work
-    return work > _COMPILE_ABOVE or _filtered > _WARM or "numba" in sys.modules
-
-
-def _evaluate(ctx: _Context, params: dict) -> dict:
-    """Filter every node and integrate ``beta`` out."""
-    if not _use_compiled(params["sigma"].size * ctx.y.size):
-        innov, var = _innovations(ctx, params, keep_state=True)
-        v, f, state, state_cov = innov
-        gram = np.einsum("gni,gnj->gij", v / f[..., None], v)
-        logf = np.log(f).sum(axis=1)
-        loglik, bm, bc = _integrate(gram, logf, ctx.y.size, ctx)
-    else:
-        gram, logf, state, state_cov = gram_filter(
-            ctx.y, ctx.season, ctx.idx, params["rho"], params["sigma_level"],
-            params["sigma_growth"], params["sigma"], ctx.long_run)
-        loglik, bm, bc = integrate_compiled(gram, logf, ctx.y.size, ctx.mu0, ctx.var0)
-    return {"loglik": loglik, "beta_mean": bm, "beta_cov": bc, "state": state,
-            "state_cov": state_cov}
-
-
-def _innovations(ctx: _Context, params: dict, keep_state: bool = False):
-    """Innovations and variances of ``[y, X]`` per node (the plain numpy filter).
-
-    With ``keep_state`` the first item is ``(innovations, variances, state, state_cov)``.
-    """
-    x = _design(ctx, params["rho"], ctx.idx, ctx.season)
-    data = np.concatenate([np.broadcast_to(ctx.y, (x.shape[0], ctx.y.size))[..., None], x],
-                          axis=-1)
-    res = augmented_filter(data, ctx.idx, params["rho"], params["sigma_level"],
-                           params["sigma_growth"], params["sigma"])
-    if keep_state:
-        return (res.innovations, res.variance, res.state, res.state_cov), None
-    return res.innovations, res.variance
-
-
-@dataclass
-class _Branch:
-    """One family of nodes: random-walk growth or fading growth."""
-
-    dims: list[ThetaDim]
-    fades: bool
-    prior_mass: float
-    box: list[tuple[float, float]] = field(default_factory=list)
-    log: list[bool] = field(default_factory=list)
-
-    def __post_init__(self) -> None:
-        self.log = [True] * len(self.dims)
-
-    def nodes(self, k: int, box=None) -> tuple[np.ndarray, float]:
-        """Cell midpoints ``(G, D)`` of a ``k``-per-dimension grid, and the cell volume."""
-        box = box or [d.span(lg) for d, lg in zip(self.dims, self.log, strict=True)]
-        axes = [lo + (np.arange(k) + 0.5) * (hi - lo) / k for lo, hi in box]
-        mesh = np.meshgrid(*axes, indexing="ij")
-        vol = float(np.prod([(hi - lo) / k for lo, hi in box]))
-        return np.stack([m.ravel() for m in mesh], axis=1), vol
-
-    def params(self, u: np.ndarray) -> dict:
-        """Natural-scale parameters of the nodes (and their log prior)."""
-        out = {"sigma_level": np.zeros(u.shape[0])}
-        log_prior = np.zeros(u.shape[0])
-        for i, (d, lg) in enumerate(zip(self.dims, self.log, strict=True)):
-            out[d.name] = d.value(u[:, i], lg)
-            log_prior += d.log_prior(u[:, i], lg)
-        out["rho"] = rho_of(out["half_life"]) if self.fades else np.ones(u.shape[0])
-        if not self.fades:
-            out["half_life"] = np.full(u.shape[0], np.inf)
-        out["log_prior"] = log_prior
-        return out
-
-    def to_fine(self) -> None:
-        """Switch the standard deviations' box from ``log x`` to ``x``."""
-        span = [d.span() for d in self.dims]
-        for i, d in enumerate(self.dims):
-            if d.linear_fine:
-                lo, hi = self.box[i]
-                self.box[i] = (0.0 if lo <= span[i][0] else math.exp(lo), math.exp(hi))
-                self.log[i] = False
-
-
-def _locate(branch: _Branch, ctx: _Context, k: int) -> list[tuple[float, float]]:
-    """The box of ``u`` holding the posterior mass, from a coarse grid over the prior range."""
-    u, _ = branch.nodes(k)
-    p = branch.params(u)
-    lp = _evaluate(ctx, p)["loglik"] + p["log_prior"]
-    lp = lp.reshape((k,) * len(branch.dims))
-    best = lp.max()
-    box = []
-    for d, dim in enumerate(branch.dims):
-        lo, hi = dim.span()
-        step = (hi - lo) / k
-        profile = lp.max(axis=tuple(i for i in range(lp.ndim) if i != d))
-        kept = np.flatnonzero(profile >= best - _KEEP)
-        box.append((max(lo, lo + (kept[0] - 0.5) * step),
-                    min(hi, lo + (kept[-1] + 1.5) * step)))
-    return box
-
-
-def _shrink(branch: _Branch, weight: np.ndarray, k: int) -> list[tuple[float, float]]:
-    """A tighter box from a fine grid's weights: the cells whose marginal mass counts."""
-    w = weight.reshape((k,) * len(branch.dims))
-    total = w.sum()
-    box = []
-    for d, (lo, hi) in enumerate(branch.box):
-        step = (hi - lo) / k
-        marginal = w.sum(axis=tuple(i for i in range(w.ndim) if i != d)) / total
-        kept = np.flatnonzero(marginal >= _MASS)
-        span_lo, span_hi = branch.dims[d].span(branch.log[d])
-        box.append((max(span_lo, lo + (kept[0] - 1.0) * step),
-                    min(span_hi, lo + (kept[-1] + 2.0) * step)))
-    return box
 
 
 class StateSpacePosterior:
@@ -315,8 +118,9 @@ class StateSpacePosterior:
         jf = np.asarray(t_future, dtype=int) - self.t_ref
         steps = jf - int(ctx.idx[-1])
         rho = p["rho"]
-        xf = _design(ctx, rho, jf, self._season_rows(t_future))
-        z = np.stack([np.ones((rho.size, steps.size)), _w(rho, steps.astype(float))], axis=-1)
+        xf = design(ctx, rho, jf, self._season_rows(t_future))
+        z = np.stack([np.ones((rho.size, steps.size)),
+                      growth_loading(rho, steps.astype(float))], axis=-1)
         ay, ax = state[:, :, 0], state[:, :, 1:]
         g = xf - z @ ax
         mean = (g @ beta_mean[..., None])[..., 0] + (z @ ay[..., None])[..., 0]
@@ -379,7 +183,7 @@ class StateSpacePosterior:
         for h in range(steps.size):
             grow = rho * grow + p["sigma_growth"] * rng.standard_normal(nodes.size)
             dev = dev + grow + p["sigma_level"] * rng.standard_normal(nodes.size)
-            x = _design(ctx, rho, jf[h:h + 1], None if season is None else season[h:h + 1])
+            x = design(ctx, rho, jf[h:h + 1], None if season is None else season[h:h + 1])
             level[:, h] = np.einsum("sp,sp->s", x[:, 0, :], beta) + dev
         value = level + p["sigma"][:, None] * rng.standard_normal(level.shape)
         return level, value
@@ -436,7 +240,7 @@ class StateSpacePosterior:
         error decomposition: the errors are independent given the draw).
         """
         used, inverse = np.unique(nodes, return_inverse=True)
-        innov, var = _innovations(self._ctx, {k: v[used] for k, v in self.params.items()})
+        innov, var = innovations(self._ctx, {k: v[used] for k, v in self.params.items()})
         v = innov[inverse]
         return v[..., 0] - np.einsum("snp,sp->sn", v[..., 1:], beta), var[inverse]
 
@@ -457,43 +261,12 @@ class StateSpacePosterior:
         return out
 
 
-def _context(spec, priors, series) -> _Context:
+def _context(spec, priors, series) -> Context:
     t = np.asarray(series.t, dtype=int)
     season, m = linear.season_rows(spec, series.axis, t)
     mu0, var0 = linear.linear_prior(spec, priors, m)
-    return _Context(idx=t - int(priors.t_ref), y=series.log_values, season=season, mu0=mu0,
+    return Context(idx=t - int(priors.t_ref), y=series.log_values, season=season, mu0=mu0,
                     var0=var0, long_run=linear.uses_long_run(spec), n_seasons=m)
-
-
-def _branches(spec, priors) -> list[_Branch]:
-    if spec.drift == "adaptive":
-        return [_Branch(theta_dims(priors, False), False, 0.5),
-                _Branch(theta_dims(priors, True), True, 0.5)]
-    fades = spec.drift == "mean-reverting"
-    return [_Branch(theta_dims(priors, fades), fades, 1.0)]
-
-
-def _on_grid(ctx, branches, k_of) -> tuple[dict, np.ndarray, dict, float, list]:
-    """Evaluate every branch on its grid; node weights, branch weights, log evidence."""
-    parts, logw, log_ev, within = [], [], {}, []
-    for b in branches:
-        u, vol = b.nodes(k_of(b), b.box)
-        p = b.params(u)
-        ev = _evaluate(ctx, p)
-        lw = ev["loglik"] + p["log_prior"] + math.log(vol) + math.log(b.prior_mass)
-        parts.append({**{k: v for k, v in p.items() if k != "log_prior"}, **ev})
-        logw.append(lw)
-        top = lw.max()
-        within.append(np.exp(lw - top))
-        log_ev["fading" if b.fades else "drifting"] = top + math.log(within[-1].sum())
-    nodes = {k: np.concatenate([p[k] for p in parts]) for k in parts[0]}
-    lw = np.concatenate(logw)
-    top = lw.max()
-    w = np.exp(lw - top)
-    total = top + math.log(w.sum())
-    branch_w = {k: math.exp(v - total) for k, v in log_ev.items()}
-    # the likelihood is of log values; the evidence of the values subtracts sum(log y)
-    return nodes, w / w.sum(), branch_w, total - float(ctx.y.sum()), within
 
 
 def _probe_quantiles(post: StateSpacePosterior, t_probe: np.ndarray) -> np.ndarray:
@@ -523,18 +296,18 @@ def state_space_posterior(series, priors, spec, *, max_refinements: int = 3):
     StateSpacePosterior
     """
     ctx = _context(spec, priors, series)
-    branches = _branches(spec, priors)
+    branches = grid.branches(spec, priors)
     for b in branches:
-        b.box = _locate(b, ctx, _COARSE[len(b.dims) >= 4])
+        b.box = grid.locate(b, ctx, grid.COARSE[len(b.dims) >= 4])
         b.to_fine()
     ppy = series.axis.periods_per_year or 4
     t_probe = series.t_last + np.arange(1, int(max(4, 2 * round(ppy))) + 1)  # consecutive
     previous, extra = None, 0
     for _ in range(max_refinements + 1):
         def k_of(b, extra=extra):
-            return _FINE[len(b.dims) >= 4] + extra
+            return grid.FINE[len(b.dims) >= 4] + extra
 
-        nodes, w, branch_w, log_ev, within = _on_grid(ctx, branches, k_of)
+        nodes, w, branch_w, log_ev, within = grid.on_grid(ctx, branches, k_of)
         post = StateSpacePosterior(ctx, spec, series.axis, priors.t_ref, nodes, w, branch_w,
                                    log_ev, k_of(branches[-1]))
         q = _probe_quantiles(post, t_probe)
@@ -543,18 +316,13 @@ def state_space_posterior(series, priors, spec, *, max_refinements: int = 3):
             if np.all(np.abs(q - previous) <= _SETTLE * width):
                 break
         previous = q
-        boxes = [_shrink(b, wb, k_of(b)) for b, wb in zip(branches, within, strict=True)]
-        moved = any(_moved(b.box, nb) for b, nb in zip(branches, boxes, strict=True))
+        boxes = [grid.shrink(b, wb, k_of(b)) for b, wb in zip(branches, within, strict=True)]
+        moved = any(grid.moved(b.box, nb) for b, nb in zip(branches, boxes, strict=True))
         for b, nb in zip(branches, boxes, strict=True):
             b.box = nb
         if not moved:
             extra += 2
     return post
-
-
-def _moved(old, new) -> bool:
-    """Whether a box shrank by more than a quarter in any dimension."""
-    return any((nh - nl) < 0.75 * (oh - ol) for (ol, oh), (nl, nh) in zip(old, new, strict=True))
 
 
 def fit_state_space(series, priors, spec, *, seed: int, draws: int = 1000, chains: int = 4):

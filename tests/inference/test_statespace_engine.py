@@ -8,6 +8,7 @@ from scipy import stats
 
 import bayesgrowth as bg
 from bayesgrowth.inference import statespace as ss
+from bayesgrowth.inference import statespace_nodes as nodes
 from bayesgrowth.inference.mixture import mixture_cdf, mixture_quantiles
 from bayesgrowth.inference.run import fit_series
 from bayesgrowth.inference.theta import _Gamma2, _HalfNormal, _LogNormal
@@ -114,9 +115,9 @@ def test_compiled_and_numpy_routes_give_the_same_posterior(monkeypatch):
     s = bg.load_demo()
     pr = Priors().resolve(s)
     spec = ModelSpec(model="local-trend", drift="mean-reverting", seasonal=True)
-    monkeypatch.setattr(ss, "_ROUTE", "numpy")
+    monkeypatch.setattr(nodes, "_ROUTE", "numpy")
     plain = ss.state_space_posterior(s, pr, spec)
-    monkeypatch.setattr(ss, "_ROUTE", "compiled")
+    monkeypatch.setattr(nodes, "_ROUTE", "compiled")
     compiled = ss.state_space_posterior(s, pr, spec)
     assert compiled.log_evidence == pytest.approx(plain.log_evidence, abs=1e-9)
     np.testing.assert_allclose(compiled.weight, plain.weight, rtol=1e-8, atol=1e-14)
@@ -142,10 +143,10 @@ def test_the_compiled_filter_takes_over_once_a_process_has_done_enough_work(monk
     import sys
 
     monkeypatch.delitem(sys.modules, "numba", raising=False)
-    monkeypatch.setattr(ss, "_filtered", 0)
-    small = ss._COMPILE_ABOVE // 2
-    assert not ss._use_compiled(small)  # one small fit: plain numpy, no compile or import
-    assert ss._use_compiled(ss._COMPILE_ABOVE + 1)  # a large grid: compiled
-    while ss._filtered <= ss._WARM:
-        ss._use_compiled(small)
-    assert ss._use_compiled(small)  # a backtest or batch: compiled from then on
+    monkeypatch.setattr(nodes, "_filtered", 0)
+    small = nodes._COMPILE_ABOVE // 2
+    assert not nodes.use_compiled(small)  # one small fit: plain numpy, no compile or import
+    assert nodes.use_compiled(nodes._COMPILE_ABOVE + 1)  # a large grid: compiled
+    while nodes._filtered <= nodes._WARM:
+        nodes.use_compiled(small)
+    assert nodes.use_compiled(small)  # a backtest or batch: compiled from then on

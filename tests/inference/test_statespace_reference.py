@@ -12,6 +12,7 @@ import pytest
 sm = pytest.importorskip("statsmodels.api")
 
 from bayesgrowth.inference import statespace as ss  # noqa: E402
+from bayesgrowth.inference import statespace_nodes as nodes  # noqa: E402
 from bayesgrowth.models import linear  # noqa: E402
 
 
@@ -52,7 +53,7 @@ def _context(n=24, seasons=4, long_run=True, missing=(7, 15), rng=None):
     mu0 = [6.0, 0.03] + ([0.01] if long_run else []) + [0.0] * (seasons - 1 if seasons else 0)
     var0 = [0.4**2, 0.2**2] + ([0.02**2] if long_run else []) + [0.1**2] * (
         seasons - 1 if seasons else 0)
-    ctx = ss._Context(idx=j, y=y, season=season, mu0=np.array(mu0), var0=np.array(var0),
+    ctx = nodes.Context(idx=j, y=y, season=season, mu0=np.array(mu0), var0=np.array(var0),
                       long_run=long_run, n_seasons=seasons)
     return ctx, j, y
 
@@ -68,11 +69,11 @@ THETAS = [  # rho, sigma_level, sigma_growth, sigma
 def test_marginal_likelihood_matches_statsmodels(seasons, long_run):
     ctx, j, y = _context(n=30, seasons=seasons, long_run=long_run)
     rho, sl, sg, sig = (np.array(c) for c in zip(*THETAS, strict=True))
-    ev = ss._evaluate(ctx, {"rho": rho, "sigma_level": sl, "sigma_growth": sg, "sigma": sig})
+    ev = nodes.evaluate(ctx, {"rho": rho, "sigma_level": sl, "sigma_growth": sg, "sigma": sig})
     for i, theta in enumerate(THETAS):
         full = np.full(j[-1] + 1, np.nan)
         full[j] = y
-        ctx_full = ss._Context(idx=j, y=y, season=None if not seasons else
+        ctx_full = nodes.Context(idx=j, y=y, season=None if not seasons else
                                linear.season_basis(seasons)[np.arange(j[-1] + 1) % seasons],
                                mu0=ctx.mu0, var0=ctx.var0, long_run=long_run,
                                n_seasons=seasons)
@@ -86,10 +87,10 @@ def test_coefficients_and_latest_state_match_smoother_and_filter():
     ctx, j, y = _context(n=28, seasons=4, long_run=True)
     theta = THETAS[0]
     rho, sl, sg, sig = (np.array([c]) for c in theta)
-    ev = ss._evaluate(ctx, {"rho": rho, "sigma_level": sl, "sigma_growth": sg, "sigma": sig})
+    ev = nodes.evaluate(ctx, {"rho": rho, "sigma_level": sl, "sigma_growth": sg, "sigma": sig})
     full = np.full(j[-1] + 1, np.nan)
     full[j] = y
-    ctx_full = ss._Context(idx=j, y=y, season=linear.season_basis(4)[np.arange(j[-1] + 1) % 4],
+    ctx_full = nodes.Context(idx=j, y=y, season=linear.season_basis(4)[np.arange(j[-1] + 1) % 4],
                            mu0=ctx.mu0, var0=ctx.var0, long_run=True, n_seasons=4)
     res = _full_model(full, ctx_full, *theta).ssm.smooth()
     # the initial state is the coefficient vector: its smoothed moments are the posterior's
@@ -109,11 +110,11 @@ def test_forecast_moments_match_statsmodels():
     full = np.full(j[-1] + 1 + h, np.nan)
     full[j] = y
     season_all = linear.season_basis(4)[np.arange(full.size) % 4]
-    ctx_full = ss._Context(idx=j, y=y, season=season_all, mu0=ctx.mu0, var0=ctx.var0,
+    ctx_full = nodes.Context(idx=j, y=y, season=season_all, mu0=ctx.mu0, var0=ctx.var0,
                            long_run=True, n_seasons=4)
     ref = _full_model(full, ctx_full, *theta).ssm.filter()
     rho, sl, sg, sig = (np.array([c]) for c in theta)
-    ev = ss._evaluate(ctx, {"rho": rho, "sigma_level": sl, "sigma_growth": sg, "sigma": sig})
+    ev = nodes.evaluate(ctx, {"rho": rho, "sigma_level": sl, "sigma_growth": sg, "sigma": sig})
     post = ss.StateSpacePosterior(
         ctx, None, None, 0,
         {**ev, "rho": rho, "sigma_level": sl, "sigma_growth": sg, "sigma": sig,
@@ -136,7 +137,7 @@ def test_compiled_statistics_equal_the_plain_filter():
     ctx, j, y = _context(n=30, seasons=4, long_run=True)
     rho, sl, sg, sig = (np.array(c) for c in zip(*THETAS, strict=True))
     gram, logf, state, state_cov = gram_filter(y, ctx.season, j, rho, sl, sg, sig, True)
-    x = ss._design(ctx, rho, j, ctx.season)
+    x = nodes.design(ctx, rho, j, ctx.season)
     data = np.concatenate([np.broadcast_to(y, (3, y.size))[..., None], x], axis=-1)
     res = augmented_filter(data, j, rho, sl, sg, sig)
     v, f = res.innovations, res.variance
@@ -155,7 +156,7 @@ def test_compiled_statistics_equal_the_plain_filter():
         compiled = integrate_compiled(gram, logf, y.size, ctx.mu0, ctx.var0)
         # rounding only: with sigma = 0.001 the statistics reach 1/sigma^2 = 1e6 and the
         # quadratic form cancels about six digits, so agreement to ~1e-16 * 1e6 * 10
-        for mine, plain in zip(compiled, ss._integrate(gram, logf, y.size, ctx), strict=True):
+        for mine, plain in zip(compiled, nodes.integrate(gram, logf, y.size, ctx), strict=True):
             np.testing.assert_allclose(mine, plain, rtol=1e-8, atol=1e-9)
 
 
@@ -165,7 +166,7 @@ def test_one_step_forecasts_over_the_history_match_statsmodels():
     ctx, j, y = _context(n=24, seasons=4, long_run=True, missing=())
     theta = THETAS[0]
     rho, sl, sg, sig = (np.array([c]) for c in theta)
-    ev = ss._evaluate(ctx, {"rho": rho, "sigma_level": sl, "sigma_growth": sg, "sigma": sig})
+    ev = nodes.evaluate(ctx, {"rho": rho, "sigma_level": sl, "sigma_growth": sg, "sigma": sig})
     post = ss.StateSpacePosterior(
         ctx, None, None, 0,
         {**ev, "rho": rho, "sigma_level": sl, "sigma_growth": sg, "sigma": sig,
