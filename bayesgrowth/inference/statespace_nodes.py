@@ -108,8 +108,8 @@ def use_compiled(work: int) -> bool:
 def evaluate(ctx: Context, params: dict) -> dict:
     """Filter every node and integrate ``beta`` out."""
     if not use_compiled(params["sigma"].size * ctx.y.size):
-        innov, var = innovations(ctx, params, keep_state=True)
-        v, f, state, state_cov = innov
+        res = _filter(ctx, params)
+        v, f, state, state_cov = res.innovations, res.variance, res.state, res.state_cov
         gram = np.einsum("gni,gnj->gij", v / f[..., None], v)
         logf = np.log(f).sum(axis=1)
         loglik, bm, bc = integrate(gram, logf, ctx.y.size, ctx)
@@ -122,16 +122,16 @@ def evaluate(ctx: Context, params: dict) -> dict:
             "state_cov": state_cov}
 
 
-def innovations(ctx: Context, params: dict, keep_state: bool = False):
-    """Innovations and variances of ``[y, X]`` per node (the plain numpy filter).
-
-    With ``keep_state`` the first item is ``(innovations, variances, state, state_cov)``.
-    """
+def _filter(ctx: Context, params: dict):
+    """The plain numpy filter of ``[y, X]`` per node (a :class:`FilterResult`)."""
     x = design(ctx, params["rho"], ctx.idx, ctx.season)
     data = np.concatenate([np.broadcast_to(ctx.y, (x.shape[0], ctx.y.size))[..., None], x],
                           axis=-1)
-    res = augmented_filter(data, ctx.idx, params["rho"], params["sigma_level"],
-                           params["sigma_growth"], params["sigma"])
-    if keep_state:
-        return (res.innovations, res.variance, res.state, res.state_cov), None
+    return augmented_filter(data, ctx.idx, params["rho"], params["sigma_level"],
+                            params["sigma_growth"], params["sigma"])
+
+
+def innovations(ctx: Context, params: dict):
+    """Innovations ``(G, n, 1 + p)`` and their variances ``(G, n)`` of ``[y, X]`` per node."""
+    res = _filter(ctx, params)
     return res.innovations, res.variance
