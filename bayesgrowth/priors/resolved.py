@@ -47,7 +47,7 @@ class ResolvedPriors:
     phi_beta: float = 1.0
     level_shock_scale: float = 0.0
     growth_drift_scale: float = 0.01
-    seasonal_scale: float = math.log1p(0.10)
+    seasonal_scale: float = math.log1p(0.30)
     nu_alpha: float = NU_ALPHA
     nu_beta: float = NU_BETA
 

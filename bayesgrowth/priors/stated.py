@@ -267,9 +267,18 @@ class LocalTrendPrior:
 
 @dataclass(frozen=True)
 class SeasonalPrior:
-    """Belief about the size of seasonal factors: typical deviation of a season, percent."""
+    """Belief about the size of seasonal factors: typical deviation of a season, percent.
 
-    typical_pct: float = 10.0
+    The default, 30% (a normal prior with sd ``log 1.3`` on each log factor), is wide
+    enough not to shrink strong real seasons: in the training parts of the growing
+    seasonal series of the M1 and Tourism collections (docs/benchmark.md) the typical
+    (root-mean-square) log factor of a classical decomposition had a median of 0.02 to
+    0.26 and a 90th percentile of 0.12 to 0.54 by collection and frequency. An earlier
+    default of 10% shrank Tourism's seasons visibly (sMAPE 22% instead of 18.6% on 50
+    Tourism monthly series).
+    """
+
+    typical_pct: float = 30.0
 
     def __post_init__(self) -> None:
         _check(
