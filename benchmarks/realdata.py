@@ -114,7 +114,7 @@ def _parse(argv: Sequence[str] | None) -> argparse.Namespace:
                    "(an earlier run on the same series), so slow references need not rerun")
     args = p.parse_args(argv)
     args.methods = names(args.methods, list(METHODS), "--methods")
-    return check_data_options(args)
+    return check_data_options(args, _FILES)
 
 
 def _notes(args: argparse.Namespace, records: Sequence[SeriesRecord], wall: float) -> list[str]:
@@ -131,7 +131,8 @@ def _notes(args: argparse.Namespace, records: Sequence[SeriesRecord], wall: floa
     ]
 
 
-def _write(out: Path, scores: pd.DataFrame, summary: pd.DataFrame, notes: list[str]) -> None:
+def _write(out: Path, scores: pd.DataFrame, summary: pd.DataFrame, notes: list[str],
+           force: bool = False) -> None:
     import matplotlib
 
     matplotlib.use("Agg")
@@ -140,7 +141,7 @@ def _write(out: Path, scores: pd.DataFrame, summary: pd.DataFrame, notes: list[s
 
     from bayesgrowth.cli.output import staged_output
 
-    with staged_output(out, _FILES, protect=[]) as stage:
+    with staged_output(out, _FILES, protect=[], force=force) as stage:
         scores.to_csv(stage / "scores_by_series.csv", index=False, float_format="%.6g")
         summary.to_csv(stage / "summary.csv", index=False, float_format="%.6g")
         text = markdown_summary(summary, "Forecasts of growing M1 and Tourism series", notes)
@@ -167,7 +168,7 @@ def _run(args: argparse.Namespace) -> int:
         methods += [m for m in dict.fromkeys(earlier["method"]) if m not in methods]
         scores = pd.concat([scores, earlier], ignore_index=True)
     summary = summarise(scores, n_boot=args.bootstrap, seed=args.seed, methods=methods)
-    _write(Path(args.out), scores, summary, _notes(args, records, wall))
+    _write(Path(args.out), scores, summary, _notes(args, records, wall), args.force)
     shown = summary[summary["group"] == "pooled"]
     cols = ["method", "series", "failed", "inside_80", "inside_95", "msis", "scaled_crps",
             "smape", "mase", "seconds_mean", "cpu_seconds_mean"]

@@ -48,10 +48,18 @@ def add_data_options(p: argparse.ArgumentParser, out: str) -> None:
     p.add_argument("--seed", type=int, default=0, help="seed of the subsample and bootstrap")
     p.add_argument("--bootstrap", type=int, default=2000, help="bootstrap resamples")
     p.add_argument("--out", default=out)
+    p.add_argument("--force", action="store_true",
+                   help="replace result files in --out that this script did not write "
+                   "(an earlier run's files copied there, say)")
 
 
-def check_data_options(args: argparse.Namespace) -> argparse.Namespace:
-    """Check the options of :func:`add_data_options`; raise :class:`UsageError` on a bad one."""
+def check_data_options(args: argparse.Namespace,
+                       files: Sequence[str] = ()) -> argparse.Namespace:
+    """Check the options of :func:`add_data_options`; raise :class:`UsageError` on a bad one.
+
+    ``files`` are the result files the run will write in ``--out``: checked here, before
+    any work, so that a folder that cannot take them is refused at once.
+    """
     args.collections = names(args.collections, list(COLLECTIONS), "--collections")
     args.frequencies = names(args.frequencies, list(FREQUENCIES), "--frequencies")
     for option, value in (("--jobs", args.jobs), ("--max-per-group", args.max_per_group),
@@ -63,6 +71,13 @@ def check_data_options(args: argparse.Namespace) -> argparse.Namespace:
         raise UsageError(f"--out {out}: exists and is not a folder; name a folder")
     if not out.resolve().parent.is_dir():
         raise UsageError(f"--out {out}: parent folder {out.resolve().parent} does not exist")
+    from bayesgrowth.cli.output import check_output
+    from bayesgrowth.data.series import InputError
+
+    try:
+        check_output(out, list(files), [], args.force)
+    except InputError as exc:
+        raise UsageError(str(exc)) from None
     return args
 
 
@@ -124,10 +139,12 @@ def run_tasks(func: Callable, tasks: list, jobs: int, label: str, *, reports: in
 
 
 def guarded(name: str, parse: Callable, run: Callable, argv: Sequence[str] | None) -> int:
-    """Parse ``argv`` and run; a bad option is one line on stderr and exit code 2."""
+    """Parse ``argv`` and run; a bad option or output folder is one line on stderr, exit 2."""
+    from bayesgrowth.data.series import InputError
+
     try:
         args = parse(argv)
-    except UsageError as exc:
+        return run(args)
+    except (UsageError, InputError) as exc:  # InputError: the folder changed during the run
         print(f"{name}: {exc}", file=sys.stderr)
         return 2
-    return run(args)

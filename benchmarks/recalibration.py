@@ -185,7 +185,7 @@ def _parse(argv: Sequence[str] | None) -> argparse.Namespace:
     runs.add_data_options(p, out="docs/recalibration")
     args = p.parse_args(argv)
     args.models = runs.names(args.models, list(MODELS), "--models")
-    return runs.check_data_options(args)
+    return runs.check_data_options(args, _FILES)
 
 
 def _notes(args, records, maps: pd.DataFrame, minutes: float) -> list[str]:
@@ -201,12 +201,12 @@ def _notes(args, records, maps: pd.DataFrame, minutes: float) -> list[str]:
     ]
 
 
-def _write(out: Path, scores, maps, summary, notes, models) -> None:
+def _write(out: Path, scores, maps, summary, notes, models, force: bool = False) -> None:
     from realdata_report import markdown_summary
 
     from bayesgrowth.cli.output import staged_output
 
-    with staged_output(out, _FILES, protect=[]) as stage:
+    with staged_output(out, _FILES, protect=[], force=force) as stage:
         scores.to_csv(stage / "scores_by_series.csv", index=False, float_format="%.6g")
         maps.to_csv(stage / "maps.csv", index=False, float_format="%.6g")
         summary.to_csv(stage / "summary.csv", index=False, float_format="%.6g")
@@ -234,7 +234,7 @@ def _run_all(args: argparse.Namespace) -> int:
     methods = [VARIANTS[v].format(m) for m in args.models for v in VARIANTS]
     summary = summarise(scores, n_boot=args.bootstrap, seed=args.seed, methods=methods)
     notes = _notes(args, records, maps, minutes)
-    _write(Path(args.out), scores, maps, summary, notes, args.models)
+    _write(Path(args.out), scores, maps, summary, notes, args.models, args.force)
     failed = sum(1 for b in backtests if b["error"])
     print(compact_table(summary, args.models))
     print(f"{len(records)} series, {failed} backtests failed; wrote {', '.join(_FILES)} to "

