@@ -63,8 +63,9 @@ def test_exact_bands_agree_with_the_predictive_draws(demo_fit):
         se = math.sqrt(level / 100 * (1 - level / 100) / n)
         assert np.all(np.abs(inside - level / 100) < 4 * se)
     p_exact = fc.prob_exceeds(float(tab["median"].iloc[-1])).iloc[-1]
-    # exact up to the mixture's compaction, which drops at most 1e-8 of its mass
-    assert p_exact == pytest.approx(0.5, abs=2e-8)
+    # exact up to the mixture's compaction, which drops at most 1e-5 of its mass before the
+    # quantiles are found (mixture._TAIL_MASS), so the probability can differ by that much
+    assert p_exact == pytest.approx(0.5, abs=1e-5)
 
 
 def test_adaptive_weights_are_the_normalised_evidences():
