@@ -29,17 +29,17 @@ def example_page(*, with_backtest: bool = True, with_models: bool = True) -> str
     ``with_backtest=False`` and ``with_models=False`` leave those sections' work out (for a
     quick check of the rest against the shipped page).
     """
-    from bayesgrowth.cli.common import checked_model_options, priors_from_args
+    from bayesgrowth.cli.common import checked_model_options, priors_from_args, read_input
     from bayesgrowth.cli.main import build_parser
     from bayesgrowth.cli.report_models import average_from_args
     from bayesgrowth.cli.text import unit_from_args
-    from bayesgrowth.data.demo import demo_path, load_demo
+    from bayesgrowth.data.demo import demo_path
     from bayesgrowth.report import build_report
 
     argv = shlex.split(COMMAND)[1:]
     argv[1] = str(demo_path())
     args = build_parser().parse_args([*argv, "--quiet"])
-    series = load_demo()
+    series = read_input(args)  # as the command reads it: named after the file
     priors = priors_from_args(args)
     spec_options = checked_model_options(args, (args.engine,))
     return build_report(
