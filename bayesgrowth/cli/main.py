@@ -9,13 +9,13 @@ Exit codes: 0 done, 2 bad input or usage (one line on stderr, no output files),
 from __future__ import annotations
 
 import argparse
+import importlib
 import math
 import os
 import sys
 from pathlib import Path
 
 from bayesgrowth._version import __version__
-from bayesgrowth.cli import backtest, batch, compare, models, pool, priors, report
 from bayesgrowth.cli.acceptance import diagnostics_exit
 from bayesgrowth.cli.common import (
     PROG,
@@ -29,7 +29,7 @@ from bayesgrowth.cli.common import (
 )
 from bayesgrowth.cli.library_notes import library_warnings
 from bayesgrowth.cli.limits import check_run_size
-from bayesgrowth.cli.output import add_force_option, staged_output
+from bayesgrowth.cli.output import add_force_option, earlier_outputs, staged_output
 from bayesgrowth.cli.recalibration import (
     add_recalibrate_options,
     check_min_train,
@@ -50,9 +50,36 @@ from bayesgrowth.data.series import GrowthSeries, InputError
 
 __all__ = ["main", "build_parser"]
 
+#: Every file ``forecast`` may write into ``--out``, in the order it lists them.
+OUTPUTS = ("forecast.csv", "summary.json", "fan_chart.png", "posterior.nc", "scenario.csv")
 
-def build_parser() -> argparse.ArgumentParser:
-    """The argument parser of the ``bayesgrowth`` command."""
+
+#: The subcommands in the order ``--help`` lists them, each with the module and function
+#: that declare its options (imported only when needed: declaring the options of some
+#: commands reads the model registry or the backtest methods).
+COMMANDS = {
+    "forecast": (__name__, "_add_forecast_parser"),
+    "demo": (__name__, "_add_demo_parser"),
+    "compare": ("bayesgrowth.cli.compare", "add_parser"),
+    "backtest": ("bayesgrowth.cli.backtest", "add_parser"),
+    "report": ("bayesgrowth.cli.report", "add_parser"),
+    "batch": ("bayesgrowth.cli.batch", "add_parser"),
+    "models": ("bayesgrowth.cli.models", "add_parser"),
+    "priors": ("bayesgrowth.cli.priors", "add_parsers"),  # priors and sensitivity
+    "sensitivity": ("bayesgrowth.cli.priors", "add_parsers"),
+    "pool": ("bayesgrowth.cli.pool", "add_parser"),
+}
+
+
+def build_parser(command: str | None = None) -> argparse.ArgumentParser:
+    """The argument parser of the ``bayesgrowth`` command.
+
+    Parameters
+    ----------
+    command : str, optional
+        Declare only this subcommand (the one a command line names first), so that a
+        run does not pay for the options of the others; by default all of them.
+    """
     parser = Parser(
         prog=PROG,
         description="Bayesian forecasts of business growth with credible bands. "
@@ -60,16 +87,11 @@ def build_parser() -> argparse.ArgumentParser:
     )
     parser.add_argument("--version", action="version", version=f"{PROG} {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=Parser)
-
-    _add_forecast_parser(sub)
-    _add_demo_parser(sub)
-    compare.add_parser(sub)
-    backtest.add_parser(sub)
-    report.add_parser(sub)
-    batch.add_parser(sub)
-    models.add_parser(sub)
-    priors.add_parsers(sub)
-    pool.add_parser(sub)
+    declared = set()
+    for name, home in COMMANDS.items():
+        if (command is None or name == command) and home not in declared:
+            getattr(importlib.import_module(home[0]), home[1])(sub)
+            declared.add(home)
     return parser
 
 
@@ -78,18 +100,19 @@ def _add_forecast_parser(sub) -> None:
     fc = sub.add_parser(
         "forecast",
         help="fit a growth model and forecast with credible bands",
-        description="Fit a growth model to FILE and write forecast.csv, summary.json, "
-        "fan_chart.png and posterior.nc. The default model is a damped local trend on the log "
-        "scale (level and growth rate both move; growth fades towards a long-run rate), "
-        "computed exactly: on 1,905 real growing series (M1 and Tourism competitions) its 80% "
-        "and 95% bands held 83% and 95% of outcomes (docs/benchmark.md). Use --model to "
-        "choose another.",
+        description="Fit a growth model to FILE and write forecast.csv, summary.json and "
+        "fan_chart.png (and posterior.nc with the nuts engine or --save-posterior). The "
+        "default model is a damped local trend on the log scale (level and growth rate both "
+        "move; growth fades towards a long-run rate), computed exactly: on 1,905 real growing "
+        "series (M1 and Tourism competitions) its 80% and 95% bands held 83% and 95% of "
+        "outcomes (docs/benchmark.md). Use --model to choose another.",
     )
     add_input(fc)
     add_model_options(fc)
     add_unit_option(fc)
     fc.add_argument("--out", type=Path, required=True, help="output folder")
     add_force_option(fc)
+    _add_posterior_option(fc)
     fc.add_argument(
         "--target",
         type=float,
@@ -124,11 +147,41 @@ def _add_demo_parser(sub) -> None:
         help="output folder [bayesgrowth-demo]",
     )
     add_force_option(demo)
+    _add_posterior_option(demo)
     demo.add_argument("--target", type=float, default=None, help=argparse.SUPPRESS)
     demo.add_argument("--target-probability", type=float, default=0.5, help=argparse.SUPPRESS)
     add_recalibrate_options(demo)
     add_scenario_options(demo)
     demo.set_defaults(run=_run_demo)
+
+
+def _add_posterior_option(p: argparse.ArgumentParser) -> None:
+    """``--save-posterior``: posterior.nc also from the exact engine."""
+    p.add_argument(
+        "--save-posterior",
+        action="store_true",
+        help="also write posterior.nc (NetCDF in the layout ArviZ reads: posterior, "
+        "predictive, log likelihood, observed data). The exact engine computes its bands "
+        "without draws, so the file then holds draws taken from its exact posterior; the nuts "
+        "engine always writes it, its draws being the posterior",
+    )
+
+
+def _output_names(args, scenario) -> list[str]:
+    """The files this ``forecast`` run writes, in the order of :data:`OUTPUTS`."""
+    names = ["forecast.csv", "summary.json", "fan_chart.png"]
+    if args.engine == "nuts" or getattr(args, "save_posterior", False):
+        names.append("posterior.nc")
+    return names + ([] if scenario is None else ["scenario.csv"])
+
+
+def _wrote_line(names: list[str], out: Path, removed: list[str], kept: list[str]) -> str:
+    """What the run wrote, and what it did with files of an earlier run it did not write."""
+    notes = [f"removed {', '.join(removed)} of an earlier run"] if removed else []
+    if kept:
+        notes.append(f"{', '.join(kept)} there: of an earlier run and changed since, left as "
+                     "it is")
+    return f"wrote {', '.join(names)} to {out}" + (f" ({'; '.join(notes)})" if notes else "")
 
 
 def _run_forecast(args, series: GrowthSeries | None = None) -> int:
@@ -143,10 +196,10 @@ def _run_forecast(args, series: GrowthSeries | None = None) -> int:
         raise UsageError(f"--target-probability {args.target_probability}: must be between 0 and 1")
     min_train = check_min_train(args, series.n)
     scenario = scenario_from_args(args, series.future_labels(args.horizon))
-    names = ["forecast.csv", "summary.json", "fan_chart.png", "posterior.nc"]
-    names += [] if scenario is None else ["scenario.csv"]
+    names = _output_names(args, scenario)
+    earlier = earlier_outputs(args.out, [n for n in OUTPUTS if n not in names])
     protect = [args.file] if getattr(args, "file", None) else []
-    with staged_output(args.out, names, protect, force=args.force) as stage:
+    with staged_output(args.out, names, protect, force=args.force, retire=earlier[0]) as stage:
         fit = fit_from_args(args, series)
         fc = forecast(fit, args.horizon, levels=args.levels)
         misfit = misfit_lines(fc)  # the model's own bands, before any recalibration
@@ -164,7 +217,8 @@ def _run_forecast(args, series: GrowthSeries | None = None) -> int:
         (stage / "summary.json").write_text(json_text(summary))
         _save_fan(fc, stage / "fan_chart.png", unit=unit_from_args(args), target=args.target,
                   scenario=scen)
-        fit.to_netcdf(stage / "posterior.nc", fc.predictive_groups())
+        if "posterior.nc" in names:
+            fit.to_netcdf(stage / "posterior.nc", fc.predictive_groups())
     for line in forecast_lines(fc, summary):
         print(line)
     for line in outlook_lines(fc, summary):  # time to target, band sources
@@ -183,7 +237,7 @@ def _run_forecast(args, series: GrowthSeries | None = None) -> int:
         print(f"caution: {len(missing)} number(s) of the summary do not exist (first "
               f"{missing[0]['field']}: {missing[0]['reason']}); summary.json holds null for "
               f"them and lists them under {NOT_AVAILABLE_KEY}")
-    print(f"wrote {', '.join(names)} to {args.out}")
+    print(_wrote_line(names, args.out, *earlier))
     return diagnostics_exit(args, fit.diagnostics.problems, args.out)
 
 
@@ -217,7 +271,8 @@ def _run_demo(args) -> int:
 
 def main(argv: list[str] | None = None) -> int:
     """Run the command line; returns the exit code."""
-    parser = build_parser()
+    first = (sys.argv[1:] if argv is None else argv)[:1]
+    parser = build_parser(first[0] if first and first[0] in COMMANDS else None)
     try:
         with handled_signals():  # a termination request cleans up like Ctrl-C
             try:

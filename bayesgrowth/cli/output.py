@@ -6,6 +6,12 @@ keeps a small manifest, :data:`MANIFEST`, with the SHA-256 of every file the too
 wrote there. A run replaces a file only if the manifest says the tool wrote it
 and it has not changed since; any other file of the same name is left alone and
 the run is refused before any computation (``--force`` replaces it).
+
+A run that writes fewer files than an earlier one into the same folder (no
+``posterior.nc`` or ``scenario.csv`` this time) removes the earlier run's files of
+those names when the manifest records them unchanged, so that no file of an
+earlier run sits beside this run's as if it were one of them; a file changed
+since is the user's and stays.
 """
 
 from __future__ import annotations
@@ -16,7 +22,7 @@ import json
 import os
 import shutil
 import tempfile
-from collections.abc import Iterator
+from collections.abc import Iterator, Sequence
 from contextlib import contextmanager
 from pathlib import Path
 
@@ -25,7 +31,7 @@ from bayesgrowth.data.export import atomic_write
 from bayesgrowth.data.leftovers import TMP_PREFIX, remove_abandoned, temp_prefix
 from bayesgrowth.data.series import InputError
 
-__all__ = ["MANIFEST", "add_force_option", "check_output", "staged_output"]
+__all__ = ["MANIFEST", "add_force_option", "check_output", "earlier_outputs", "staged_output"]
 
 #: The manifest of the files the tool wrote into an output folder.
 MANIFEST = ".bayesgrowth-manifest.json"
@@ -61,6 +67,27 @@ def _read_manifest(out: Path) -> dict[str, str]:
 def _write_manifest(out: Path, files: dict[str, str]) -> None:
     record = {"written_by": "bayesgrowth", "files": dict(sorted(files.items()))}
     atomic_write(out / MANIFEST, lambda tmp: tmp.write_text(json.dumps(record, indent=2) + "\n"))
+
+
+def earlier_outputs(out_dir: str | Path, names: list[str]) -> tuple[list[str], list[str]]:
+    """Files of ``names`` in ``out_dir`` that bayesgrowth wrote: unchanged ones, changed ones.
+
+    A file the manifest does not record is in neither list (it is the user's).
+    """
+    out = Path(out_dir)
+    own = _read_manifest(out) if out.is_dir() else {}
+    found = [n for n in names if n in own and (out / n).is_file()]
+    unchanged = [n for n in found if own[n] == _sha256(out / n)]
+    return unchanged, [n for n in found if n not in unchanged]
+
+
+def _retire(out: Path, names: Sequence[str], files: dict[str, str]) -> None:
+    """Remove the files of ``names`` still as bayesgrowth wrote them, and their records."""
+    for name in names:
+        path = out / name
+        if name in files and path.is_file() and files[name] == _sha256(path):
+            path.unlink()
+            del files[name]
 
 
 def check_output(out_dir: str | Path, names: list[str], protect: list[Path],
@@ -113,7 +140,8 @@ def _make_stage(out: Path) -> tuple[Path, bool]:
 
 @contextmanager
 def staged_output(
-    out_dir: str | Path, names: list[str], protect: list[Path], *, force: bool = False
+    out_dir: str | Path, names: list[str], protect: list[Path], *, force: bool = False,
+    retire: Sequence[str] = (),
 ) -> Iterator[Path]:
     """Stage files inside ``out_dir`` and move them into place only on success.
 
@@ -129,6 +157,10 @@ def staged_output(
         Files that must never be overwritten (the user's input).
     force : bool
         Replace existing files of those names even when the tool did not write them.
+    retire : list of str
+        Names of files an earlier run may have written that this run does not: removed
+        with the moves if the manifest records them unchanged (see
+        :func:`earlier_outputs`), else left alone.
 
     Yields
     ------
@@ -152,7 +184,9 @@ def staged_output(
             with deferred():  # all files and their record, or none: an interrupt waits
                 for name in written:
                     os.replace(stage / name, out / name)
-                _write_manifest(out, {**_read_manifest(out), **written})
+                files = _read_manifest(out)
+                _retire(out, [n for n in retire if n not in written], files)
+                _write_manifest(out, {**files, **written})
         except KeyboardInterrupt as exc:  # it came during the moves: the outputs are done
             exc.outputs_complete = out
             created = False

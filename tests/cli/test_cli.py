@@ -31,7 +31,7 @@ def test_forecast_exact_follows_the_contract(tmp_path, good_csv, capsys):
                "exact", "--target", "200", "--quiet"])
     assert rc == 0
     assert sorted(p.name for p in out.iterdir()) == [
-        MANIFEST, "fan_chart.png", "forecast.csv", "posterior.nc", "summary.json"]
+        MANIFEST, "fan_chart.png", "forecast.csv", "summary.json"]  # posterior.nc on request
     fc = pd.read_csv(out / "forecast.csv")
     assert list(fc.columns[:4]) == ["period", "step", "mean", "median"]
     for level in (50, 80, 95):
@@ -174,6 +174,7 @@ def test_forecast_nuts_end_to_end(tmp_path, good_csv):
     summary = json.loads((out / "summary.json").read_text())
     assert summary["engine"] == "nuts"
     assert summary["diagnostics"]["ok"] is True
+    assert (out / "posterior.nc").exists()  # always from nuts: its draws are the posterior
     again = tmp_path / "nuts2"
     assert _run(["forecast", str(good_csv), "-H", "3", "--out", str(again), "--quiet",
                  *nuts]) == 0

@@ -12,7 +12,7 @@ from bayesgrowth.cli import main
 from bayesgrowth.cli.output import MANIFEST
 
 QUARTERS = "period,value\n2023Q1,100\n2023Q2,110\n2023Q3,121\n2023Q4,133\n"
-OUTPUTS = ["fan_chart.png", "forecast.csv", "posterior.nc", "summary.json"]
+OUTPUTS = ["fan_chart.png", "forecast.csv", "summary.json"]  # posterior.nc on request
 
 
 @pytest.fixture
@@ -35,6 +35,53 @@ def test_own_outputs_are_replaced_and_recorded(tmp_path, src, run_cli):
     assert sorted(p.name for p in out.iterdir()) == sorted([MANIFEST, *OUTPUTS])
     recorded = json.loads((out / MANIFEST).read_text())["files"]
     assert sorted(recorded) == OUTPUTS
+
+
+def _wrote(capsys) -> str:
+    return capsys.readouterr().out.strip().splitlines()[-1]
+
+
+def test_an_earlier_runs_posterior_goes_when_this_run_writes_none(tmp_path, src, capsys):
+    out = tmp_path / "out"
+    assert main(_argv(src, out, "--save-posterior")) == 0
+    assert _wrote(capsys) == (f"wrote forecast.csv, summary.json, fan_chart.png, posterior.nc "
+                              f"to {out}")
+    assert "posterior.nc" in json.loads((out / MANIFEST).read_text())["files"]
+    assert main(_argv(src, out)) == 0  # the exact engine's default: no posterior.nc
+    assert _wrote(capsys) == (f"wrote forecast.csv, summary.json, fan_chart.png to {out} "
+                              "(removed posterior.nc of an earlier run)")
+    assert sorted(p.name for p in out.iterdir()) == sorted([MANIFEST, *OUTPUTS])
+    assert sorted(json.loads((out / MANIFEST).read_text())["files"]) == OUTPUTS
+
+
+def test_an_earlier_runs_scenario_goes_too(tmp_path, src, capsys):
+    out = tmp_path / "out"
+    assert main(_argv(src, out, "--scenario-growth", "0.5")) == 0
+    assert (out / "scenario.csv").exists()
+    assert main(_argv(src, out)) == 0
+    assert _wrote(capsys).endswith("(removed scenario.csv of an earlier run)")
+    assert not (out / "scenario.csv").exists()
+
+
+def test_an_earlier_posterior_changed_since_is_kept(tmp_path, src, capsys, snapshot):
+    out = tmp_path / "out"
+    assert main(_argv(src, out, "--save-posterior")) == 0
+    with (out / "posterior.nc").open("ab") as f:
+        f.write(b"edited")
+    kept = snapshot(out)["posterior.nc"]
+    assert main(_argv(src, out)) == 0
+    assert _wrote(capsys).endswith("(posterior.nc there: of an earlier run and changed since, "
+                                   "left as it is)")
+    assert snapshot(out)["posterior.nc"] == kept
+
+
+def test_a_users_own_posterior_is_left_alone(tmp_path, src, capsys, snapshot):
+    out = tmp_path / "out"
+    out.mkdir()
+    (out / "posterior.nc").write_text("mine\n")
+    assert main(_argv(src, out)) == 0  # not an output of this run: no refusal, no removal
+    assert _wrote(capsys) == f"wrote forecast.csv, summary.json, fan_chart.png to {out}"
+    assert (out / "posterior.nc").read_text() == "mine\n"
 
 
 @pytest.mark.parametrize("edited", ["forecast.csv", "summary.json"])
