@@ -7,19 +7,35 @@ engines, diagnostics) → ``forecast`` (posterior predictive bands) → ``leasts
 ``plots``, ``report`` and ``cli``. PyMC is imported only when the NUTS engine runs.
 """
 
-from bayesgrowth._version import __version__
-from bayesgrowth.backtest import BacktestResult, backtest
-from bayesgrowth.config import DEFAULT_LEVELS
-from bayesgrowth.data import GrowthSeries, InputError, load_demo, read_series
-from bayesgrowth.forecast import CAUTION, Forecast, forecast
-from bayesgrowth.inference import Diagnostics, Fit, SamplingWarning, fit_series
-from bayesgrowth.model import GrowthModel
-from bayesgrowth.priors import GrowthPrior, InitialValuePrior, NoisePrior, Priors
+import importlib
+import sys
+import types
 
-#: Where the heavier public names live; imported on first use (PEP 562), so that a
-#: command pays only for the layers it runs (no sampler, no cluster client, no model
-#: comparison on the exact forecast path).
+from bayesgrowth._version import __version__
+from bayesgrowth.config import DEFAULT_LEVELS
+
+#: Where each public name lives; imported on first use (PEP 562), so that a command
+#: pays only for the layers it runs: ``bayesgrowth --help`` imports no NumPy, and the
+#: exact forecast no sampler, no backtest or scoring, no model comparison.
 _HOMES = {
+    "BacktestResult": "bayesgrowth.backtest",
+    "backtest": "bayesgrowth.backtest",
+    "GrowthSeries": "bayesgrowth.data",
+    "InputError": "bayesgrowth.data",
+    "load_demo": "bayesgrowth.data",
+    "read_series": "bayesgrowth.data",
+    "CAUTION": "bayesgrowth.forecast",
+    "Forecast": "bayesgrowth.forecast",
+    "forecast": "bayesgrowth.forecast",
+    "Diagnostics": "bayesgrowth.inference",
+    "Fit": "bayesgrowth.inference",
+    "SamplingWarning": "bayesgrowth.inference",
+    "fit_series": "bayesgrowth.inference",
+    "GrowthModel": "bayesgrowth.model",
+    "GrowthPrior": "bayesgrowth.priors",
+    "InitialValuePrior": "bayesgrowth.priors",
+    "NoisePrior": "bayesgrowth.priors",
+    "Priors": "bayesgrowth.priors",
     "BatchSettings": "bayesgrowth.batch",
     "run_batch": "bayesgrowth.batch",
     "read_panel": "bayesgrowth.data.panel",
@@ -39,6 +55,10 @@ _HOMES = {
     "Parameter": "bayesgrowth.models.registry",
     "register_model": "bayesgrowth.models.registry",
 }
+
+#: Public functions named like the subpackage they live in: the name stays the function
+#: when the subpackage is imported (which would otherwise bind the name to it).
+_SHADOWED = ("backtest", "forecast")
 
 __all__ = [
     "BacktestResult",
@@ -85,9 +105,10 @@ __all__ = [
 def __getattr__(name: str):
     home = _HOMES.get(name)
     if home is None:
-        raise AttributeError(f"module 'bayesgrowth' has no attribute {name!r}")
-    import importlib
-
+        try:  # a subpackage or module, as ``bayesgrowth.data`` after an import of it
+            return importlib.import_module(f"{__name__}.{name}")
+        except ModuleNotFoundError:
+            raise AttributeError(f"module 'bayesgrowth' has no attribute {name!r}") from None
     value = getattr(importlib.import_module(home), name)
     globals()[name] = value
     return value
@@ -95,3 +116,15 @@ def __getattr__(name: str):
 
 def __dir__() -> list[str]:
     return sorted(__all__)
+
+
+class _Front(types.ModuleType):
+    """The package module: importing ``bayesgrowth.backtest`` keeps ``backtest`` the function."""
+
+    def __setattr__(self, name: str, value) -> None:
+        if name in _SHADOWED and isinstance(value, types.ModuleType):
+            return  # the import system binding the subpackage; the public name is the function
+        super().__setattr__(name, value)
+
+
+sys.modules[__name__].__class__ = _Front

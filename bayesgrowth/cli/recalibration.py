@@ -59,12 +59,12 @@ def check_min_train(args, n: int, name: str | None = None) -> int | None:
         If ``--min-train`` is given without ``--recalibrate``, is below 3, or leaves
         fewer than two points to backtest on.
     """
-    from bayesgrowth.backtest.recalibrate import MIN_ORIGINS, default_min_train
-
     if not getattr(args, "recalibrate", False):
         if getattr(args, "min_train", None) is not None:
             raise UsageError("--min-train: only with --recalibrate")
         return None
+    from bayesgrowth.backtest.recalibrate import MIN_ORIGINS, default_min_train
+
     min_train = default_min_train(n) if args.min_train is None else int(args.min_train)
     if min_train < MIN_OBSERVATIONS:
         raise UsageError(f"--min-train {min_train}: must be at least {MIN_OBSERVATIONS}")

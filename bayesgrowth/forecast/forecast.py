@@ -20,7 +20,6 @@ from bayesgrowth.forecast.bands import (
 from bayesgrowth.forecast.summaries import forecast_html, forecast_summary, forecast_text
 from bayesgrowth.inference.fit import Fit
 from bayesgrowth.inference.mixture import mixture_cdf, mixture_mean_exp, mixture_quantiles
-from bayesgrowth.inference.pooled import PooledFit
 from bayesgrowth.models import exponential, general
 from bayesgrowth.seeds import stream
 
@@ -271,10 +270,12 @@ def forecast(
     >>> fc.table.columns[:4].tolist()
     ['period', 'step', 'mean', 'median']
     """
-    if isinstance(fit, PooledFit):
+    if not isinstance(fit, Fit):  # a pooled fit (its module, and PyMC's, load only then)
         from bayesgrowth.forecast.pooled import forecast_pooled
+        from bayesgrowth.inference.pooled import PooledFit
 
-        return forecast_pooled(fit, horizon, levels=levels, seed=seed)
+        if isinstance(fit, PooledFit):
+            return forecast_pooled(fit, horizon, levels=levels, seed=seed)
     horizon = check_horizon(horizon)
     levels = check_levels(levels)
     seed = fit.seed if seed is None else int(seed)
