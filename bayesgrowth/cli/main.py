@@ -243,20 +243,18 @@ def _run_forecast(args, series: GrowthSeries | None = None) -> int:
 
 def _save_fan(fc, path: Path, *, unit: str | None = None, target: float | None = None,
               scenario=None) -> None:
-    import matplotlib
+    """The fan chart as PNG, drawn on a figure of its own (no pyplot: nothing is shown)."""
+    from matplotlib.figure import Figure
 
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
+    from bayesgrowth.plots.fan import FAN_SIZE, plot_fan
 
-    from bayesgrowth.plots.fan import plot_fan
-
-    ax = plot_fan(fc, unit=unit, target=target)
+    ax = plot_fan(fc, ax=Figure(figsize=FAN_SIZE, layout="constrained").add_subplot(),
+                  unit=unit, target=target)
     if scenario is not None:
         from bayesgrowth.plots.scenario import draw_scenario
 
         draw_scenario(ax, *scenario, base_fc=fc)
     ax.figure.savefig(path, dpi=110)
-    plt.close(ax.figure)
 
 
 def _run_demo(args) -> int:

@@ -22,11 +22,13 @@ from bayesgrowth.plots.style import (
     style_axes,
 )
 
-__all__ = ["BAND_COLOR", "DATA_COLOR", "describe_model", "fitted_curve", "plot_fan",
+__all__ = ["BAND_COLOR", "DATA_COLOR", "FAN_SIZE", "describe_model", "fitted_curve", "plot_fan",
            "set_period_ticks"]
 
 #: The forecast hue and the history colour (kept as names other charts import).
 BAND_COLOR = FORECAST
+#: Size in inches of the figure :func:`plot_fan` makes when given no Axes.
+FAN_SIZE = (8.6, 4.8)
 DATA_COLOR = HISTORY
 
 
@@ -137,10 +139,10 @@ def plot_fan(forecast, ax: Axes | None = None, *, show_curve: bool = False,
     'Larkspur Instruments revenue (demo)'
     >>> plt.close(ax.figure)
     """
-    import matplotlib.pyplot as plt
-
     if ax is None:
-        _, ax = plt.subplots(figsize=(8.6, 4.8), layout="constrained")
+        import matplotlib.pyplot as plt
+
+        _, ax = plt.subplots(figsize=FAN_SIZE, layout="constrained")
     style_axes(ax)
     series = forecast.fit.series
     table = forecast.table
