@@ -15,7 +15,7 @@ from bayesgrowth._version import __version__
 from bayesgrowth.config import DEFAULT_LEVELS
 
 #: Where each public name lives; imported on first use (PEP 562), so that a command
-#: pays only for the layers it runs: ``bayesgrowth --help`` imports no NumPy, and the
+#: pays only for the layers it runs: ``import bayesgrowth`` loads no NumPy, and the
 #: exact forecast no sampler, no backtest or scoring, no model comparison.
 _HOMES = {
     "BacktestResult": "bayesgrowth.backtest",

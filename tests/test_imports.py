@@ -25,3 +25,34 @@ def test_public_api_is_listed():
 
     for name in bg.__all__:
         assert hasattr(bg, name), name
+
+
+def _modules_after(code: str) -> set[str]:
+    out = subprocess.run([sys.executable, "-c", code + "\nprint(' '.join(sys.modules))"],
+                         capture_output=True, text=True, check=True).stdout
+    return set(out.splitlines()[-1].split())
+
+
+def test_the_package_front_loads_names_on_first_use():
+    loaded = _modules_after(
+        "import sys\nimport bayesgrowth as bg\nassert 'numpy' not in sys.modules\n"
+        "import bayesgrowth.backtest.runner, bayesgrowth.forecast.forecast\n"
+        "assert bg.backtest.__module__ == 'bayesgrowth.backtest.runner', bg.backtest\n"
+        "assert bg.forecast.__module__ == 'bayesgrowth.forecast.forecast', bg.forecast\n"
+        "assert bg.data.__name__ == 'bayesgrowth.data'"
+    )
+    assert "bayesgrowth.backtest.runner" in loaded
+
+
+def test_exact_forecast_command_loads_no_sampler_netcdf_or_backtest(tmp_path):
+    from bayesgrowth.data.demo import demo_path
+
+    loaded = _modules_after(
+        "import sys\nfrom bayesgrowth.cli import main\n"
+        f"assert main(['forecast', {str(demo_path())!r}, '-H', '2', '--out', "
+        f"{str(tmp_path / 'out')!r}, '--quiet']) == 0"
+    )
+    assert (tmp_path / "out" / "forecast.csv").exists()
+    heavy = {"pymc", "pytensor", "arviz", "xarray", "dask", "matplotlib.pyplot",
+             "bayesgrowth.backtest", "bayesgrowth.scoring", "bayesgrowth.select"}
+    assert heavy & loaded == set()
