@@ -185,7 +185,9 @@ def staged_output(
                 for name in written:
                     os.replace(stage / name, out / name)
                 files = _read_manifest(out)
-                _retire(out, [n for n in retire if n not in written], files)
+                keep = {p.resolve() for p in protect}  # the input, whatever its name
+                _retire(out, [n for n in retire
+                              if n not in written and (out / n).resolve() not in keep], files)
                 _write_manifest(out, {**files, **written})
         except KeyboardInterrupt as exc:  # it came during the moves: the outputs are done
             exc.outputs_complete = out

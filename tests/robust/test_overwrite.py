@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import hashlib
 import json
 import os
 import tempfile
@@ -224,3 +225,18 @@ def test_every_subcommand_keeps_a_users_file(tmp_path, run_cli, snapshot, user_e
     proc = run_cli(command, demo_path(), "--horizon", 2, "--out", out, *extra)
     user_error(proc, f"{name} is already there and not written by bayesgrowth", "--force")
     assert snapshot(out) == before
+
+
+def test_an_input_named_like_an_earlier_output_is_never_removed(tmp_path, capsys):
+    # contrived on purpose: the input sits in --out under the name of a file an earlier
+    # run wrote there and this run does not write; it is the user's input, so it stays
+    out = tmp_path / "out"
+    src = out / "scenario.csv"
+    out.mkdir()
+    src.write_text(QUARTERS)
+    manifest = {"written_by": "bayesgrowth",
+                "files": {"scenario.csv": hashlib.sha256(QUARTERS.encode()).hexdigest()}}
+    (out / MANIFEST).write_text(json.dumps(manifest))
+    assert main(_argv(src, out)) == 0
+    assert src.read_text() == QUARTERS
+    capsys.readouterr()
