@@ -29,6 +29,7 @@ STREAMS = {
     "prior_completion": 5,  # integrated-out coefficients drawn from their prior
     "model_average": 6,  # which model's draws make up a model average
     "posterior_completion": 7,  # integrated-out coefficients drawn given the data
+    "theta_cells": 8,  # exact-engine theta spread over its grid cells, for reported intervals
 }
 
 

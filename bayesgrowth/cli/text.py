@@ -10,6 +10,8 @@ import argparse
 
 from bayesgrowth.report.words import (
     band_phrases,
+    fades_to_zero,
+    fading_phrase,
     fmt_number,
     fmt_percent,
     fmt_probability,
@@ -78,6 +80,9 @@ def forecast_lines(fc, summary: dict) -> list[str]:
                           *band_phrases(fin, summary["levels"])]),
         "  " + growth_phrase(summary, axis),
     ]
+    fading = fading_phrase(summary, axis, fades_to_zero(fc.fit.priors))
+    if fading:
+        lines.append("  " + fading)
     if "target" in summary:
         tg = summary["target"]
         p_last = tg["probability_at_least_by_period"][fin["period"]]

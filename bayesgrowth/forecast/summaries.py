@@ -9,6 +9,7 @@ import numpy as np
 from bayesgrowth.display import fmt_interval, fmt_number, html_summary, text_summary
 from bayesgrowth.forecast.bands import interval_summary
 from bayesgrowth.inference.fit import Fit
+from bayesgrowth.seeds import stream
 
 __all__ = ["forecast_headline", "forecast_html", "forecast_summary", "forecast_text"]
 
@@ -101,7 +102,7 @@ def _parameters(fc) -> dict:
     if "ceiling" in derived:
         out["ceiling"] = interval_summary(derived["ceiling"])
     if fc.fit.state_space is not None and fc.fit.spec.growth_fades:
-        out["growth_fades"] = _fading_summary(fc.fit, flat["half_life"])
+        out["growth_fades"] = _fading_summary(fc.fit)
     elif "half_life" in flat:
         out["half_life_periods"] = interval_summary(flat["half_life"])
     for name in ("growth_per_year", "doubling_time_periods"):
@@ -152,10 +153,15 @@ def _provenance(fit: Fit) -> dict:
     }
 
 
-def _fading_summary(fit: Fit, half_life: np.ndarray) -> dict:
+def _fading_summary(fit: Fit) -> dict:
     """How likely growth fades, and its half-life among the draws where it does."""
+    post = fit.state_space
+    # the half-life spread over each node's grid cell, so its interval is not stuck on the
+    # grid's few values (the draws themselves stay at the nodes)
+    half_life = post.spread("half_life", fit.extra["nodes"].reshape(-1),
+                            stream(fit.seed, "theta_cells"))
     fades = np.isfinite(half_life)
-    out = {"probability": float(fit.state_space.branch_weight.get("fading", fades.mean()))}
+    out = {"probability": float(post.branch_weight.get("fading", fades.mean()))}
     if fades.sum() >= 20:
         out["half_life_periods_if_fading"] = interval_summary(half_life[fades])
     return out

@@ -73,6 +73,9 @@ class StateSpacePosterior:
         self.params = {k: sel[k] for k in ("sigma", "sigma_level", "sigma_growth", "rho",
                                            "half_life")}
         self.beta_mean, self.beta_cov = sel["beta_mean"], sel["beta_cov"]
+        # each node's cell on the grid (width, and whether in logs), for :meth:`spread`
+        self._cells = {n: (sel[f"cell_{n}"], sel[f"cell_log_{n}"]) for n in grid.CELL_NAMES
+                       if f"cell_{n}" in sel}
         self._state, self._state_cov = sel["state"], sel["state_cov"]
         self.branch_weight = branch_weight
         self.log_evidence = float(log_evidence)
@@ -231,6 +234,23 @@ class StateSpacePosterior:
                                           float(ctx.mu0[0]))
         draws = {k: v[nodes] for k, v in self.params.items()}
         return nodes, {**draws, **named, "latest_log_growth": growth}
+
+    def spread(self, name: str, nodes: np.ndarray, rng: np.random.Generator) -> np.ndarray:
+        """Values of ``name`` for draws at ``nodes``, each moved uniformly within its cell.
+
+        The weights are a midpoint rule: the posterior as constant over each cell of the
+        grid (in its coordinate: ``x`` for the scales, ``log x`` for the half-life).
+        Drawing within the cell samples that density, so intervals of ``theta`` are not
+        stuck on the grid's few values. For reporting only: the posterior draws, their
+        coefficients and likelihoods stay at the nodes.
+        """
+        x = self.params[name][nodes]
+        if name not in self._cells:
+            return x
+        width, log = (a[nodes] for a in self._cells[name])
+        shift = (rng.random(nodes.size) - 0.5) * width
+        with np.errstate(invalid="ignore", over="ignore"):
+            return np.where(width > 0, np.where(log, x * np.exp(shift), x + shift), x)
 
     def one_step(self, nodes: np.ndarray, beta: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """One-step-ahead errors and their variances at the observations, ``(S, n)`` each.

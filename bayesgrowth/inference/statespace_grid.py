@@ -18,12 +18,15 @@ import numpy as np
 from bayesgrowth.inference.statespace_nodes import Context, evaluate
 from bayesgrowth.inference.theta import ThetaDim, rho_of, theta_dims
 
-__all__ = ["Branch", "COARSE", "FINE", "branches", "locate", "moved", "on_grid", "shrink"]
+__all__ = ["Branch", "CELL_NAMES", "COARSE", "FINE", "branches", "locate", "moved", "on_grid",
+           "shrink"]
 
 COARSE = {False: 6, True: 5}  # points per dimension of the locating grid (3-D, 4-D)
 FINE = {False: 8, True: 6}  # and of the weighting grid
 _KEEP = 15.0  # coarse-grid cells within e^-15 of the best bound the fine box
 _MASS = 1e-4  # a fine-grid cell row with less marginal mass than this leaves the box
+#: The parameters a grid may span (:meth:`Branch.cells` reports a cell width for each).
+CELL_NAMES = ("sigma", "sigma_level", "sigma_growth", "half_life")
 
 
 @dataclass
@@ -58,6 +61,21 @@ class Branch:
         if not self.fades:
             out["half_life"] = np.full(u.shape[0], np.inf)
         out["log_prior"] = log_prior
+        return out
+
+    def cells(self, k: int, box, g: int) -> dict:
+        """Each node's cell width per parameter, in its grid coordinate (0 off the grid).
+
+        ``cell_<name>`` is the width, ``cell_log_<name>`` whether the coordinate is the
+        log of the parameter; the same keys for every branch, so nodes concatenate.
+        """
+        out = {}
+        for name in CELL_NAMES:
+            out[f"cell_{name}"] = np.zeros(g)
+            out[f"cell_log_{name}"] = np.zeros(g, dtype=bool)
+        for d, (lo, hi), lg in zip(self.dims, box, self.log, strict=True):
+            out[f"cell_{d.name}"][:] = (hi - lo) / k
+            out[f"cell_log_{d.name}"][:] = lg
         return out
 
     def to_fine(self) -> None:
@@ -120,7 +138,8 @@ def on_grid(ctx, branches, k_of) -> tuple[dict, np.ndarray, dict, float, list]:
         p = b.params(u)
         ev = evaluate(ctx, p)
         lw = ev["loglik"] + p["log_prior"] + math.log(vol) + math.log(b.prior_mass)
-        parts.append({**{k: v for k, v in p.items() if k != "log_prior"}, **ev})
+        parts.append({**{k: v for k, v in p.items() if k != "log_prior"}, **ev,
+                      **b.cells(k_of(b), b.box, u.shape[0])})
         logw.append(lw)
         top = lw.max()
         within.append(np.exp(lw - top))

@@ -22,6 +22,8 @@ from bayesgrowth.forecast.forecast import CAUTION, Forecast, saturates
 from bayesgrowth.report.outlook import outlook_html
 from bayesgrowth.report.words import (
     band_phrases,
+    fades_to_zero,
+    fading_phrase,
     fmt_number,
     fmt_percent,
     fmt_probability,
@@ -179,6 +181,9 @@ def _headline(p: ReportParts, summary: dict) -> str:
                  f"{_pct(g['lower_95'])} to {_pct(g['upper_95'])})"
                  + (f", per year {_pct(gy['median'])} (95% interval {_pct(gy['lower_95'])} to "
                     f"{_pct(gy['upper_95'])})." if gy and period_noun(axis) != "year" else "."))
+    fading = fading_phrase(summary, axis, fades_to_zero(p.forecast.fit.priors))
+    if fading:
+        parts.append(_e(fading[0].upper() + fading[1:]) + ".")
     if "target" in summary:
         tg = summary["target"]
         p_last = tg["probability_at_least_by_period"][fin["period"]]

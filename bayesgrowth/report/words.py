@@ -20,6 +20,8 @@ from bayesgrowth.display import (
 __all__ = [
     "SIGNIFICANT",
     "band_phrases",
+    "fades_to_zero",
+    "fading_phrase",
     "fmt_interval",
     "fmt_number",
     "fmt_percent",
@@ -68,3 +70,45 @@ def band_phrases(row: Mapping, levels: Sequence[int]) -> list[str]:
         if lo is not None and hi is not None:
             out.append(f"{level}% band {fmt_interval(lo, hi)}")
     return out
+
+
+def fades_to_zero(priors) -> bool:
+    """Whether fading growth heads for zero: the long-run rate fixed at 0 (the default)."""
+    return getattr(priors, "long_run_mu", 0.0) == 0 and getattr(priors, "long_run_sd", 0.0) == 0
+
+
+def fading_phrase(summary: Mapping, axis, long_run_zero: bool = True) -> str | None:
+    """How long the growth may last, from a summary's half-life of growth; None without one.
+
+    "growth fades towards zero: it halves in about 6.2 years (80% interval 2.4 to 18 years)";
+    with both drifting and fading growth weighed (``drift="adaptive"``) it says how likely
+    fading is. Half-lives are in years when the calendar has them.
+
+    Parameters
+    ----------
+    summary : mapping
+        A forecast summary (:meth:`Forecast.summary`).
+    axis : PeriodAxis
+        The series' calendar.
+    long_run_zero : bool
+        Whether growth fades towards zero (the default prior) rather than a long-run rate.
+    """
+    fades = summary.get("growth_fades")
+    if "half_life_periods" in summary:  # the damped curve: growth always fades
+        fades = {"probability": 1.0, "half_life_periods_if_fading": summary["half_life_periods"]}
+    if not fades or "half_life_periods_if_fading" not in fades:
+        return None
+    h = fades["half_life_periods_if_fading"]
+    ppy = getattr(axis, "periods_per_year", None)
+    unit, scale = ("years", 1.0 / ppy) if ppy else (f"{period_noun(axis)}s", 1.0)
+    lo, mid, hi = (h[k] * scale for k in ("lower_80", "median", "upper_80"))
+    when = (f"about {fmt_number(mid, 2)} {unit} (80% interval {fmt_interval(lo, hi, 2)} "
+            f"{unit})")
+    goal = "zero" if long_run_zero else "its long-run rate"
+    how = "halves in" if long_run_zero else "is halfway there in"
+    if fades["probability"] >= 0.995:
+        return f"growth fades towards {goal}: it {how} {when}"
+    text = (f"growth fades towards {goal} with probability "
+            f"{fmt_probability(fades['probability'])}, and then {how} {when}; otherwise it "
+            "drifts without fading")
+    return text

@@ -151,3 +151,26 @@ def test_the_compiled_filter_takes_over_once_a_process_has_done_enough_work(monk
     while nodes._filtered <= nodes._WARM:
         nodes.use_compiled(small)
     assert nodes.use_compiled(small)  # a backtest or batch: compiled from then on
+
+
+def test_reported_theta_spreads_over_its_cells_as_the_midpoint_rule_assumes(demo_fit):
+    # The weights are a midpoint rule: the posterior as constant over each cell of the grid.
+    # Spread for reporting, each value must lie in its node's cell (in the grid coordinate:
+    # x for the scales, log x for the half-life) and be uniform there: the offsets from the
+    # node, divided by the cell width, look Uniform(-1/2, 1/2) (Kolmogorov-Smirnov against
+    # scipy's uniform).
+    post = demo_fit.state_space
+    node = demo_fit.extra["nodes"].reshape(-1)
+    rng = np.random.default_rng(5)
+    for name, (width, log) in post._cells.items():
+        w = width[node]
+        on = w > 0
+        if not on.any():
+            continue
+        x, mid = post.spread(name, node, rng)[on], post.params[name][node][on]
+        offset = np.where(log[node][on], np.log(x) - np.log(mid), x - mid) / w[on]
+        assert np.all(np.abs(offset) <= 0.5 + 1e-12), name
+        assert stats.kstest(offset, stats.uniform(-0.5, 1).cdf).pvalue > 1e-3, name
+    # so the reported interval of the half-life is not stuck on a few grid values
+    half = bg.forecast(demo_fit, 4).summary()["growth_fades"]["half_life_periods_if_fading"]
+    assert half["lower_95"] < half["lower_80"] < half["median"] < half["upper_80"]

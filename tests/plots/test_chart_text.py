@@ -257,3 +257,35 @@ def test_fan_of_a_local_trend_shows_its_one_step_forecasts_over_the_history():
     # shown once the model has seen as many periods as it has coefficients (6 here)
     t = fc.fit.series.t
     np.testing.assert_array_equal(np.asarray(median.get_xdata()), t[6:])
+
+
+@pytest.mark.parametrize("periods, probability, expected", [
+    # a half-life of 24 periods: 6 years of quarters, 2 of months; the 80% interval is
+    # rounded outward to two digits
+    (["2024Q1", "2024Q2", "2024Q3"], 1.0,
+     "growth fades towards zero: it halves in about 6 years (80% interval 2.5 to 18 years)"),
+    (["2024-01", "2024-02", "2024-03"], 0.3,
+     "growth fades towards zero with probability 30%, and then halves in about 2 years (80% "
+     "interval 0.83 to 6 years); otherwise it drifts without fading"),
+])
+def test_fading_phrase_says_how_long_growth_lasts_in_years(periods, probability, expected):
+    from bayesgrowth.report.words import fading_phrase
+
+    s = read_series(pd.DataFrame({"period": periods, "value": [10.0, 11.0, 12.5]}))
+    summary = {"growth_fades": {"probability": probability, "half_life_periods_if_fading": {
+        "median": 24.0, "lower_80": 10.0, "upper_80": 72.0}}}
+    assert fading_phrase(summary, s.axis) == expected
+    assert fading_phrase({"growth_per_period": {}}, s.axis) is None
+
+
+def test_cli_headline_says_how_long_growth_lasts(demo):
+    from bayesgrowth.cli.text import forecast_lines
+    from bayesgrowth.config import DEFAULT_MODEL
+    from bayesgrowth.forecast.forecast import forecast
+    from bayesgrowth.inference import fit_series
+
+    fc = forecast(fit_series(demo, engine="exact", seed=1, **DEFAULT_MODEL), 8)
+    summary = fc.summary()
+    text = "\n".join(forecast_lines(fc, summary))
+    years = summary["growth_fades"]["half_life_periods_if_fading"]["median"] / 4
+    assert f"growth fades towards zero: it halves in about {years:.2g} years (80% interval" in text
