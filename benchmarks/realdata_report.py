@@ -109,7 +109,7 @@ def plot_coverage(summary: pd.DataFrame, group: str = "pooled", ax=None):
         ax.errorbar(x + offset, centre, yerr=err, fmt="o", color=colour, capsize=3,
                     label=f"{level}% band")
         ax.axhline(level / 100, color=colour, linestyle="--", linewidth=1)
-    ax.set_xticks(x, rows["method"], rotation=20)
+    ax.set_xticks(x, rows["method"], rotation=45, ha="right", rotation_mode="anchor")
     ax.set_ylabel("share of hold-out points inside")
     ax.set_title("All series" if group == "pooled" else group)
     ax.set_ylim(0, 1.02)
