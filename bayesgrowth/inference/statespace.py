@@ -82,7 +82,7 @@ class StateSpacePosterior:
         self.log_evidence = float(log_evidence)
         self.grid_points = int(grid_points)
         #: the largest move of the probe quantiles at the last refinement, as a share of
-        #: their 10-90 width (settled when at most 0.02); nan for a single pass
+        #: their 10-90 width (settled when at most 0.02); set by state_space_posterior
         self.last_move = math.nan
 
     @property

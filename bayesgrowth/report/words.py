@@ -74,7 +74,7 @@ def band_phrases(row: Mapping, levels: Sequence[int]) -> list[str]:
 
 def fades_to_zero(priors) -> bool:
     """Whether fading growth heads for zero: the long-run rate fixed at 0 (the default)."""
-    return getattr(priors, "long_run_mu", 0.0) == 0 and getattr(priors, "long_run_sd", 0.0) == 0
+    return priors.long_run_mu == 0 and priors.long_run_sd == 0
 
 
 def fading_phrase(summary: Mapping, axis, long_run_zero: bool = True) -> str | None:
@@ -108,7 +108,6 @@ def fading_phrase(summary: Mapping, axis, long_run_zero: bool = True) -> str | N
     how = "halves in" if long_run_zero else "is halfway there in"
     if fades["probability"] >= 0.995:
         return f"growth fades towards {goal}: it {how} {when}"
-    text = (f"growth fades towards {goal} with probability "
+    return (f"growth fades towards {goal} with probability "
             f"{fmt_probability(fades['probability'])}, and then {how} {when}; otherwise it "
             "drifts without fading")
-    return text
