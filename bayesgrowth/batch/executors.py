@@ -123,11 +123,17 @@ class LocalExecutor(Executor):
         if pool is None:
             return
         processes = list((getattr(pool, "_processes", None) or {}).values())
+        manager = getattr(pool, "_executor_manager_thread", None)
         for process in processes:
             process.kill()
         pool.shutdown(wait=False, cancel_futures=True)
         for process in processes:
             process.join(timeout=10)
+        # The pool's manager thread notices the killed workers and closes its wake-up
+        # pipe; if it were still doing so at interpreter exit, the exit hook of
+        # concurrent.futures would write to that pipe as it closes and print a traceback.
+        if manager is not None:
+            manager.join(timeout=10)
 
 
 class DaskExecutor(Executor):
