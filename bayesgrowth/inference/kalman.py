@@ -132,78 +132,87 @@ def augmented_filter(
     return FilterResult(innovations=innov, variance=var, state=a, state_cov=p)
 
 
-def _gram_kernel(y, season, idx, rho, s_level, s_growth, sigma, long_run,
+def _gram_kernel(y, season, idx, rho, s_level, s_growth, sigma, long_run, block,
                  gram, logf, state, state_cov):  # pragma: no cover - compiled by numba
-    """Filter ``[y, X]`` per node, ``X`` built on the fly.
+    """Filter ``[y, X]`` per node, ``X`` built on the fly, ``block`` nodes at a time.
 
     Accumulates ``sum_i v_i v_i' / F_i`` (``gram``) and ``sum_i log F_i``, and keeps
-    the last state.
+    the last state. The innermost loops run over the nodes of a block, which the
+    compiler turns into vector instructions; a block's arrays stay in cache. The
+    growth loading ``w_j = sum_{i<=j} rho^i`` follows ``w_j = rho (1 + w_{j-1})``.
     """
-    n = y.size
-    n_s = season.shape[1]
+    n, n_s, n_nodes = y.size, season.shape[1], rho.size
     k = 3 + int(long_run) + n_s  # y, 1, w, [j - w], seasons
-    a = np.zeros((2, k))
-    row = np.zeros(k)
-    v = np.zeros(k)
-    for g in range(rho.size):
-        r = rho[g]
-        sg2 = s_growth[g] ** 2
-        q00 = sg2 + s_level[g] ** 2
-        s2 = sigma[g] ** 2
-        a[:, :] = 0.0
-        p00 = 0.0
-        p01 = 0.0
-        p11 = 0.0
-        lf = 0.0
+    a0, a1, row = np.empty((k, block)), np.empty((k, block)), np.empty((k, block))
+    acc = np.empty((k, k, block))
+    p00, p01, p11, w = np.empty(block), np.empty(block), np.empty(block), np.empty(block)
+    lf, r, sg2, q00 = np.empty(block), np.empty(block), np.empty(block), np.empty(block)
+    s2, finv, k0, k1 = np.empty(block), np.empty(block), np.empty(block), np.empty(block)
+    for start in range(0, n_nodes, block):
+        m = min(block, n_nodes - start)
+        for b in range(m):
+            r[b] = rho[start + b]
+            sg2[b] = s_growth[start + b] ** 2
+            q00[b] = sg2[b] + s_level[start + b] ** 2
+            s2[b] = sigma[start + b] ** 2
+        p00[:], p01[:], p11[:], w[:], lf[:] = 0.0, 0.0, 0.0, 0.0, 0.0
+        a0[:, :], a1[:, :], acc[:, :, :] = 0.0, 0.0, 0.0
         j_prev = 0
         for i in range(n):
             jj = idx[i]
-            for _ in range(jj - j_prev):
+            for _ in range(jj - j_prev):  # predict over the periods since the last one
                 for c in range(k):
-                    a[0, c] = a[0, c] + r * a[1, c]
-                    a[1, c] = r * a[1, c]
-                n00 = p00 + 2.0 * r * p01 + r * r * p11 + q00
-                n01 = r * p01 + r * r * p11 + sg2
-                n11 = r * r * p11 + sg2
-                p00, p01, p11 = n00, n01, n11
+                    for b in range(m):
+                        a0[c, b] += r[b] * a1[c, b]
+                        a1[c, b] *= r[b]
+                for b in range(m):
+                    rb = r[b]
+                    n00 = p00[b] + 2.0 * rb * p01[b] + rb * rb * p11[b] + q00[b]
+                    p01[b] = rb * p01[b] + rb * rb * p11[b] + sg2[b]
+                    p11[b] = rb * rb * p11[b] + sg2[b]
+                    p00[b] = n00
+                    w[b] = rb * (1.0 + w[b])
             j_prev = jj
-            w = float(jj) if r == 1.0 else r * (1.0 - r**jj) / (1.0 - r)
-            row[0] = y[i]
-            row[1] = 1.0
-            row[2] = w
+            row[0, :], row[1, :], row[2, :] = y[i], 1.0, w
             c0 = 3
             if long_run:
-                row[3] = jj - w
+                for b in range(m):
+                    row[3, b] = jj - w[b]
                 c0 = 4
             for c in range(n_s):
-                row[c0 + c] = season[i, c]
-            f = p00 + s2
-            k0 = p00 / f
-            k1 = p01 / f
+                row[c0 + c, :] = season[i, c]
+            for b in range(m):
+                f = p00[b] + s2[b]
+                finv[b] = 1.0 / f
+                k0[b] = p00[b] / f
+                k1[b] = p01[b] / f
+                p11[b] -= k1[b] * k1[b] * f
+                p01[b] -= k0[b] * k1[b] * f
+                p00[b] -= k0[b] * k0[b] * f
+                lf[b] += np.log(f)
             for c in range(k):
-                v[c] = row[c] - a[0, c]
-                a[0, c] += k0 * v[c]
-                a[1, c] += k1 * v[c]
-            p11 = p11 - k1 * k1 * f
-            p01 = p01 - k0 * k1 * f
-            p00 = p00 - k0 * k0 * f
-            lf += np.log(f)
+                for b in range(m):
+                    v = row[c, b] - a0[c, b]
+                    row[c, b] = v  # the innovation
+                    a0[c, b] += k0[b] * v
+                    a1[c, b] += k1[b] * v
             for c1 in range(k):
-                vc = v[c1] / f
                 for c2 in range(c1 + 1):
-                    gram[g, c1, c2] += vc * v[c2]
-        for c1 in range(k):
-            for c2 in range(c1):
-                gram[g, c2, c1] = gram[g, c1, c2]
-        logf[g] = lf
-        state[g, :, :] = a
-        state_cov[g, 0, 0] = p00
-        state_cov[g, 0, 1] = p01
-        state_cov[g, 1, 0] = p01
-        state_cov[g, 1, 1] = p11
+                    for b in range(m):
+                        acc[c1, c2, b] += row[c1, b] * row[c2, b] * finv[b]
+        for b in range(m):
+            g = start + b
+            for c1 in range(k):
+                for c2 in range(c1 + 1):
+                    gram[g, c1, c2] = gram[g, c2, c1] = acc[c1, c2, b]
+                state[g, 0, c1], state[g, 1, c1] = a0[c1, b], a1[c1, b]
+            logf[g] = lf[b]
+            state_cov[g, 0, 0], state_cov[g, 1, 1] = p00[b], p11[b]
+            state_cov[g, 0, 1] = state_cov[g, 1, 0] = p01[b]
 
 
 _COMPILED = None
+_BLOCK = 256  # nodes filtered together (their arrays fit in a core's cache)
 
 
 def gram_filter(y, season, grid_index, rho, sigma_level, sigma_growth, sigma, long_run):
@@ -238,7 +247,7 @@ def gram_filter(y, season, grid_index, rho, sigma_level, sigma_growth, sigma, lo
     _COMPILED(np.ascontiguousarray(y, float), season, np.asarray(grid_index, dtype=np.int64),
               rho, np.ascontiguousarray(sigma_level, float),
               np.ascontiguousarray(sigma_growth, float), np.ascontiguousarray(sigma, float),
-              bool(long_run), gram, logf, state, state_cov)
+              bool(long_run), _BLOCK, gram, logf, state, state_cov)
     return gram, logf, state, state_cov
 
 
