@@ -11,7 +11,7 @@ from __future__ import annotations
 import numpy as np
 from scipy.special import ndtr, ndtri
 
-__all__ = ["mixture_cdf", "mixture_mean_exp", "mixture_quantiles"]
+__all__ = ["heaviest", "mixture_cdf", "mixture_mean_exp", "mixture_quantiles"]
 
 _ITER = 100
 
@@ -24,11 +24,16 @@ _ITER = 100
 _TAIL_MASS = 1e-5
 
 
-def compact(weight: np.ndarray, mean: np.ndarray, sd: np.ndarray):
-    """The heaviest components holding all but ``1e-5`` of the weight, renormalised."""
+def heaviest(weight: np.ndarray) -> np.ndarray:
+    """Indices of the heaviest components, which hold all but ``1e-5`` of the weight."""
     order = np.argsort(weight)[::-1]
     cum = np.cumsum(weight[order])
-    keep = order[: int(np.searchsorted(cum, 1.0 - _TAIL_MASS)) + 1]
+    return order[: int(np.searchsorted(cum, 1.0 - _TAIL_MASS)) + 1]
+
+
+def compact(weight: np.ndarray, mean: np.ndarray, sd: np.ndarray):
+    """The heaviest components holding all but ``1e-5`` of the weight, renormalised."""
+    keep = heaviest(weight)
     w = weight[keep]
     return w / w.sum(), mean[keep], sd[keep]
 

@@ -294,13 +294,13 @@ def _context(spec, priors, series) -> Context:
 
 
 def _probe_quantiles(post: StateSpacePosterior, t_probe: np.ndarray) -> np.ndarray:
-    from bayesgrowth.inference.mixture import mixture_quantiles
+    from bayesgrowth.inference.mixture import heaviest, mixture_quantiles
 
-    pred = post.predictive(t_probe, joint=False)
-    ends = [0, t_probe.size - 1]  # the first and the last probe step
+    keep = heaviest(post.weight)  # the components the quantiles would keep anyway
+    pred = post.predictive(t_probe, joint=False, nodes=keep)
     # a tolerance of 1e-6 of the log value: the check compares to 2% of the band
-    return mixture_quantiles(post.weight, pred["mean"][:, ends],
-                             np.sqrt(pred["value_var"][:, ends]), _PROBE, tol=1e-6)
+    return mixture_quantiles(post.weight[keep] / post.weight[keep].sum(), pred["mean"],
+                             np.sqrt(pred["value_var"]), _PROBE, tol=1e-6)
 
 
 def state_space_posterior(series, priors, spec, *, max_refinements: int = 3):
@@ -328,7 +328,7 @@ def state_space_posterior(series, priors, spec, *, max_refinements: int = 3):
         b.box = grid.locate(b, ctx, grid.COARSE[len(b.dims) >= 4])
         b.to_fine()
     ppy = series.axis.periods_per_year or 4
-    t_probe = series.t_last + np.arange(1, int(max(4, 2 * round(ppy))) + 1)  # consecutive
+    t_probe = series.t_last + np.array([1, int(max(4, 2 * round(ppy)))])  # next, two years on
     previous, extra, moves = None, 0, 0
     while True:
         def k_of(b, extra=extra):
