@@ -251,62 +251,72 @@ def gram_filter(y, season, grid_index, rho, sigma_level, sigma_growth, sigma, lo
     return gram, logf, state, state_cov
 
 
-def _integrate_kernel(gram, logf, n, mu0, sd0, loglik, beta_mean, beta_cov):  # pragma: no cover
+def _integrate_kernel(gram, logf, n, mu0, sd0, block, loglik, beta_mean,
+                      beta_cov):  # pragma: no cover - compiled by numba
     """Per node, what :func:`bayesgrowth.inference.statespace_nodes.integrate` computes in numpy.
 
     A Cholesky factor ``L`` of ``M = I + S A S`` gives ``log|M|``, ``z = M^-1 S b``
-    and ``M^-1 = L^-T L^-1``.
+    and ``M^-1 = L^-T L^-1``. As in the filter, ``block`` nodes at a time with the
+    node loop innermost.
     """
     p = mu0.size
     log2pi = np.log(2.0 * np.pi)
-    m = np.empty((p, p))
-    chol = np.empty((p, p))
-    linv = np.empty((p, p))
-    sb = np.empty(p)
-    z = np.empty(p)
-    for g in range(gram.shape[0]):
-        rr = gram[g, 0, 0]
+    m, chol = np.empty((p, p, block)), np.empty((p, p, block))
+    linv, minv = np.empty((p, p, block)), np.empty((p, p, block))
+    sb, rr, logdet, acc = np.empty((p, block)), np.empty(block), np.empty(block), np.empty(block)
+    for start in range(0, gram.shape[0], block):
+        nb = min(block, gram.shape[0] - start)
+        for b in range(nb):
+            rr[b] = gram[start + b, 0, 0]
         for i in range(p):
-            amu = 0.0
-            for j in range(p):
-                amu += gram[g, 1 + i, 1 + j] * mu0[j]
-                m[i, j] = sd0[i] * gram[g, 1 + i, 1 + j] * sd0[j]
-            m[i, i] += 1.0
-            rr += -2.0 * gram[g, 1 + i, 0] * mu0[i] + amu * mu0[i]
-            sb[i] = sd0[i] * (gram[g, 1 + i, 0] - amu)
-        logdet = 0.0
+            for b in range(nb):
+                g = start + b
+                amu = 0.0
+                for j in range(p):
+                    amu += gram[g, 1 + i, 1 + j] * mu0[j]
+                    m[i, j, b] = sd0[i] * gram[g, 1 + i, 1 + j] * sd0[j]
+                m[i, i, b] += 1.0
+                rr[b] += -2.0 * gram[g, 1 + i, 0] * mu0[i] + amu * mu0[i]
+                sb[i, b] = sd0[i] * (gram[g, 1 + i, 0] - amu)
+        logdet[:] = 0.0
         for i in range(p):
             for j in range(i + 1):
-                acc = m[i, j]
+                acc[:] = m[i, j, :]
                 for c in range(j):
-                    acc -= chol[i, c] * chol[j, c]
-                if i == j:
-                    chol[i, i] = np.sqrt(acc)
-                else:
-                    chol[i, j] = acc / chol[j, j]
-            logdet += 2.0 * np.log(chol[i, i])
+                    for b in range(nb):
+                        acc[b] -= chol[i, c, b] * chol[j, c, b]
+                for b in range(nb):
+                    if i == j:
+                        chol[i, i, b] = np.sqrt(acc[b])
+                        logdet[b] += 2.0 * np.log(chol[i, i, b])
+                    else:
+                        chol[i, j, b] = acc[b] / chol[j, j, b]
         for j in range(p):  # L^-1, lower triangular, column by column
-            for i in range(p):
-                if i < j:
-                    linv[i, j] = 0.0
-                    continue
-                acc = 1.0 if i == j else 0.0
+            for i in range(j, p):  # the entries above the diagonal are never read
+                acc[:] = 1.0 if i == j else 0.0
                 for c in range(j, i):
-                    acc -= chol[i, c] * linv[c, j]
-                linv[i, j] = acc / chol[i, i]
-        quad = rr
-        for i in range(p):
-            acc = 0.0
+                    for b in range(nb):
+                        acc[b] -= chol[i, c, b] * linv[c, j, b]
+                for b in range(nb):
+                    linv[i, j, b] = acc[b] / chol[i, i, b]
+        for i in range(p):  # M^-1 = L^-T L^-1
             for j in range(p):
-                minv = 0.0
+                acc[:] = 0.0
                 for c in range(max(i, j), p):
-                    minv += linv[c, i] * linv[c, j]
-                beta_cov[g, i, j] = sd0[i] * minv * sd0[j]
-                acc += minv * sb[j]
-            z[i] = acc
-            quad -= sb[i] * acc
-            beta_mean[g, i] = mu0[i] + sd0[i] * acc
-        loglik[g] = -0.5 * (n * log2pi + logf[g] + logdet + quad)
+                    for b in range(nb):
+                        acc[b] += linv[c, i, b] * linv[c, j, b]
+                minv[i, j, :] = acc
+        for b in range(nb):
+            g = start + b
+            quad = rr[b]
+            for i in range(p):
+                z = 0.0
+                for j in range(p):
+                    beta_cov[g, i, j] = sd0[i] * minv[i, j, b] * sd0[j]
+                    z += minv[i, j, b] * sb[j, b]
+                quad -= sb[i, b] * z
+                beta_mean[g, i] = mu0[i] + sd0[i] * z
+            loglik[g] = -0.5 * (n * log2pi + logf[g] + logdet[b] + quad)
 
 
 _INTEGRATE = None
@@ -328,5 +338,5 @@ def integrate_compiled(gram, logf, n, mu0, var0):
     beta_cov = np.empty((g, p, p))
     _INTEGRATE(np.ascontiguousarray(gram, float), np.ascontiguousarray(logf, float), int(n),
                np.ascontiguousarray(mu0, float), np.sqrt(np.asarray(var0, dtype=float)),
-               loglik, beta_mean, beta_cov)
+               _BLOCK, loglik, beta_mean, beta_cov)
     return loglik, beta_mean, beta_cov
