@@ -6,8 +6,9 @@ compile caches as they are on this machine), run as a user types it (file,
 the peak resident memory of that process, and fit + forecast + table warm from
 Python (best of a few repeats). Also the in-process fit and forecast of a 40-point
 quarterly series with the default model, the goal of the honest-default issue
-(20 ms), and which heavy libraries the CLI imported: the exact engine's runs should
-import none of PyMC, PyTensor, ArviZ, xarray or Dask (they are for NUTS fits and
+(20 ms), and with the exponential curve with AR(1) errors (no seasons), and which
+heavy libraries the CLI imported: the exact engine's runs should import none of
+PyMC, PyTensor, ArviZ, xarray or Dask (they are for NUTS fits and
 NetCDF files).
 
 Run: ``python benchmarks/forecast.py`` (``--nuts`` adds the exponential curve on
@@ -31,6 +32,10 @@ print("MAXRSS_KB", resource.getrusage(resource.RUSAGE_SELF).ru_maxrss, file=sys.
 print("HEAVY", ",".join(heavy) or "-", file=sys.stderr)
 sys.exit(rc)
 """
+
+
+#: The exponential curve with AR(1) errors (exact engine: a grid over sigma and phi).
+AR1 = {"model": "exponential", "errors": "ar1", "seasonal": False}
 
 
 def cli_run(extra: list[str]) -> tuple[float, float, str]:
@@ -82,7 +87,9 @@ def quarterly_40():
 def main() -> None:
     cases = {"default (exact)": ([], {}),
              "exponential (exact)": (["--model", "exponential"],
-                                     {"model": "exponential", "seasonal": False})}
+                                     {"model": "exponential", "seasonal": False}),
+             "exponential, AR(1) errors (exact)": (["--model", "exponential", "--errors", "ar1"],
+                                                   AR1)}
     if "--nuts" in sys.argv:
         cases["exponential (nuts)"] = (["--model", "exponential", "--engine", "nuts", "--quiet",
                                         "--accept-warnings"],
@@ -97,6 +104,8 @@ def main() -> None:
                          "warm_python_seconds": round(warm_run(options), 3)}
     results["default, 40-point quarterly, fit + forecast in-process (goal 0.020 s)"] = round(
         warm_run({}, quarterly_40()), 3)
+    results["exponential with AR(1) errors, 40-point quarterly, fit + forecast in-process"] = round(
+        warm_run(AR1, quarterly_40()), 3)
     print(json.dumps(results, indent=2))
 
 

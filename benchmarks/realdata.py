@@ -54,6 +54,7 @@ METHODS = {
     "theta": theta,
     "arima011": arima011,
     "exponential": bayesgrowth_method(engine="exact", model="exponential"),
+    "exponential-ar1": bayesgrowth_method(engine="exact", model="exponential", errors="ar1"),
     # the package's default model (bayesgrowth.config.DEFAULT_MODEL: a damped local trend)
     # and the two other growth dynamics of the local trend
     "default": bayesgrowth_method(engine="exact"),

@@ -80,7 +80,7 @@ def add_parser(sub) -> None:
 
 
 def exact_families() -> tuple[str, ...]:
-    """The families an exact engine fits (with independent normal errors)."""
+    """The families an exact engine fits (with normal noise; the errors each allows differ)."""
     from bayesgrowth.models import registry
 
     return tuple(f.name for f in registry.families() if f.exact_engine is not None)

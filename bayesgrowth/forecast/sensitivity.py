@@ -159,7 +159,8 @@ def prior_sensitivity(
         Ceiling prior centres as multiples of the latest value (> 1); used only
         by the logistic and Gompertz curves.
     engine : {"auto", "exact", "nuts"}
-        ``auto``: the exact engine for the plain exponential model, NUTS otherwise.
+        ``auto``: the exact engine for the exponential model with normal noise
+        (independent or AR(1) errors, no seasonal factors), NUTS otherwise.
     level : int
         Band level in percent.
     seed : int
@@ -213,7 +214,7 @@ def _engine(spec: ModelSpec, engine: str) -> str:
     if engine not in ("auto", "exact", "nuts"):
         raise ValueError(f"engine must be auto, exact or nuts, got {engine!r}")
     if engine == "auto":
-        return "exact" if spec.is_plain_exponential else "nuts"
+        return "exact" if spec.is_plain_exponential or spec.is_gaussian_ar1 else "nuts"
     return engine
 
 

@@ -34,7 +34,8 @@ def fit_series(
     ----------
     series : GrowthSeries
     engine : {"nuts", "exact"}
-        The exact engine covers only the exponential model with independent normal
+        The exact engine covers the local trend with normal noise and independent
+        errors, and the exponential model with normal noise, independent or AR(1)
         errors and no seasonal factors.
     priors : Priors, optional
         Defaults documented in :mod:`bayesgrowth.priors`.
@@ -106,6 +107,10 @@ def fit_series(
             from bayesgrowth.inference.statespace import fit_state_space
 
             fit = fit_state_space(series, resolved, spec, seed=seed, **settings)
+        elif spec.is_gaussian_ar1:
+            from bayesgrowth.inference.ar1_grid import fit_ar1_exact
+
+            fit = fit_ar1_exact(series, resolved, spec, seed=seed, **settings)
         else:
             fit = fit_exact(series, resolved, seed=seed, **settings)
     else:

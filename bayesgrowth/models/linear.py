@@ -169,33 +169,54 @@ def curve_design(spec: ModelSpec, dt, half_life=None, xp=np):
     return spec.family.design(dt, half_life, xp)
 
 
+def _gap_powers(phi, gaps, xp):
+    """``phi^k`` and ``sqrt((1 - phi^(2k)) / (1 - phi^2))`` for the gaps ``k`` between rows.
+
+    With NumPy, ``phi`` is ``(S, 1)`` and ``gaps`` one row ``(n - 1,)``: the powers are
+    taken once per distinct gap (most series have one) and spread over the rows.
+    """
+    if xp is np:
+        distinct, which = np.unique(gaps, return_inverse=True)
+        phik, ratio = _gap_powers(phi, distinct, None)
+        return np.take(phik, which, axis=1), np.take(ratio, which, axis=1)  # row-major
+    phik = phi**gaps
+    return phik, (xp or np).sqrt((1 - phik**2) / (1 - phi**2))
+
+
 def _whiten(spec: ModelSpec, v, sigma, phi, lag, xp, matrix: bool = False):
     """Rows of ``v`` turned into standardised innovations, and each row's log scale.
 
     ``v`` is ``(..., n)``, or ``(..., n, p)`` with ``matrix``; with NumPy, ``sigma``
-    and ``phi`` are draws ``(S,)`` and ``lag`` is ``(S, n)``. ``lag[i]`` is the gap
-    between rows ``i - 1`` and ``i`` (``lag[0]`` is unused). The log scales add up
-    to ``log det T^-1``.
+    and ``phi`` are values ``(S,)``, ``lag`` is one row ``(n,)`` shared by all, and the
+    results are ``(S, n)`` (or ``(S, n, p)``). ``lag[i]`` is the gap between rows
+    ``i - 1`` and ``i`` (``lag[0]`` is unused). The log scales add up to ``log det T^-1``.
     """
-    if xp is np:
+    if xp is np:  # v broadcasts in the arithmetic (a broadcast copy made it 10 times slower)
         sigma = sigma[:, None]
         phi = None if phi is None else phi[:, None]
     if spec.errors == "independent":
         scale = sigma * xp.ones_like(lag)
         innov = v
     else:
-        phik = phi ** lag[..., 1:]
-        ratio = xp.sqrt((1 - phik**2) / (1 - phi**2))
+        phik, ratio = _gap_powers(phi, lag[..., 1:], xp)
         first = 1 / xp.sqrt(1 - phi**2)
         first = first * xp.ones_like(lag[..., :1]) if xp is np else xp.stack([first])
         scale = sigma * xp.concatenate([first, ratio], axis=-1)
         if matrix:
-            p = phik[..., :, None]
-            innov = xp.concatenate([v[..., :1, :], v[..., 1:, :] - p * v[..., :-1, :]], axis=-2)
+            rest = v[..., 1:, :] - phik[..., :, None] * v[..., :-1, :]
+            innov = xp.concatenate([_lead(v[..., :1, :], rest, 2, xp), rest], axis=-2)
         else:
-            innov = xp.concatenate([v[..., :1], v[..., 1:] - phik * v[..., :-1]], axis=-1)
+            rest = v[..., 1:] - phik * v[..., :-1]
+            innov = xp.concatenate([_lead(v[..., :1], rest, 1, xp), rest], axis=-1)
     out = innov / scale[..., :, None] if matrix else innov / scale
     return out, xp.log(scale)
+
+
+def _lead(head, rest, core: int, xp):
+    """``head`` with the leading (draw) axes of ``rest``, to be joined to it (NumPy only)."""
+    if xp is not np:
+        return head
+    return np.broadcast_to(head, rest.shape[:-core] + head.shape[-core:])
 
 
 def _small_solve(m, g, xp):
@@ -277,28 +298,51 @@ def curve_pieces(spec: ModelSpec, priors, dt, params: dict, xp=np):
     return offset, ones, mu0, np.array([var])
 
 
-def marginal_loglik(spec: ModelSpec, y, w, x, mu0, var0, lag, sigma, phi):
-    """A curve's log likelihood with its linear coefficients integrated out (PyTensor).
+def _whitened_products(spec: ModelSpec, r, x, free, w, lag, sigma, phi, xp):
+    """Log scales, ``z'z``, ``g = W'z`` and ``W'W`` of ``z = T r`` and ``W = T x[:, free]``.
+
+    With NumPy, ``r`` and the columns are whitened together, one ``(S, n, 1 + p)``
+    array for the ``S`` values of ``(sigma, phi)``, and the products carry the leading
+    ``S`` axis.
+    """
+    if xp is np:
+        c, log_scale = _whiten(spec, np.column_stack([r, x[:, free]]), sigma, phi, lag, np,
+                               matrix=True)
+        c = np.asarray(w, dtype=float)[:, None] * c
+        gram = np.swapaxes(c, -1, -2) @ c
+        f = range(1, free.size + 1)
+        return (log_scale, gram[:, 0, 0], [gram[:, 0, i] for i in f],
+                [[gram[:, i, j] for j in f] for i in f])
+    z, log_scale = _whiten(spec, r, sigma, phi, lag, xp)
+    z = w * z
+    cols = [w * _whiten(spec, x[:, i], sigma, phi, lag, xp)[0] for i in free]
+    return (log_scale, xp.dot(z, z), [xp.dot(col, z) for col in cols],
+            [[xp.dot(ci, cj) for cj in cols] for ci in cols])
+
+
+def marginal_loglik(spec: ModelSpec, y, w, x, mu0, var0, lag, sigma, phi, xp=None):
+    """A curve's log likelihood with its linear coefficients integrated out.
 
     ``y`` is the log values less the offset and any seasonal factors (those are
     sampled), ``x``, ``mu0`` and ``var0`` come from :func:`curve_pieces`. ``w``
     weights rows 0/1 (switched-off rows must follow the rows that are on, as the
-    AR(1) innovations chain each row to the one before).
+    AR(1) innovations chain each row to the one before). ``xp`` is
+    ``pytensor.tensor`` (the default: a term of the PyMC model) or NumPy, where
+    ``sigma`` and ``phi`` are arrays ``(S,)`` of parameter values, ``lag`` is one row
+    ``(n,)`` and the result holds one log likelihood per value (the exact engine's grid
+    nodes).
     """
-    import pytensor.tensor as pt
-
+    if xp is None:
+        import pytensor.tensor as xp
     free = np.flatnonzero(np.asarray(var0) > 0)
-    r = y - pt.dot(x, mu0)
-    z, log_scale = _whiten(spec, r, sigma, phi, lag, pt)
-    z = w * z
-    out = -0.5 * math.log(2 * math.pi) * w.sum() - (w * log_scale).sum() - 0.5 * pt.dot(z, z)
+    r = y - xp.dot(x, mu0)
+    log_scale, zz, g, m = _whitened_products(spec, r, x, free, w, lag, sigma, phi, xp)
+    out = -0.5 * math.log(2 * math.pi) * w.sum() - (w * log_scale).sum(axis=-1) - 0.5 * zz
     if free.size == 0:
         return out
-    cols = [w * _whiten(spec, x[:, i], sigma, phi, lag, pt)[0] for i in free]
-    g = [pt.dot(c, z) for c in cols]
-    m = [[pt.dot(ci, cj) + (1.0 / var0[free[i]] if i == j else 0.0)
-          for j, cj in enumerate(cols)] for i, ci in enumerate(cols)]
-    logdet, quad = _small_solve(m, g, pt)
+    m = [[m[i][j] + (1.0 / var0[free[i]] if i == j else 0.0) for j in range(free.size)]
+         for i in range(free.size)]
+    logdet, quad = _small_solve(m, g, xp)
     return out + 0.5 * quad - 0.5 * logdet - 0.5 * np.log(var0[free]).sum()
 
 
@@ -324,7 +368,7 @@ def draw_curve_coefficients(spec: ModelSpec, priors, draws: dict, t, log_y, axis
     beta = mu0.copy()
     free = np.flatnonzero(var0 > 0)
     if free.size:
-        lag = np.broadcast_to(np.concatenate([[1.0], np.diff(t)]), (n_draws, t.size))
+        lag = np.concatenate([[1.0], np.diff(t)])
         r = y - (x @ mu0[..., None])[..., 0]
         z, _ = _whiten(spec, r, sigma, phi, lag, np)
         wm, _ = _whiten(spec, x[..., free], sigma, phi, lag, np, matrix=True)

@@ -40,15 +40,16 @@ __all__ = [
 ]
 
 #: Engines a family can name: the exact state-space engine (Kalman filter over a
-#: grid of scales), the exact Gaussian engine (quadrature over the noise scale of a
-#: linear model) and PyMC's NUTS.
+#: grid of scales), the exact Gaussian engine (quadrature over the noise scale, and
+#: the persistence of AR(1) errors, of a linear model) and PyMC's NUTS.
 ENGINES = ("state-space", "gaussian", "nuts")
 
 #: What each exact engine needs of a model besides its family (checked by
-#: :class:`~bayesgrowth.models.spec.ModelSpec`: ``is_state_space``, ``is_plain_exponential``).
+#: :class:`~bayesgrowth.models.spec.ModelSpec`: ``is_state_space``, ``is_plain_exponential``,
+#: ``is_gaussian_ar1``).
 EXACT_CONDITIONS = {
     "state-space": "normal noise, independent errors",
-    "gaussian": "independent normal errors, no seasonal factors",
+    "gaussian": "normal noise, independent or AR(1) errors, no seasonal factors",
 }
 
 #: How a family's PyMC model integrates its linear coefficients while sampling

@@ -116,6 +116,17 @@ class ModelSpec:
         )
 
     @property
+    def is_gaussian_ar1(self) -> bool:
+        """That curve with AR(1) errors, which the exact engine integrates over ``(sigma, phi)``.
+
+        Given the noise scale and the persistence the log values are Gaussian and linear
+        in the curve's coefficients (:mod:`bayesgrowth.inference.ar1_grid`).
+        """
+        return "gaussian" in self.family.engines and (self.errors, self.noise, self.seasonal) == (
+            "ar1", "normal", False
+        )
+
+    @property
     def is_state_space(self) -> bool:
         """A linear-Gaussian state-space model the exact engine integrates (Kalman filter)."""
         return "state-space" in self.family.engines and (self.errors, self.noise) == (
@@ -125,7 +136,7 @@ class ModelSpec:
     @property
     def exact_fits(self) -> bool:
         """Whether an exact engine (state-space or Gaussian) can fit this model."""
-        return self.is_plain_exponential or self.is_state_space
+        return self.is_plain_exponential or self.is_gaussian_ar1 or self.is_state_space
 
     @property
     def adaptive(self) -> bool:

@@ -27,7 +27,9 @@ from bayesgrowth.models.spec import ModelSpec
         ("default", "exact", {"model": "local-trend", "drift": "mean-reverting"}),
         ("local-trend", "exact", {"model": "local-trend", "drift": "random-walk"}),
         ("exponential", "exact", {"model": "exponential"}),
-        ("exponential/ar1", "nuts", {"model": "exponential", "errors": "ar1"}),
+        ("exponential/ar1", "exact", {"model": "exponential", "errors": "ar1"}),
+        ("exponential/ar1/student-t", "nuts",
+         {"model": "exponential", "errors": "ar1", "noise": "student-t"}),
         ("logistic/student-t", "nuts", {"model": "logistic", "noise": "student-t"}),
         ("default/nuts", "nuts", {"model": "local-trend", "drift": "mean-reverting"}),
         ("Default / Adaptive", "exact", {"model": "local-trend", "drift": "adaptive"}),
@@ -95,7 +97,8 @@ def test_every_accepted_form_resolves_to_named_choices():
     assert [c.name for c in as_dict] == list(DEFAULT_MODELS)
     renamed = resolve_models({"fast": "exponential", "mine": ModelChoice("x", "naive")})
     assert [(c.name, c.method) for c in renamed] == [("fast", "exact"), ("mine", "naive")]
-    assert resolve_models({"ar": {"model": "exponential", "errors": "ar1"}})[0].method == "nuts"
+    assert resolve_models({"ar": {"model": "exponential", "errors": "ar1"}})[0].method == "exact"
+    assert resolve_models({"ar": {"model": "local-trend", "errors": "ar1"}})[0].method == "nuts"
     with pytest.raises(ValueError, match="appears twice"):
         resolve_models("naive,naive")
     with pytest.raises(ValueError, match="unknown option 'curve'"):

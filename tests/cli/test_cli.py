@@ -200,8 +200,8 @@ def test_exact_engine_refuses_other_curves(tmp_path, command):
 
 def test_backtest_defaults_to_nuts_when_a_model_option_needs_it(tmp_path, monkeypatch):
     # With --errors ar1 and neither --models nor --methods, the first default model is the one
-    # the options describe, on nuts (the exact engine does not fit AR(1) errors) rather than a
-    # refusal (the options are parsed, the run itself is not started here).
+    # the options describe, on nuts (the exact engine does not fit the local trend with AR(1)
+    # errors) rather than a refusal (the options are parsed, the run itself is not started here).
     from bayesgrowth.cli import backtest as cli_backtest
     from bayesgrowth.cli.main import build_parser
 
