@@ -6,17 +6,21 @@ of the NUTS engine (:mod:`bayesgrowth.models.pymc_build`): normal on ``log a`` (
 and ``b = log(1+g)``, half-normal on ``sigma``, ``Beta(phi_alpha, phi_beta)`` on ``phi``.
 Given ``(sigma, phi)`` the log values are normal and the coefficients enter linearly,
 so they are integrated out in closed form (:func:`bayesgrowth.models.linear.marginal_loglik`,
-the same algebra the PyMC model uses). What is left is a 2-D integral, done on a grid in
-``u = log sigma`` and ``v = atanh phi`` (Fisher's z, which makes the sampling variance
-of an AR(1) coefficient about ``1/n`` wherever it lies) with the weights
+the formula the PyMC model uses, here with the products of whitened columns taken from row
+sums for every node at once: :mod:`bayesgrowth.models.ar1_products`). What is left is a
+2-D integral, done on a grid in ``u = log sigma`` and ``v = atanh phi`` (Fisher's z, which
+makes the sampling variance of an AR(1) coefficient about ``1/n`` wherever it lies) with
+the weights
 
 ``log w(u, v) = log p(sigma) + u + log p(phi) + log(1 - phi^2) + log p(y | sigma, phi)``
 
 (``u`` and ``log(1 - phi^2)`` are the Jacobians). On ``phi`` itself the density has a
 square-root edge at ``phi = 1`` that slows the grid's convergence, and in ``logit phi`` the
-default uniform prior leaves exponential tails that need wide cells. A locating pass over
-a wide box finds where the mass is; a fine pass spreads its nodes over the box that holds every
-node within ``exp(-_DROP)`` of the largest weight, one coarse step wider on each side.
+default flat prior leaves exponential tails that need wide cells; the flat prior's edge at
+``phi = 0`` still makes the rule converge like ``h^2`` (docs/method.md gives the measured
+error). A locating pass over a wide box finds where the mass is; a fine pass spreads its
+nodes over the box that leaves out at most ``_TAIL`` of the locating pass's mass on either
+side of each axis, one and a half locating steps wider.
 Draws are independent: a cell is picked by its weight, ``(u, v)`` spread uniformly
 within it, and the coefficients drawn from their exact normal conditional given that
 ``(sigma, phi)`` (:func:`bayesgrowth.models.linear.draw_curve_coefficients`).
@@ -41,9 +45,9 @@ from bayesgrowth.seeds import stream
 __all__ = ["Ar1GridPosterior", "ar1_posterior", "fit_ar1_exact", "grid_log_weight"]
 
 #: Locating pass: nodes in ``log sigma`` and ``atanh phi`` over :data:`_BOX`.
-_COARSE = (40, 24)
+_COARSE = (48, 32)
 #: Fine pass: nodes in ``log sigma`` and ``atanh phi`` over the box that holds the mass.
-_FINE = (64, 64)
+_FINE = (96, 96)
 #: The locating pass's box: ``sigma`` from 1e-6 to 1e3, ``phi`` from 0 to ``tanh 10``
 #: (``1 - phi`` about 4e-9).
 _BOX = ((np.log(1e-6), np.log(1e3)), (0.0, 10.0))

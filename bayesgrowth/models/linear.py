@@ -40,6 +40,7 @@ import math
 
 import numpy as np
 
+from bayesgrowth.models import ar1_products
 from bayesgrowth.models.spec import ModelSpec, season_index
 
 __all__ = [
@@ -169,54 +170,21 @@ def curve_design(spec: ModelSpec, dt, half_life=None, xp=np):
     return spec.family.design(dt, half_life, xp)
 
 
-def _gap_powers(phi, gaps, xp):
-    """``phi^k`` and ``sqrt((1 - phi^(2k)) / (1 - phi^2))`` for the gaps ``k`` between rows.
+def _whiten(spec: ModelSpec, v, sigma, phi, lag, xp):
+    """Rows of ``v`` (PyTensor, ``(n,)``) turned into standardised innovations, and log scales.
 
-    With NumPy, ``phi`` is ``(S, 1)`` and ``gaps`` one row ``(n - 1,)``: the powers are
-    taken once per distinct gap (most series have one) and spread over the rows.
+    ``lag[i]`` is the gap between rows ``i - 1`` and ``i`` (``lag[0]`` is unused). The log
+    scales add up to ``log det T^-1``. NumPy callers, which need many ``(sigma, phi)`` at
+    once, take the products of whitened columns from row sums instead
+    (:mod:`bayesgrowth.models.ar1_products`).
     """
-    if xp is np:
-        distinct, which = np.unique(gaps, return_inverse=True)
-        phik, ratio = _gap_powers(phi, distinct, None)
-        return np.take(phik, which, axis=1), np.take(ratio, which, axis=1)  # row-major
-    phik = phi**gaps
-    return phik, (xp or np).sqrt((1 - phik**2) / (1 - phi**2))
-
-
-def _whiten(spec: ModelSpec, v, sigma, phi, lag, xp, matrix: bool = False):
-    """Rows of ``v`` turned into standardised innovations, and each row's log scale.
-
-    ``v`` is ``(..., n)``, or ``(..., n, p)`` with ``matrix``; with NumPy, ``sigma``
-    and ``phi`` are values ``(S,)``, ``lag`` is one row ``(n,)`` shared by all, and the
-    results are ``(S, n)`` (or ``(S, n, p)``). ``lag[i]`` is the gap between rows
-    ``i - 1`` and ``i`` (``lag[0]`` is unused). The log scales add up to ``log det T^-1``.
-    """
-    if xp is np:  # v broadcasts in the arithmetic (a broadcast copy made it 10 times slower)
-        sigma = sigma[:, None]
-        phi = None if phi is None else phi[:, None]
     if spec.errors == "independent":
-        scale = sigma * xp.ones_like(lag)
-        innov = v
-    else:
-        phik, ratio = _gap_powers(phi, lag[..., 1:], xp)
-        first = 1 / xp.sqrt(1 - phi**2)
-        first = first * xp.ones_like(lag[..., :1]) if xp is np else xp.stack([first])
-        scale = sigma * xp.concatenate([first, ratio], axis=-1)
-        if matrix:
-            rest = v[..., 1:, :] - phik[..., :, None] * v[..., :-1, :]
-            innov = xp.concatenate([_lead(v[..., :1, :], rest, 2, xp), rest], axis=-2)
-        else:
-            rest = v[..., 1:] - phik * v[..., :-1]
-            innov = xp.concatenate([_lead(v[..., :1], rest, 1, xp), rest], axis=-1)
-    out = innov / scale[..., :, None] if matrix else innov / scale
-    return out, xp.log(scale)
-
-
-def _lead(head, rest, core: int, xp):
-    """``head`` with the leading (draw) axes of ``rest``, to be joined to it (NumPy only)."""
-    if xp is not np:
-        return head
-    return np.broadcast_to(head, rest.shape[:-core] + head.shape[-core:])
+        return v / sigma, xp.log(sigma * xp.ones_like(lag))
+    phik = phi ** lag[1:]
+    ratio = xp.sqrt((1 - phik**2) / (1 - phi**2))
+    scale = sigma * xp.concatenate([xp.stack([1 / xp.sqrt(1 - phi**2)]), ratio])
+    innov = xp.concatenate([v[:1], v[1:] - phik * v[:-1]])
+    return innov / scale, xp.log(scale)
 
 
 def _small_solve(m, g, xp):
@@ -299,24 +267,23 @@ def curve_pieces(spec: ModelSpec, priors, dt, params: dict, xp=np):
 
 
 def _whitened_products(spec: ModelSpec, r, x, free, w, lag, sigma, phi, xp):
-    """Log scales, ``z'z``, ``g = W'z`` and ``W'W`` of ``z = T r`` and ``W = T x[:, free]``.
+    """``log det T^-1``, ``z'z``, ``g = W'z`` and ``W'W`` of ``z = T r`` and ``W = T x[:, free]``.
 
-    With NumPy, ``r`` and the columns are whitened together, one ``(S, n, 1 + p)``
-    array for the ``S`` values of ``(sigma, phi)``, and the products carry the leading
-    ``S`` axis.
+    With NumPy the products come from row sums (:mod:`bayesgrowth.models.ar1_products`)
+    for every value of ``(sigma, phi)`` at once and carry its leading axis; the rows
+    switched off (``w`` 0, after the others) are left out.
     """
     if xp is np:
-        c, log_scale = _whiten(spec, np.column_stack([r, x[:, free]]), sigma, phi, lag, np,
-                               matrix=True)
-        c = np.asarray(w, dtype=float)[:, None] * c
-        gram = np.swapaxes(c, -1, -2) @ c
+        on = np.asarray(w) > 0
+        stats = ar1_products.gap_statistics(np.column_stack([r, x[:, free]])[on], lag[on])
+        log_det, gram = ar1_products.whitened_gram(stats, sigma, phi)
         f = range(1, free.size + 1)
-        return (log_scale, gram[:, 0, 0], [gram[:, 0, i] for i in f],
+        return (log_det, gram[:, 0, 0], [gram[:, 0, i] for i in f],
                 [[gram[:, i, j] for j in f] for i in f])
     z, log_scale = _whiten(spec, r, sigma, phi, lag, xp)
     z = w * z
     cols = [w * _whiten(spec, x[:, i], sigma, phi, lag, xp)[0] for i in free]
-    return (log_scale, xp.dot(z, z), [xp.dot(col, z) for col in cols],
+    return ((w * log_scale).sum(), xp.dot(z, z), [xp.dot(col, z) for col in cols],
             [[xp.dot(ci, cj) for cj in cols] for ci in cols])
 
 
@@ -336,8 +303,8 @@ def marginal_loglik(spec: ModelSpec, y, w, x, mu0, var0, lag, sigma, phi, xp=Non
         import pytensor.tensor as xp
     free = np.flatnonzero(np.asarray(var0) > 0)
     r = y - xp.dot(x, mu0)
-    log_scale, zz, g, m = _whitened_products(spec, r, x, free, w, lag, sigma, phi, xp)
-    out = -0.5 * math.log(2 * math.pi) * w.sum() - (w * log_scale).sum(axis=-1) - 0.5 * zz
+    log_det, zz, g, m = _whitened_products(spec, r, x, free, w, lag, sigma, phi, xp)
+    out = -0.5 * math.log(2 * math.pi) * w.sum() - log_det - 0.5 * zz
     if free.size == 0:
         return out
     m = [[m[i][j] + (1.0 / var0[free[i]] if i == j else 0.0) for j in range(free.size)]
@@ -359,22 +326,22 @@ def draw_curve_coefficients(spec: ModelSpec, priors, draws: dict, t, log_y, axis
     n_draws = sigma.size
     phi = np.asarray(draws["phi"], dtype=float) if spec.errors == "ar1" else None
     offset, x, mu0, var0 = curve_pieces(spec, priors, t - priors.t_ref, draws)
-    p = var0.size
-    x = np.broadcast_to(x, (n_draws, t.size, p))
-    mu0 = np.broadcast_to(mu0, (n_draws, p))
     y = np.asarray(log_y, dtype=float)[None, :] - offset
     if spec.seasonal:
         y = y - np.asarray(draws["season"])[:, season_index(axis, t)[1]]
-    beta = mu0.copy()
+    beta = np.broadcast_to(mu0, (n_draws, var0.size)).copy()
     free = np.flatnonzero(var0 > 0)
     if free.size:
+        r = y - (x @ np.asarray(mu0)[..., None])[..., 0]
+        lead = np.broadcast_shapes(r.shape[:-1], x.shape[:-2])  # (1,) when shared by all draws
+        c = np.concatenate([np.broadcast_to(r[..., None], (*lead, t.size, 1)),
+                            np.broadcast_to(x[..., free], (*lead, t.size, free.size))], axis=-1)
         lag = np.concatenate([[1.0], np.diff(t)])
-        r = y - (x @ mu0[..., None])[..., 0]
-        z, _ = _whiten(spec, r, sigma, phi, lag, np)
-        wm, _ = _whiten(spec, x[..., free], sigma, phi, lag, np, matrix=True)
-        g = (np.swapaxes(wm, -1, -2) @ z[..., None])[..., 0]
-        chol = np.linalg.cholesky(np.diag(1.0 / var0[free]) + np.swapaxes(wm, -1, -2) @ wm)
-        mean = np.linalg.solve(np.swapaxes(chol, -1, -2), np.linalg.solve(chol, g[..., None]))
+        stats = ar1_products.gap_statistics(c[0] if lead == (1,) else c, lag)
+        _, gram = ar1_products.whitened_gram(stats, sigma, phi)
+        g = gram[:, 1:, :1]
+        chol = np.linalg.cholesky(np.diag(1.0 / var0[free]) + gram[:, 1:, 1:])
+        mean = np.linalg.solve(np.swapaxes(chol, -1, -2), np.linalg.solve(chol, g))
         eps = rng.standard_normal((n_draws, free.size, 1))
         beta[:, free] += (mean + np.linalg.solve(np.swapaxes(chol, -1, -2), eps))[..., 0]
     if spec.family.linear == "ceiling":
