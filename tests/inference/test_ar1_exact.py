@@ -98,6 +98,21 @@ def test_likelihood_with_coefficients_integrated_matches_scipy_multivariate_norm
         assert ours[i] == pytest.approx(ref, abs=1e-8, rel=1e-10)
 
 
+def test_switched_off_rows_drop_out_of_the_numpy_likelihood():
+    # Hand check (the definition of the 0/1 weights): trailing rows with weight 0 give the
+    # likelihood of the rows before them.
+    series = _simulated(14, seed=4)
+    priors = Priors().resolve(series)
+    x, mu0, var0, lag = _pieces(series, priors)
+    w = np.r_[np.ones(10), np.zeros(4)]
+    sigma, phi = np.array([0.04, 0.08]), np.array([0.5, 0.9])
+    part = linear.marginal_loglik(SPEC, series.log_values, w, x, mu0, var0, lag, sigma, phi,
+                                  xp=np)
+    short = linear.marginal_loglik(SPEC, series.log_values[:10], np.ones(10), x[:10], mu0, var0,
+                                   lag[:10], sigma, phi, xp=np)
+    np.testing.assert_allclose(part, short, rtol=1e-12)
+
+
 def _brute_force_moments(series, priors):
     """Posterior moments of b, sigma and phi from dense covariances and scipy.integrate.
 
