@@ -159,8 +159,9 @@ def prior_sensitivity(
         Ceiling prior centres as multiples of the latest value (> 1); used only
         by the logistic and Gompertz curves.
     engine : {"auto", "exact", "nuts"}
-        ``auto``: the exact engine for the exponential model with normal noise
-        (independent or AR(1) errors, no seasonal factors), NUTS otherwise.
+        ``auto``: the exact engine wherever it fits (the local trend, and the
+        exponential model with normal noise, independent or AR(1) errors, no
+        seasonal factors), NUTS otherwise.
     level : int
         Band level in percent.
     seed : int
@@ -214,7 +215,7 @@ def _engine(spec: ModelSpec, engine: str) -> str:
     if engine not in ("auto", "exact", "nuts"):
         raise ValueError(f"engine must be auto, exact or nuts, got {engine!r}")
     if engine == "auto":
-        return "exact" if spec.is_plain_exponential or spec.is_gaussian_ar1 else "nuts"
+        return "exact" if spec.exact_fits else "nuts"
     return engine
 
 
