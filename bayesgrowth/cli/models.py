@@ -119,9 +119,22 @@ def _spec_options(args) -> dict:
     return options
 
 
+def _spec(name: str, series, spec_options: dict):
+    """The model ``name`` with the shared options, its seasons resolved for ``series``."""
+    from bayesgrowth.models.spec import ModelSpec, resolve_seasonal
+
+    seasonal = resolve_seasonal(spec_options["seasonal"], series.axis, series.t, name)
+    return ModelSpec(model=name, **{**spec_options, "seasonal": seasonal})
+
+
+def engine_of(name: str, series, spec_options: dict, engine: str) -> str:
+    """The engine ``fit_models`` uses for ``name``: exact wherever an exact engine fits it."""
+    return "exact" if engine == "auto" and _spec(name, series, spec_options).exact_fits else "nuts"
+
+
 def _check_models(names: list[str], series, priors, spec_options: dict, engine: str) -> None:
     """Refuse, before any fitting, combinations the models cannot take."""
-    from bayesgrowth.models.spec import ModelSpec, resolve_seasonal, season_index
+    from bayesgrowth.models.spec import season_index
 
     try:
         resolved = priors.resolve(series)
@@ -129,8 +142,7 @@ def _check_models(names: list[str], series, priors, spec_options: dict, engine: 
         raise UsageError(f"prior options: {exc}") from None
     for name in names:
         try:
-            seasonal = resolve_seasonal(spec_options["seasonal"], series.axis, series.t, name)
-            spec = ModelSpec(model=name, **{**spec_options, "seasonal": seasonal})
+            spec = _spec(name, series, spec_options)
             if spec.seasonal:
                 season_index(series.axis, series.t)
         except ValueError as exc:
@@ -181,8 +193,8 @@ def run(args) -> int:
     start = time.monotonic()
 
     def progress(name):
-        how = "exact" if engine == "auto" and name in exact_families() else "nuts"
-        say(args, f"fitting {name} ({how} engine) to {series.name} ... "
+        say(args, f"fitting {name} ({engine_of(name, series, spec_options, engine)} engine) "
+                  f"to {series.name} ... "
                   f"[{time.monotonic() - start:.0f} s]")
 
     with staged_output(Path(args.out), NAMES, [args.file], force=args.force) as stage:

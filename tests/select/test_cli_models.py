@@ -103,3 +103,21 @@ def test_models_nuts_two_curves_on_the_demo(tmp_path, capsys):
     assert len(avg) == 8 and (avg["lower_95"] <= avg["upper_95"]).all()
     printed = capsys.readouterr().out
     assert "model-averaged forecast for 2027Q4" in printed
+
+
+def test_progress_names_the_engine_each_model_is_fitted_with():
+    # the same rule as fit_models: the exact engine wherever it fits the model's options
+    from bayesgrowth.cli.models import engine_of
+    from bayesgrowth.data.demo import load_demo
+
+    demo = load_demo()
+    plain = {"errors": "independent", "noise": "normal", "seasonal": "auto",
+             "drift": "mean-reverting"}
+    assert engine_of("exponential", demo, plain, "auto") == "exact"
+    assert engine_of("exponential", demo, {**plain, "errors": "ar1"}, "auto") == "exact"
+    assert engine_of("exponential", demo, {**plain, "noise": "student-t"}, "auto") == "nuts"
+    assert engine_of("logistic", demo, plain, "auto") == "nuts"
+    assert engine_of("exponential", demo, plain, "nuts") == "nuts"
+    if "local-trend" in registered_models():
+        assert engine_of("local-trend", demo, plain, "auto") == "exact"
+        assert engine_of("local-trend", demo, {**plain, "errors": "ar1"}, "auto") == "nuts"
