@@ -66,7 +66,7 @@ def forecast_summary(fc, target: float | None = None, target_probability: float 
     -------
     dict
     """
-    from bayesgrowth.forecast.forecast import CAUTION
+    from bayesgrowth.forecast.forecast import CAUTION, model_caution
 
     fit = fc.fit
     out = {
@@ -87,7 +87,7 @@ def forecast_summary(fc, target: float | None = None, target_probability: float 
     if target is not None:
         out.update(_target(fc, target, target_probability))
     out.update(_provenance(fit))
-    out["cautions"] = [c for c in (fc.caution, CAUTION) if c]
+    out["cautions"] = [c for c in (model_caution(fit), fc.caution, CAUTION) if c]
     return out
 
 

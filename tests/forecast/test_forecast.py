@@ -98,3 +98,17 @@ def test_summary_has_contract_fields(demo_exact_fit):
     assert len(s["input"]["fingerprint_sha256"]) == 64
     assert 0 <= s["target"]["probability_at_least_by_period"]["2026Q4"] <= 1
     assert any("not investment advice" in c for c in s["cautions"])
+
+
+def test_fixed_curve_with_independent_errors_says_its_bands_ran_narrow(demo, demo_exact_fit):
+    # The project's issue asks the output of this model to say it assumes deviations do not
+    # persist and that such bands were far too narrow on real series (docs/benchmark.md: 64%
+    # of outcomes inside the exponential curve's 80% bands on 1,905 M1 and Tourism series).
+    from bayesgrowth.forecast.forecast import FIXED_CURVE_CAUTION
+    from bayesgrowth.inference import fit_series
+
+    assert forecast(demo_exact_fit, 4).summary()["cautions"][0] == FIXED_CURVE_CAUTION
+    ar1 = fit_series(demo, engine="exact", model="exponential", errors="ar1", seed=1)
+    default = fit_series(demo, engine="exact", seed=1, model="local-trend")
+    for fit in (ar1, default):
+        assert FIXED_CURVE_CAUTION not in forecast(fit, 4).summary()["cautions"]
