@@ -138,8 +138,8 @@ def _add_run_options(p: argparse.ArgumentParser, horizon_required: bool) -> None
         choices=("exact", "nuts"),
         default=DEFAULT_ENGINE,
         help=f"exact: deterministic integration, milliseconds (the local trend, and the "
-        f"exponential curve with normal noise, independent or AR(1) errors, no seasonal "
-        f"factors); nuts: PyMC sampler, every model [{DEFAULT_ENGINE}]",
+        f"exponential curve with normal noise, independent or AR(1) errors, seasonal "
+        f"factors or not); nuts: PyMC sampler, every model [{DEFAULT_ENGINE}]",
     )
     p.add_argument("--seed", type=int, default=1, help="random seed; same seed, same output [1]")
     p.add_argument(

@@ -4,8 +4,11 @@ The model is the exponential curve of :mod:`bayesgrowth.models.exponential` with
 errors and normal noise (see :mod:`bayesgrowth.models.general`), with the very priors
 of the NUTS engine (:mod:`bayesgrowth.models.pymc_build`): normal on ``log a`` (or fixed)
 and ``b = log(1+g)``, half-normal on ``sigma``, ``Beta(phi_alpha, phi_beta)`` on ``phi``.
-Given ``(sigma, phi)`` the log values are normal and the coefficients enter linearly,
-so they are integrated out in closed form (:func:`bayesgrowth.models.linear.marginal_loglik`,
+Given ``(sigma, phi)`` the log values are normal and the coefficients enter linearly
+(with seasonal factors, their coordinates in the zero-sum basis too, with the NUTS
+model's ``ZeroSumNormal`` prior: design ``[1, dt, D Q]``, see
+:func:`bayesgrowth.models.linear.with_season_columns`), so they are integrated out in
+closed form (:func:`bayesgrowth.models.linear.marginal_loglik`,
 the formula the PyMC model uses, here with the products of whitened columns taken from row
 sums for every node at once: :mod:`bayesgrowth.models.ar1_products`). What is left is a
 2-D integral, done on a grid in ``u = log sigma`` and ``v = atanh phi`` (Fisher's z, which
@@ -106,6 +109,8 @@ def grid_log_weight(spec: ModelSpec, series: GrowthSeries, priors: ResolvedPrior
     log_1m_phi2 = np.log(4.0) - 2 * np.logaddexp(v, -v)  # 1 - tanh(v)^2 = 4 / (e^v + e^-v)^2
     t = np.asarray(series.t, dtype=float)
     _, x, mu0, var0 = linear.curve_pieces(spec, priors, t - priors.t_ref, {})
+    if spec.seasonal:
+        x, mu0, var0, _ = linear.with_season_columns(spec, priors, x, series.axis, t)
     lag = np.concatenate([[1.0], np.diff(t)])
     loglik = linear.marginal_loglik(spec, series.log_values, np.ones(t.size), x, mu0, var0,
                                     lag, sigma, phi, xp=np)
@@ -157,7 +162,7 @@ def ar1_posterior(series: GrowthSeries, priors: ResolvedPriors, spec: ModelSpec,
     priors : ResolvedPriors
     spec : ModelSpec
         A family with a ``"growth"`` linear scheme and nothing else to sample (the
-        exponential curve), AR(1) errors, normal noise, no seasonal factors.
+        exponential curve), AR(1) errors, normal noise, seasonal factors or not.
     coarse, fine : tuple of int
         Nodes per dimension (``log sigma``, ``atanh phi``) of the locating and fine passes.
 
@@ -197,8 +202,9 @@ def fit_ar1_exact(series: GrowthSeries, priors: ResolvedPriors, spec: ModelSpec,
     n = chains * draws
     sigma, phi = post.sample(n, rng)
     flat = linear.draw_curve_coefficients(spec, priors, {"sigma": sigma, "phi": phi}, series.t,
-                                          series.log_values, series.axis, rng)
-    posterior = {k: np.asarray(flat[k]).reshape(chains, draws) for k in spec.parameters()}
+                                          series.log_values, series.axis, rng, seasons=True)
+    posterior = {k: np.asarray(flat[k]).reshape(chains, draws, *np.shape(flat[k])[1:])
+                 for k in spec.parameters() + spec.vector_parameters()}
     nodes = int(post.weight.size)
     diagnostics = Diagnostics.from_values(
         1.0, n, n, 0, method=f"exact posterior on a {nodes}-node grid over the noise scale "

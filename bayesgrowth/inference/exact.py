@@ -1,11 +1,14 @@
 """The exact engine: the posterior of the log-linear model by quadrature over ``sigma``.
 
 It uses the very same priors as the NUTS engine (independent normal priors on
-``log a`` and ``log(1+g)``, half-normal on ``sigma``), so the engine a user
-picks does not change the question answered. Given ``sigma`` the coefficients'
-posterior is Gaussian in closed form; a 2,000-point grid over ``log sigma``
-integrates ``sigma`` out (see :mod:`bayesgrowth.inference.gaussian_grid`).
-Draws are independent, so there are no chains to diagnose.
+``log a`` and ``log(1+g)``, half-normal on ``sigma``, and for seasonal factors the
+``ZeroSumNormal`` of fixed scale, which is normal on the coordinates ``eta`` of
+``season = Q eta`` in an orthonormal zero-sum basis ``Q``), so the engine a user
+picks does not change the question answered. Given ``sigma`` the coefficients
+(level, growth and seasonal coordinates, design ``[1, dt, D Q]``) have a Gaussian
+posterior in closed form; a 2,000-point grid over ``log sigma`` integrates ``sigma``
+out (see :mod:`bayesgrowth.inference.gaussian_grid`). Draws are independent, so
+there are no chains to diagnose.
 """
 
 from __future__ import annotations
@@ -17,7 +20,8 @@ from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.inference.diagnostics import Diagnostics
 from bayesgrowth.inference.fit import Fit
 from bayesgrowth.inference.gaussian_grid import SigmaGridPosterior, linear_gaussian_posterior
-from bayesgrowth.models import exponential
+from bayesgrowth.models import linear
+from bayesgrowth.models.spec import ModelSpec
 from bayesgrowth.priors import ResolvedPriors
 
 __all__ = ["exact_posterior", "fit_exact"]
@@ -30,26 +34,37 @@ def _half_normal_logpdf(scale: float):
     return logpdf
 
 
-def exact_posterior(series: GrowthSeries, priors: ResolvedPriors) -> SigmaGridPosterior:
-    """Grid posterior of the coefficients ``(log a, log(1+g))`` and ``sigma``.
+def _pieces(series: GrowthSeries, priors: ResolvedPriors, spec: ModelSpec):
+    """Design, prior means and variances of the coefficients, and the number of seasons."""
+    _, x, mu0, var0 = linear.curve_pieces(spec, priors, series.t - priors.t_ref, {})
+    if not spec.seasonal:
+        return x, mu0, var0, 0
+    return linear.with_season_columns(spec, priors, x, series.axis, series.t)
 
-    With a fixed initial value the only coefficient is ``log(1+g)``.
+
+def exact_posterior(series: GrowthSeries, priors: ResolvedPriors,
+                    spec: ModelSpec | None = None) -> SigmaGridPosterior:
+    """Grid posterior of the coefficients and ``sigma``.
+
+    The coefficients are ``(log a, log(1+g))`` followed, for a seasonal ``spec``, by the
+    ``m - 1`` seasonal coordinates; with a fixed initial value ``log a`` is left out.
+
+    Parameters
+    ----------
+    series : GrowthSeries
+    priors : ResolvedPriors
+    spec : ModelSpec, optional
+        The exponential curve with normal noise and independent errors, seasonal
+        factors or not; default without.
     """
-    X = exponential.design_matrix(series.t, priors.t_ref)
-    y = series.log_values
-    if priors.fixed_initial:
-        return linear_gaussian_posterior(
-            X[:, 1:],
-            y - priors.log_a_mu,
-            np.array([priors.log1p_g_mu]),
-            np.array([[priors.log1p_g_sd**-2]]),
-            _half_normal_logpdf(priors.sigma_scale),
-        )
+    spec = spec or ModelSpec()
+    x, mu0, var0, _ = _pieces(series, priors, spec)
+    free = var0 > 0
     return linear_gaussian_posterior(
-        X,
-        y,
-        np.array([priors.log_a_mu, priors.log1p_g_mu]),
-        np.diag([priors.log_a_sd**-2, priors.log1p_g_sd**-2]),
+        x[:, free],
+        series.log_values - x[:, ~free] @ mu0[~free],
+        mu0[free],
+        np.diag(1.0 / var0[free]),
         _half_normal_logpdf(priors.sigma_scale),
     )
 
@@ -61,24 +76,25 @@ def fit_exact(
     seed: int,
     draws: int = DEFAULT_DRAWS,
     chains: int = DEFAULT_CHAINS,
+    spec: ModelSpec | None = None,
 ) -> Fit:
     """Fit by the exact engine and return ``chains * draws`` independent posterior draws.
 
     The draws are arranged as ``chains`` blocks only so that results have the same
-    shape as the NUTS engine's.
+    shape as the NUTS engine's; seasonal factors are ``season``, ``(chains, draws, m)``.
     """
-    post = exact_posterior(series, priors)
+    spec = spec or ModelSpec()
+    post = exact_posterior(series, priors, spec)
+    _, mu0, var0, m = _pieces(series, priors, spec)
     rng = np.random.default_rng(seed)
-    beta, sigma = post.sample(chains * draws, rng)
-    if priors.fixed_initial:
-        log_a = np.full(sigma.shape, priors.log_a_mu)
-        b = beta[:, 0]
-    else:
-        log_a, b = beta[:, 0], beta[:, 1]
-    shape = (chains, draws)
-    posterior = {"log_a": log_a.reshape(shape), "log1p_g": b.reshape(shape),
-                 "sigma": sigma.reshape(shape)}
     n = chains * draws
+    free, sigma = post.sample(n, rng)
+    beta = np.tile(mu0, (n, 1))
+    beta[:, var0 > 0] = free
+    flat = linear.split_coefficients(spec, beta, m, priors.fixed_initial, priors.log_a_mu)
+    flat["sigma"] = sigma
+    posterior = {k: flat[k].reshape(chains, draws, *flat[k].shape[1:])
+                 for k in spec.parameters() + spec.vector_parameters()}
     diagnostics = Diagnostics.from_values(
         1.0, n, n, 0, method="exact posterior, independent draws: no chains to check"
     )
@@ -89,5 +105,6 @@ def fit_exact(
         seed=seed,
         posterior=posterior,
         diagnostics=diagnostics,
+        spec=spec,
         settings={"draws": draws, "chains": chains, "sigma_grid_points": int(post.sigma.size)},
     )

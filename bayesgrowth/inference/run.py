@@ -36,7 +36,7 @@ def fit_series(
     engine : {"nuts", "exact"}
         The exact engine covers the local trend with normal noise and independent
         errors, and the exponential model with normal noise, independent or AR(1)
-        errors and no seasonal factors.
+        errors, with or without seasonal factors.
     priors : Priors, optional
         Defaults documented in :mod:`bayesgrowth.priors`.
     seed : int, optional
@@ -112,7 +112,7 @@ def fit_series(
 
             fit = fit_ar1_exact(series, resolved, spec, seed=seed, **settings)
         else:
-            fit = fit_exact(series, resolved, seed=seed, **settings)
+            fit = fit_exact(series, resolved, seed=seed, spec=spec, **settings)
     else:
         from bayesgrowth.inference.nuts import fit_nuts
 

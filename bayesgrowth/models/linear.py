@@ -31,7 +31,11 @@ written out with cofactors: PyTensor runs its Cholesky and triangular solves as
 Python calls, which made each gradient about 1.3 ms on the damped curve.
 
 A ``ZeroSumNormal(s)`` vector of ``m`` seasonal factors is ``Q eta``, with ``eta ~ N(0,
-s^2 I)`` and ``Q`` an orthonormal basis of the zero-sum vectors.
+s^2 I)`` and ``Q`` an orthonormal basis of the zero-sum vectors. The exact engines of the
+exponential curve integrate the curve's seasonal factors out that way too
+(:func:`with_season_columns`: columns ``D Q`` beside the curve's, ``D`` the season
+indicators); their NumPy algebra takes any number of coefficients (a Cholesky factor
+beyond 3), while the PyMC model keeps sampling them and its written-out algebra.
 """
 
 from __future__ import annotations
@@ -56,6 +60,7 @@ __all__ = [
     "uses_long_run",
     "season_rows",
     "split_coefficients",
+    "with_season_columns",
 ]
 
 #: Variables sampled in place of a model parameter; dropped once the draws are complete.
@@ -97,6 +102,25 @@ def season_rows(spec: ModelSpec, axis, t) -> tuple[np.ndarray | None, int]:
         return None, 0
     m, s_idx = season_index(axis, np.asarray(t))
     return season_basis(m)[s_idx], m
+
+
+def with_season_columns(spec: ModelSpec, priors, x, axis, t):
+    """A ``"growth"`` curve's design and prior with its seasonal coordinates among them.
+
+    Columns ``D Q`` (:func:`season_rows`) follow the curve's columns ``x`` (``(n, p)``, or
+    ``(S, n, p)`` per draw), with the prior ``N(0, seasonal_scale^2)`` of each coordinate
+    (the PyMC model's ``ZeroSumNormal``).
+
+    Returns
+    -------
+    x, mu0, var0, m
+        The widened design, the prior means and variances in design order, and the
+        number of seasons.
+    """
+    rows, m = season_rows(spec, axis, t)
+    mu0, var0 = linear_prior(spec, priors, m, seasons=True)
+    rows = np.broadcast_to(rows, (*np.shape(x)[:-1], m - 1))
+    return np.concatenate([x, rows], axis=-1), mu0, var0, m
 
 
 def uses_long_run(spec: ModelSpec) -> bool:
@@ -213,6 +237,26 @@ def _small_solve(m, g, xp):
     return xp.log(det), quad / det
 
 
+def _cholesky_solve(m, g):
+    """``log det M`` and ``g' M^-1 g`` for NumPy stacks ``(S,)`` of any size: ``M = L L'``.
+
+    Entry by entry over the ``S`` values (faster than a stack of small LAPACK calls).
+    """
+    p = len(g)
+    low = [[None] * p for _ in range(p)]
+    z = [None] * p
+    logdet, quad = 0.0, 0.0
+    for j in range(p):
+        d = m[j][j] - sum(low[j][k] ** 2 for k in range(j))
+        root = np.sqrt(d)
+        for i in range(j + 1, p):
+            low[i][j] = (m[i][j] - sum(low[i][k] * low[j][k] for k in range(j))) / root
+        low[j][j] = root
+        z[j] = (g[j] - sum(low[j][k] * z[k] for k in range(j))) / root
+        logdet, quad = logdet + np.log(d), quad + z[j] ** 2
+    return logdet, quad
+
+
 def ceiling_ratio_prior(priors) -> tuple[float, float]:
     """Prior mean and sd of ``kappa = log K - log a`` for the logistic and Gompertz curves.
 
@@ -309,16 +353,18 @@ def marginal_loglik(spec: ModelSpec, y, w, x, mu0, var0, lag, sigma, phi, xp=Non
         return out
     m = [[m[i][j] + (1.0 / var0[free[i]] if i == j else 0.0) for j in range(free.size)]
          for i in range(free.size)]
-    logdet, quad = _small_solve(m, g, xp)
+    logdet, quad = _small_solve(m, g, xp) if free.size <= 3 else _cholesky_solve(m, g)
     return out + 0.5 * quad - 0.5 * logdet - 0.5 * np.log(var0[free]).sum()
 
 
 def draw_curve_coefficients(spec: ModelSpec, priors, draws: dict, t, log_y, axis,
-                            rng: np.random.Generator) -> dict:
+                            rng: np.random.Generator, *, seasons: bool = False) -> dict:
     """``draws`` plus each draw's linear coefficients from their normal conditional.
 
     Seasonal factors, when the model has them, are among ``draws`` (they are
-    sampled) and are taken off the log values first. The ceiling curves also get
+    sampled) and are taken off the log values first, unless ``seasons`` is true: then
+    they are drawn with the other coefficients (a ``"growth"`` curve, seasonal factors
+    integrated out, as the exact engines do). The ceiling curves also get
     ``log_k = log a + kappa``.
     """
     t = np.asarray(t, dtype=float)
@@ -327,7 +373,10 @@ def draw_curve_coefficients(spec: ModelSpec, priors, draws: dict, t, log_y, axis
     phi = np.asarray(draws["phi"], dtype=float) if spec.errors == "ar1" else None
     offset, x, mu0, var0 = curve_pieces(spec, priors, t - priors.t_ref, draws)
     y = np.asarray(log_y, dtype=float)[None, :] - offset
-    if spec.seasonal:
+    m = 0
+    if spec.seasonal and seasons:
+        x, mu0, var0, m = with_season_columns(spec, priors, x, axis, t)
+    elif spec.seasonal:
         y = y - np.asarray(draws["season"])[:, season_index(axis, t)[1]]
     beta = np.broadcast_to(mu0, (n_draws, var0.size)).copy()
     free = np.flatnonzero(var0 > 0)
@@ -348,4 +397,4 @@ def draw_curve_coefficients(spec: ModelSpec, priors, draws: dict, t, log_y, axis
         log_a = np.full(n_draws, priors.log_a_mu) if priors.fixed_initial else beta[:, 0]
         kappa = np.asarray(draws["log_ceiling_ratio"], dtype=float)
         return {**draws, "log_a": log_a, "log_k": log_a + kappa}
-    return {**draws, **split_coefficients(spec, beta, 0, priors.fixed_initial, priors.log_a_mu)}
+    return {**draws, **split_coefficients(spec, beta, m, priors.fixed_initial, priors.log_a_mu)}

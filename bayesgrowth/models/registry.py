@@ -45,11 +45,10 @@ __all__ = [
 ENGINES = ("state-space", "gaussian", "nuts")
 
 #: What each exact engine needs of a model besides its family (checked by
-#: :class:`~bayesgrowth.models.spec.ModelSpec`: ``is_state_space``, ``is_plain_exponential``,
-#: ``is_gaussian_ar1``).
+#: :class:`~bayesgrowth.models.spec.ModelSpec`: ``is_state_space``, ``is_gaussian_curve``).
 EXACT_CONDITIONS = {
     "state-space": "normal noise, independent errors",
-    "gaussian": "normal noise, independent or AR(1) errors, no seasonal factors",
+    "gaussian": "normal noise, independent or AR(1) errors, with or without seasonal factors",
 }
 
 #: How a family's PyMC model integrates its linear coefficients while sampling

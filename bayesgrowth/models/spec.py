@@ -116,15 +116,23 @@ class ModelSpec:
         )
 
     @property
+    def is_gaussian_curve(self) -> bool:
+        """A curve the exact Gaussian engines integrate: normal noise, any errors and seasons.
+
+        Given the noise scale (and the persistence of AR(1) errors) the log values are
+        Gaussian and linear in the curve's coefficients and seasonal coordinates, whose
+        priors are normal (:mod:`bayesgrowth.inference.exact`,
+        :mod:`bayesgrowth.inference.ar1_grid`).
+        """
+        return "gaussian" in self.family.engines and self.noise == "normal"
+
+    @property
     def is_gaussian_ar1(self) -> bool:
         """That curve with AR(1) errors, which the exact engine integrates over ``(sigma, phi)``.
 
-        Given the noise scale and the persistence the log values are Gaussian and linear
-        in the curve's coefficients (:mod:`bayesgrowth.inference.ar1_grid`).
+        With or without seasonal factors (:mod:`bayesgrowth.inference.ar1_grid`).
         """
-        return "gaussian" in self.family.engines and (self.errors, self.noise, self.seasonal) == (
-            "ar1", "normal", False
-        )
+        return self.is_gaussian_curve and self.errors == "ar1"
 
     @property
     def is_state_space(self) -> bool:
@@ -136,7 +144,7 @@ class ModelSpec:
     @property
     def exact_fits(self) -> bool:
         """Whether an exact engine (state-space or Gaussian) can fit this model."""
-        return self.is_plain_exponential or self.is_gaussian_ar1 or self.is_state_space
+        return self.is_gaussian_curve or self.is_state_space
 
     @property
     def adaptive(self) -> bool:

@@ -34,6 +34,8 @@ from bayesgrowth.models.spec import ModelSpec
         ("default/nuts", "nuts", {"model": "local-trend", "drift": "mean-reverting"}),
         ("Default / Adaptive", "exact", {"model": "local-trend", "drift": "adaptive"}),
         ("damped/seasonal", "nuts", {"model": "damped", "seasonal": True}),
+        ("exponential/ar1/seasonal", "exact",
+         {"model": "exponential", "errors": "ar1", "seasonal": True}),
     ],
 )
 def test_text_names_choose_curve_errors_and_engine(text, method, spec):
