@@ -10,13 +10,12 @@ import math
 
 import numpy as np
 import pytest
+from ar1_simulation import simulated_ar1
 from scipy import integrate, stats
 from scipy.special import expit
 
 import bayesgrowth as bg
 from bayesgrowth.cli import main
-from bayesgrowth.data.periods import PeriodAxis
-from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.inference.ar1_grid import ar1_posterior
 from bayesgrowth.inference.run import fit_series
 from bayesgrowth.models import ar1_products, linear
@@ -24,21 +23,6 @@ from bayesgrowth.models.spec import ModelSpec
 from bayesgrowth.priors import InitialValuePrior, Priors
 
 SPEC = ModelSpec(model="exponential", errors="ar1")
-QUARTERS = PeriodAxis(style="quarter", step=1, origin=2015 * 4)
-
-
-def _simulated(n, phi=0.6, sigma=0.05, seed=3, t=None):
-    """Log values of ``log 500 + 0.03 t + e_t``, AR(1) errors simulated with known parameters."""
-    rng = np.random.default_rng(seed)
-    t = np.arange(n) if t is None else np.asarray(t)
-    e = np.empty(t.size)
-    e[0] = rng.normal(0, sigma / math.sqrt(1 - phi**2))
-    for i in range(1, t.size):
-        k = t[i] - t[i - 1]
-        e[i] = phi**k * e[i - 1] + rng.normal(0, sigma * math.sqrt((1 - phi ** (2 * k))
-                                                                   / (1 - phi**2)))
-    y = math.log(500.0) + 0.03 * t + e
-    return GrowthSeries(values=np.exp(y), t=t, axis=QUARTERS, name="simulated")
 
 
 def _pieces(series, priors):
@@ -60,7 +44,7 @@ def test_likelihood_at_fixed_coefficients_matches_statsmodels_sarimax(gaps):
     # NaN, which its Kalman filter skips.
     sm = pytest.importorskip("statsmodels.api")
     t = np.array([0, 1, 2, 4, 5, 6, 7, 9, 10, 11, 12, 13, 14, 15]) if gaps else np.arange(14)
-    series = _simulated(0, t=t)
+    series = simulated_ar1(0, t=t)
     priors = Priors().resolve(series)
     x, _, _, lag = _pieces(series, priors)
     beta = np.array([6.2, 0.031])
@@ -83,7 +67,7 @@ def test_likelihood_with_coefficients_integrated_matches_scipy_multivariate_norm
     # Reference: scipy.stats.multivariate_normal with mean X mu0 and covariance K + X V0 X'
     # (beta ~ N(mu0, V0) integrated out by hand; a fixed level has variance 0).
     t = np.array([0, 1, 2, 3, 5, 6, 7, 8, 9, 11, 12])
-    series = _simulated(0, t=t, seed=8)
+    series = simulated_ar1(0, t=t, seed=8)
     given = Priors(initial=InitialValuePrior(give_or_take_pct=0)) if fixed_initial else Priors()
     priors = given.resolve(series)
     assert priors.fixed_initial == fixed_initial
@@ -101,7 +85,7 @@ def test_likelihood_with_coefficients_integrated_matches_scipy_multivariate_norm
 def test_switched_off_rows_drop_out_of_the_numpy_likelihood():
     # Hand check (the definition of the 0/1 weights): trailing rows with weight 0 give the
     # likelihood of the rows before them.
-    series = _simulated(14, seed=4)
+    series = simulated_ar1(14, seed=4)
     priors = Priors().resolve(series)
     x, mu0, var0, lag = _pieces(series, priors)
     w = np.r_[np.ones(10), np.zeros(4)]
@@ -156,7 +140,7 @@ def _brute_force_moments(series, priors):
 
 def test_grid_posterior_matches_brute_force_integration():
     # Reference: _brute_force_moments (dense covariances, scipy.integrate.simpson).
-    series = _simulated(12, seed=5)
+    series = simulated_ar1(12, seed=5)
     priors = Priors().resolve(series)
     ref = _brute_force_moments(series, priors)
     post = ar1_posterior(series, priors, SPEC)
@@ -178,7 +162,7 @@ def test_grid_posterior_matches_brute_force_integration():
 
 
 def test_draws_follow_the_grid_and_keep_a_fixed_level():
-    series = _simulated(16, seed=2)
+    series = simulated_ar1(16, seed=2)
     priors = Priors().resolve(series)
     post = ar1_posterior(series, priors, SPEC)
     fit = fit_series(series, engine="exact", model="exponential", errors="ar1", seed=4)
@@ -203,7 +187,7 @@ def test_draws_follow_the_grid_and_keep_a_fixed_level():
 def test_exact_engine_agrees_with_nuts_on_the_same_model():
     # Reference: the NUTS engine on the same model and priors (PyMC; the coefficients are
     # integrated out there by the same formula, but sigma and phi are sampled).
-    series = _simulated(16, seed=7)
+    series = simulated_ar1(16, seed=7)
     opts = {"model": "exponential", "errors": "ar1"}
     exact = fit_series(series, engine="exact", seed=5, **opts)
     nuts = fit_series(series, engine="nuts", seed=5, draws=1000, chains=2, **opts)
@@ -227,7 +211,7 @@ def test_exact_engine_agrees_with_nuts_on_the_same_model():
 
 def test_command_line_fits_it_exactly_and_refuses_what_it_does_not_cover(tmp_path, capsys):
     csv = tmp_path / "s.csv"
-    series = _simulated(16, seed=1)
+    series = simulated_ar1(16, seed=1)
     csv.write_text("period,value\n" + "".join(
         f"{2015 + i // 4}Q{i % 4 + 1},{v:.4f}\n" for i, v in enumerate(series.values)))
     out = tmp_path / "out"

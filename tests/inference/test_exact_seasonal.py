@@ -11,8 +11,8 @@ import math
 
 import numpy as np
 import pytest
+from ar1_simulation import simulated_ar1
 from scipy import stats
-from test_ar1_exact import _simulated as _ar1_simulated  # this folder's AR(1) simulation
 
 import bayesgrowth as bg
 from bayesgrowth.cli import main
@@ -35,7 +35,7 @@ def _simulated(n, errors="independent", sigma=0.04, phi=0.5, seed=3, t=None, axi
     The curve and errors come from the AR(1) tests' simulation (``phi = 0`` makes the
     errors independent); the seasonal factors :data:`TRUTH` are added on the log scale.
     """
-    base = _ar1_simulated(n, phi=phi if errors == "ar1" else 0.0, sigma=sigma, seed=seed, t=t)
+    base = simulated_ar1(n, phi=phi if errors == "ar1" else 0.0, sigma=sigma, seed=seed, t=t)
     m = 4 if axis is QUARTERS else 12
     season = np.resize(TRUTH, m) - np.resize(TRUTH, m).mean()
     values = base.values * np.exp(season[base.t % m])
