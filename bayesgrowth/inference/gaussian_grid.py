@@ -115,10 +115,26 @@ class SigmaGridPosterior:
         idx = rng.choice(self.sigma.size, size=n, p=self.weight)
         jitter = (rng.random(n) - 0.5) * self.cell
         sigma = self.sigma[idx] * np.exp(jitter)
-        chol = np.linalg.cholesky(self.cov[idx] + 1e-300 * np.eye(self.cov.shape[1]))
+        used, inverse = np.unique(idx, return_inverse=True)
+        root = _roots(self.cov[used])[inverse]
         z = rng.standard_normal((n, self.cov.shape[1]))
-        beta = self.mean[idx] + np.einsum("nij,nj->ni", chol, z)
+        beta = self.mean[idx] + np.einsum("nij,nj->ni", root, z)
         return beta, sigma
+
+
+def _roots(cov: np.ndarray) -> np.ndarray:
+    """Matrices ``R`` with ``R R' = cov`` for a stack of covariances: Cholesky factors.
+
+    With more coefficients than observations and a tiny ``sigma`` a covariance is
+    singular to rounding (its eigenvalues span more than the 16 digits of a double), and
+    Cholesky may meet a pivot rounded below zero; then ``V diag(sqrt(l))`` from the
+    eigendecompositions ``V diag(l) V'``, with eigenvalues rounded below zero set to zero.
+    """
+    try:
+        return np.linalg.cholesky(cov + 1e-300 * np.eye(cov.shape[-1]))
+    except np.linalg.LinAlgError:
+        ev, evec = np.linalg.eigh(0.5 * (cov + np.swapaxes(cov, -1, -2)))
+        return evec * np.sqrt(np.clip(ev, 0.0, None))[..., None, :]
 
 
 def _log_post(
@@ -161,6 +177,31 @@ def _log_post(
     return logp, mean, cov
 
 
+def _dual_form(X, y, m0, P0, conditional: bool):
+    """Eigendecomposition of ``X V0 X'`` and the residual in its basis (proper priors only).
+
+    With no more observations than coefficients the data can be fitted exactly, and the
+    posterior of ``sigma`` near zero is a difference of terms of size ``1/sigma^2`` that
+    rounding destroys. In data space nothing cancels: the log values are ``N(X m0,
+    sigma^2 I + X V0 X')`` (or ``sigma^2 (I + X V0 X')`` with ``conditional``), and ``X V0
+    X'`` is of full rank when ``X`` has at least as many columns as rows. ``None`` when
+    the prior is improper (flat directions).
+    """
+    if not np.all(np.linalg.eigvalsh(P0) > 0):
+        return None
+    d, u = np.linalg.eigh(X @ np.linalg.solve(P0, X.T))
+    return np.clip(d, 0.0, None), u.T @ (y - X @ m0), conditional
+
+
+def _log_marginal_dual(log_sigma: np.ndarray, dual, log_prior) -> np.ndarray:
+    """``log p(sigma) + log p(y | sigma)`` from :func:`_dual_form` (same as :func:`_log_post`)."""
+    d, z, conditional = dual
+    s2 = np.exp(2 * log_sigma)[:, None]
+    var = s2 * (1 + d) if conditional else s2 + d
+    return (log_prior(np.exp(log_sigma)) - 0.5 * d.size * np.log(2 * np.pi)
+            - 0.5 * np.log(var).sum(axis=1) - 0.5 * (z**2 / var).sum(axis=1))
+
+
 def linear_gaussian_posterior(
     X: np.ndarray,
     y: np.ndarray,
@@ -201,11 +242,14 @@ def linear_gaussian_posterior(
     n = y.size
     XtX, Xty, yty = X.T @ X, X.T @ y, float(y @ y)
     args = (XtX, Xty, yty, n, m0, P0, log_prior_sigma, conditional)
+    dual = _dual_form(X, y, m0, P0, conditional) if n <= X.shape[1] else None
 
     lo, hi = np.log(sigma_bounds[0]), np.log(sigma_bounds[1])
     coarse = np.linspace(lo, hi, _COARSE)
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         lp, _, _ = _log_post(coarse, *args)
+        if dual is not None:
+            lp = _log_marginal_dual(coarse, dual, log_prior_sigma)
     lp = np.where(np.isfinite(lp), lp, -np.inf)
     keep = np.flatnonzero(lp > lp.max() - _DROP)
     step = coarse[1] - coarse[0]
@@ -215,6 +259,8 @@ def linear_gaussian_posterior(
     cell = fine[1] - fine[0]
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         lp, mean, cov = _log_post(fine, *args)
+        if dual is not None:
+            lp = _log_marginal_dual(fine, dual, log_prior_sigma)
     lp = np.where(np.isfinite(lp), lp, -np.inf)
     # Density in log sigma carries the Jacobian sigma.
     lw = lp + fine

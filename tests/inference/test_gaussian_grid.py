@@ -120,3 +120,52 @@ def test_draws_reproduce_grid_moments(rng):
     np.testing.assert_allclose(beta.std(0), sd, rtol=0.01)
     assert sigma.mean() == pytest.approx(post.sigma_moment(1), rel=0.005)
     assert np.quantile(sigma, 0.9) == pytest.approx(post.sigma_quantile(0.9), rel=0.01)
+
+
+def test_draws_when_covariances_are_singular_to_rounding():
+    # More coefficients than observations (three quarters; level, growth and three seasonal
+    # coordinates): at the grid's tiny sigma the coefficients' covariance is singular to
+    # rounding and Cholesky fails on it. The draws must still be N(mean, cov) given the cell:
+    # their mean is the posterior mean (law of total expectation) within Monte Carlo error.
+    from bayesgrowth.inference.gaussian_grid import _roots
+
+    rng = np.random.default_rng(2)
+    X = np.column_stack([np.ones(3), np.arange(3.0), rng.normal(size=(3, 3))])
+    post = linear_gaussian_posterior(X, np.log([100.0, 110.0, 121.0]), np.zeros(5),
+                                     np.diag([0.25, 4.0, 16.0, 16.0, 16.0]),
+                                     lambda s: stats.halfnorm(scale=0.5).logpdf(s))
+    with pytest.raises(np.linalg.LinAlgError):
+        np.linalg.cholesky(post.cov + 1e-300 * np.eye(5))
+    root = _roots(post.cov)
+    # R R' is the covariance made exactly symmetric: the inverse of a precision matrix this
+    # ill-conditioned is symmetric only to its rounding noise
+    sym = 0.5 * (post.cov + np.swapaxes(post.cov, 1, 2))
+    scale = np.abs(post.cov).max()
+    assert np.abs(post.cov - sym).max() < 1e-6 * scale
+    np.testing.assert_allclose(root @ np.swapaxes(root, 1, 2), sym, rtol=0, atol=1e-12 * scale)
+    beta, _ = post.sample(40_000, np.random.default_rng(3))
+    se = np.sqrt(np.diag(post.beta_cov()) / beta.shape[0])
+    assert np.all(np.abs(beta.mean(axis=0) - post.beta_mean()) < 4 * se)
+
+
+def test_no_more_observations_than_coefficients_weighs_sigma_by_the_marginal_density():
+    # Three observations, five coefficients: the data can be fitted exactly, and the weight of
+    # each sigma must still be the density of the log values, N(X m0, sigma^2 I + X V0 X')
+    # (scipy.stats.multivariate_normal), times the prior, down to the grid's smallest sigma.
+    from bayesgrowth.inference.gaussian_grid import _dual_form, _log_marginal_dual
+
+    rng = np.random.default_rng(2)
+    X = np.column_stack([np.ones(3), np.arange(3.0), rng.normal(size=(3, 3))])
+    y, m0 = np.log([100.0, 110.0, 121.0]), np.array([4.0, 0.1, 0.0, 0.0, 0.0])
+    P0 = np.diag([0.25, 4.0, 16.0, 16.0, 16.0])
+    prior = stats.halfnorm(scale=0.5).logpdf
+    sigma = np.array([1e-6, 1e-3, 0.05, 1.0])
+    mine = _log_marginal_dual(np.log(sigma), _dual_form(X, y, m0, P0, False), prior)
+    V0 = np.linalg.inv(P0)
+    ref = [prior(s) + stats.multivariate_normal(X @ m0, s**2 * np.eye(3) + X @ V0 @ X.T).logpdf(y)
+           for s in sigma]
+    np.testing.assert_allclose(mine, ref, rtol=1e-10)
+    post = linear_gaussian_posterior(X, y, m0, P0, prior)
+    # the likelihood is flat as sigma -> 0, so the posterior there follows the prior:
+    # nowhere near all of its mass at the grid's floor
+    assert post.weight[post.sigma < 1e-4].sum() < 1e-3
