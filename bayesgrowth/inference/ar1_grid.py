@@ -39,7 +39,7 @@ from scipy.special import betaln
 from bayesgrowth.config import DEFAULT_CHAINS, DEFAULT_DRAWS
 from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.inference.diagnostics import Diagnostics
-from bayesgrowth.inference.fit import Fit
+from bayesgrowth.inference.fit import Fit, as_chains
 from bayesgrowth.models import linear
 from bayesgrowth.models.spec import ModelSpec
 from bayesgrowth.priors import ResolvedPriors
@@ -203,12 +203,11 @@ def fit_ar1_exact(series: GrowthSeries, priors: ResolvedPriors, spec: ModelSpec,
     sigma, phi = post.sample(n, rng)
     flat = linear.draw_curve_coefficients(spec, priors, {"sigma": sigma, "phi": phi}, series.t,
                                           series.log_values, series.axis, rng, seasons=True)
-    posterior = {k: np.asarray(flat[k]).reshape(chains, draws, *np.shape(flat[k])[1:])
-                 for k in spec.parameters() + spec.vector_parameters()}
+    posterior = as_chains(flat, spec.parameters() + spec.vector_parameters(), chains, draws)
     nodes = int(post.weight.size)
-    diagnostics = Diagnostics.from_values(
-        1.0, n, n, 0, method=f"exact posterior on a {nodes}-node grid over the noise scale "
-        "and the persistence, independent draws: no chains to check")
+    diagnostics = Diagnostics.independent(
+        n, f"exact posterior on a {nodes}-node grid over the noise scale and the persistence, "
+        "independent draws: no chains to check")
     return Fit(series=series, priors=priors, engine="exact", seed=seed, posterior=posterior,
                diagnostics=diagnostics, spec=spec,
                settings={"draws": draws, "chains": chains, "grid_nodes": nodes})

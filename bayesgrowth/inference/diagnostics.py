@@ -61,6 +61,11 @@ class Diagnostics:
             problems=tuple(problems),
         )
 
+    @classmethod
+    def independent(cls, n: int, method: str) -> Diagnostics:
+        """For ``n`` independent draws of an exact posterior: no chains to disagree."""
+        return cls.from_values(1.0, n, n, 0, method=method)
+
     def warn_if_failed(self) -> None:
         """Raise a :class:`SamplingWarning` naming every failed check."""
         if not self.ok:

@@ -18,7 +18,7 @@ import numpy as np
 from bayesgrowth.config import DEFAULT_CHAINS, DEFAULT_DRAWS
 from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.inference.diagnostics import Diagnostics
-from bayesgrowth.inference.fit import Fit
+from bayesgrowth.inference.fit import Fit, as_chains
 from bayesgrowth.inference.gaussian_grid import SigmaGridPosterior, linear_gaussian_posterior
 from bayesgrowth.models import linear
 from bayesgrowth.models.spec import ModelSpec
@@ -93,11 +93,9 @@ def fit_exact(
     beta[:, var0 > 0] = free
     flat = linear.split_coefficients(spec, beta, m, priors.fixed_initial, priors.log_a_mu)
     flat["sigma"] = sigma
-    posterior = {k: flat[k].reshape(chains, draws, *flat[k].shape[1:])
-                 for k in spec.parameters() + spec.vector_parameters()}
-    diagnostics = Diagnostics.from_values(
-        1.0, n, n, 0, method="exact posterior, independent draws: no chains to check"
-    )
+    posterior = as_chains(flat, spec.parameters() + spec.vector_parameters(), chains, draws)
+    diagnostics = Diagnostics.independent(
+        n, "exact posterior, independent draws: no chains to check")
     return Fit(
         series=series,
         priors=priors,

@@ -19,6 +19,14 @@ from bayesgrowth.priors import ResolvedPriors
 __all__ = ["Fit"]
 
 
+def as_chains(flat: dict, names, chains: int, draws: int) -> dict:
+    """The flat draws named ``names`` as ``(chains, draws, ...)`` arrays, the NUTS engine's shape.
+
+    For the exact engines, whose draws are independent: the chains are only blocks.
+    """
+    return {k: np.asarray(flat[k]).reshape(chains, draws, *np.shape(flat[k])[1:]) for k in names}
+
+
 @dataclass
 class Fit:
     """A fitted growth model.

@@ -369,7 +369,7 @@ def fit_state_space(series, priors, spec, *, seed: int, draws: int = 1000, chain
     Fit
     """
     from bayesgrowth.inference.diagnostics import Diagnostics
-    from bayesgrowth.inference.fit import Fit
+    from bayesgrowth.inference.fit import Fit, as_chains
 
     post = state_space_posterior(series, priors, spec)
     rng = stream(seed, "posterior_completion")
@@ -377,17 +377,15 @@ def fit_state_space(series, priors, spec, *, seed: int, draws: int = 1000, chain
     nodes, flat = post.sample(n, rng)
     latest = flat.pop("latest_log_growth")
     shape = (chains, draws)
-    posterior = {k: v.reshape(*shape, *v.shape[1:]) for k, v in flat.items()
-                 if k in spec.parameters() or k == "season"}
+    posterior = as_chains(flat, [k for k in flat if k in spec.parameters() or k == "season"],
+                          chains, draws)
     settled = ("its forecast quantiles moved by less than 2% of their 10-90 width at the last "
                "refinement" if post.last_move <= _SETTLE else
                f"its forecast quantiles still moved by {100 * post.last_move:.1f}% of their 10-90 "
                "width at the last refinement allowed")
-    diagnostics = Diagnostics.from_values(
-        1.0, n, n, 0,
-        method=f"exact posterior on a {post.grid_points}-point-per-dimension grid "
-        f"({post.n_nodes} nodes; {settled}), independent draws: no chains to check",
-    )
+    diagnostics = Diagnostics.independent(
+        n, f"exact posterior on a {post.grid_points}-point-per-dimension grid "
+        f"({post.n_nodes} nodes; {settled}), independent draws: no chains to check")
     settings = {"draws": draws, "chains": chains, "grid_points": post.grid_points,
                 "grid_nodes": post.n_nodes, "grid_last_move": post.last_move}
     return Fit(series=series, priors=priors, engine="exact", seed=seed, posterior=posterior,
