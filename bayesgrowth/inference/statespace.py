@@ -33,13 +33,13 @@ import math
 import numpy as np
 
 from bayesgrowth.inference import statespace_grid as grid
+from bayesgrowth.inference.mixture import heaviest, mixture_quantiles
 from bayesgrowth.inference.statespace_nodes import Context, design, growth_loading, innovations
 from bayesgrowth.models import linear
 from bayesgrowth.seeds import stream
 
 __all__ = ["StateSpacePosterior", "state_space_posterior"]
 
-_PRUNE = 1e-10  # nodes below this weight are dropped after normalising
 _SETTLE = 0.02  # quantiles settled when they move less than 2% of the 10-90 width
 _MAX_MOVES = 8  # tighter boxes before the grid is refined anyway
 _PROBE = np.array([0.1, 0.5, 0.9])
@@ -67,7 +67,9 @@ class StateSpacePosterior:
 
     def __init__(self, ctx, spec, axis, t_ref, nodes: dict, weight, branch_weight,
                  log_evidence, grid_points):
-        keep = weight >= _PRUNE * weight.max()
+        # the nodes holding all but 1e-5 of the mass, the components the mixture quantiles
+        # keep anyway: every later step (predictive, draws, bands) costs half as much
+        keep = np.sort(heaviest(weight))
         self._ctx, self.spec, self._axis, self.t_ref = ctx, spec, axis, int(t_ref)
         self.weight = weight[keep] / weight[keep].sum()
         sel = {k: v[keep] for k, v in nodes.items()}
@@ -294,13 +296,10 @@ def _context(spec, priors, series) -> Context:
 
 
 def _probe_quantiles(post: StateSpacePosterior, t_probe: np.ndarray) -> np.ndarray:
-    from bayesgrowth.inference.mixture import heaviest, mixture_quantiles
-
-    keep = heaviest(post.weight)  # the components the quantiles would keep anyway
-    pred = post.predictive(t_probe, joint=False, nodes=keep)
+    pred = post.predictive(t_probe, joint=False)
     # a tolerance of 1e-6 of the log value: the check compares to 2% of the band
-    return mixture_quantiles(post.weight[keep] / post.weight[keep].sum(), pred["mean"],
-                             np.sqrt(pred["value_var"]), _PROBE, tol=1e-6)
+    return mixture_quantiles(post.weight, pred["mean"], np.sqrt(pred["value_var"]), _PROBE,
+                             tol=1e-6)
 
 
 def state_space_posterior(series, priors, spec, *, max_refinements: int = 3):
