@@ -29,6 +29,7 @@ from realdata_data import SeriesRecord, count_table
 from realdata_methods import (
     arima011,
     bayesgrowth_method,
+    drifting_seasons_method,
     ets_damped,
     rw_drift,
     shared_prior_method,
@@ -62,6 +63,8 @@ METHODS = {
                                       seasonal="auto"),
     "adaptive": bayesgrowth_method(engine="exact", model="local-trend", drift="adaptive",
                                    seasonal="auto"),
+    # the default with drifting seasonal factors where it fits seasons
+    "default-drifting": drifting_seasons_method(),
     # the default with its prior scales learned per frequency (benchmarks/shared_prior.py)
     "shared-prior": shared_prior_method(),
 }

@@ -51,6 +51,7 @@ __all__ = [
     "arima011",
     "bayesgrowth_method",
     "deseasonalised",
+    "drifting_seasons_method",
     "ets_damped",
     "growth_series",
     "is_seasonal",
@@ -256,6 +257,22 @@ def bayesgrowth_method(**fit_kwargs) -> Callable[[np.ndarray, int, int], Predict
             warnings.simplefilter("ignore")
             fit = fit_series(growth_series(values, period), **{**settings, "seed": seed})
             return SamplePredictive(forecast(fit, h).draws)
+
+    return method
+
+
+def drifting_seasons_method() -> Callable[[np.ndarray, int, int], Predictive]:
+    """The default model with drifting seasonal factors wherever it would fit seasons.
+
+    ``seasonal="auto"`` fits seasonal factors on quarterly and monthly series with two
+    full years observed; there this method lets them drift (``seasonal="drifting"``),
+    elsewhere it is the default itself.
+    """
+    drifting, plain = bayesgrowth_method(seasonal="drifting"), bayesgrowth_method()
+
+    def method(train: np.ndarray, h: int, period: int) -> Predictive:
+        seasons = period in (4, 12) and np.asarray(train).size >= 2 * period
+        return (drifting if seasons else plain)(train, h, period)
 
     return method
 

@@ -187,12 +187,14 @@ def _add_model_choice(p: argparse.ArgumentParser) -> None:
     )
     m.add_argument(
         "--seasonal",
-        choices=("auto", "yes", "no"),
+        choices=("auto", "yes", "no", "drifting"),
         nargs="?",
         const="yes",
         default=DEFAULT_MODEL["seasonal"],
         help="seasonal factors (quarterly or monthly data). auto: for the local trend when at "
-        "least two full years are observed; other curves only with 'yes' [auto]",
+        "least two full years are observed; other curves only with 'yes'. drifting: "
+        "local-trend only, seasonal factors that drift slowly over the years (a seasonal "
+        "random walk; slower to fit, several seconds for a long monthly series) [auto]",
     )
     m.add_argument(
         "--drift",
@@ -272,12 +274,15 @@ def model_options_from_args(args) -> dict:
 def spec_from_options(options: dict):
     """The :class:`ModelSpec` of the options, ``seasonal="auto"`` read as no seasons.
 
+    ``"drifting"`` is kept, so a curve without states is refused before any work.
+
     Enough to check what an engine can fit before any series is read.
     """
     from bayesgrowth.models.spec import ModelSpec
 
     try:
-        return ModelSpec(**{**options, "seasonal": options["seasonal"] is True})
+        seasonal = options["seasonal"] if options["seasonal"] in (True, "drifting") else False
+        return ModelSpec(**{**options, "seasonal": seasonal})
     except ValueError as exc:
         raise UsageError(f"model options: {exc}") from None
 

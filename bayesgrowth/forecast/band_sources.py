@@ -9,7 +9,8 @@ within a node the variance is a sum of independent parts (see
   growth, seasons) and the filtered deviation of today's level and growth, i.e.
   not knowing where the series stands and how fast it grows now;
 * ``sigma_level^2 h + sigma_growth^2 sum_{k=1..h} ((1 - rho^k) / (1 - rho))^2``: the
-  shocks to the level and the drift of the growth rate between now and step ``h``;
+  shocks to the level and the drift of the growth rate between now and step ``h``
+  (with drifting seasons, also the seasonal shocks, counted with them);
 * ``sigma^2``: the noise of a single period around the trend.
 
 By the law of total variance the mixture's variance is the weighted mean of the
@@ -38,11 +39,12 @@ SOURCE_LABELS = {
 }
 
 
-def shock_variance(params: dict, steps: np.ndarray) -> np.ndarray:
+def shock_variance(params: dict, steps: np.ndarray, seasons: int = 0) -> np.ndarray:
     """Variance added by future level shocks and growth drift, ``(G, H)``.
 
     A growth shock ``k`` periods before step ``h`` (counting itself) loads
-    ``(1 - rho^k) / (1 - rho)`` on the level (``k`` when ``rho = 1``).
+    ``(1 - rho^k) / (1 - rho)`` on the level (``k`` when ``rho = 1``). With drifting
+    seasons (``sigma_season`` in ``params``, ``seasons`` of them) their shocks add too.
     """
     rho = params["rho"][:, None]
     k = np.arange(1, int(steps.max()) + 1, dtype=float)[None, :]
@@ -50,7 +52,12 @@ def shock_variance(params: dict, steps: np.ndarray) -> np.ndarray:
         load = np.where(rho == 1.0, k, (1 - rho**k) / (1 - rho))
     growth = params["sigma_growth"][:, None] ** 2 * np.cumsum(load**2, axis=1)[:, steps - 1]
     level = params["sigma_level"][:, None] ** 2 * steps[None, :].astype(float)
-    return growth + level
+    if "sigma_season" not in params:
+        return growth + level
+    from bayesgrowth.inference.kalman_season import impulse
+
+    psi2 = np.cumsum(impulse(seasons, int(steps.max())) ** 2)[steps - 1]
+    return growth + level + params["sigma_season"][:, None] ** 2 * psi2[None, :]
 
 
 def variance_parts(post, t_future: np.ndarray, t_last: int) -> dict:
@@ -76,7 +83,7 @@ def variance_parts(post, t_future: np.ndarray, t_last: int) -> dict:
         raise ValueError("the periods must all lie after the last observation")
     pred = post.predictive(np.asarray(t_future), joint=False)
     w, p = post.weight, post.params
-    shocks = shock_variance(p, steps)
+    shocks = shock_variance(p, steps, post._ctx.n_seasons)
     noise = np.broadcast_to(p["sigma"][:, None] ** 2, shocks.shape)
     within_est = pred["curve_var"] - shocks  # coefficients and filtered state
     centre = w @ pred["mean"]

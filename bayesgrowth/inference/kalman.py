@@ -30,7 +30,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-__all__ = ["FilterResult", "augmented_filter", "gram_filter", "integrate_compiled", "transition"]
+__all__ = ["FilterResult", "augmented_filter", "gram_filter", "integrate_compiled", "run_filter",
+           "transition"]
 
 
 @dataclass(frozen=True)
@@ -102,17 +103,25 @@ def augmented_filter(
     -------
     FilterResult
     """
+    t, q = transition(rho, sigma_level, sigma_growth)
+    return run_filter(data, grid_index, t, q, sigma)
+
+
+def run_filter(data, grid_index, t, q, sigma, z=None) -> FilterResult:
+    """The augmented filter for transitions ``t`` and shock covariances ``q`` ``(G, r, r)``.
+
+    The observation loads the state by ``z`` (default: the first state alone, the
+    level deviation). See :func:`augmented_filter` for the other arguments.
+    """
     idx = np.asarray(grid_index, dtype=int)
     if idx[0] != 0 or np.any(np.diff(idx) <= 0):
         raise ValueError("grid positions must start at 0 and increase")
     sigma2 = np.asarray(sigma, dtype=float) ** 2
-    g = sigma2.size
-    n = idx.size
+    g, n, r = sigma2.size, idx.size, t.shape[-1]
     data = np.asarray(data, dtype=float)
     k = data.shape[-1]
-    t, q = transition(rho, sigma_level, sigma_growth)
-    a = np.zeros((g, 2, k))
-    p = np.zeros((g, 2, 2))
+    a = np.zeros((g, r, k))
+    p = np.zeros((g, r, r))
     innov = np.empty((g, n, k))
     var = np.empty((g, n))
     j_prev = 0
@@ -122,9 +131,10 @@ def augmented_filter(
             p = t @ p @ np.swapaxes(t, 1, 2) + q
         j_prev = j
         row = data[..., i, :]
-        v = row - a[:, 0, :]
-        f = p[:, 0, 0] + sigma2
-        gain = p[:, :, 0] / f[:, None]
+        v = row - (a[:, 0, :] if z is None else z @ a)
+        pz = p[:, :, 0] if z is None else p @ z
+        f = (pz[:, 0] if z is None else pz @ z) + sigma2
+        gain = pz / f[:, None]
         a = a + gain[:, :, None] * v[:, None, :]
         p = p - gain[:, :, None] * gain[:, None, :] * f[:, None, None]
         innov[:, i, :] = v

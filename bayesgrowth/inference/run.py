@@ -49,10 +49,11 @@ def fit_series(
         Whether deviations from the curve persist (AR(1) on the log scale).
     noise : {"normal", "student-t"}
         Noise distribution; Student-t tolerates outlying periods.
-    seasonal : bool or "auto"
+    seasonal : bool, "auto" or "drifting"
         Multiplicative seasonal factors (quarterly or monthly data); ``"auto"`` uses
         them for the local trend when the calendar has seasons and two full years
-        are observed.
+        are observed; ``"drifting"`` (local trend only) lets them drift slowly, a
+        seasonal random walk around them (see :class:`ModelSpec`).
     drift : {"random-walk", "mean-reverting"}
         For ``local-trend``: how the growth rate drifts.
     **settings

@@ -33,8 +33,9 @@ import math
 import numpy as np
 
 from bayesgrowth.inference import statespace_grid as grid
+from bayesgrowth.inference import statespace_paths as paths
 from bayesgrowth.inference.mixture import heaviest, mixture_quantiles
-from bayesgrowth.inference.statespace_nodes import Context, design, growth_loading, innovations
+from bayesgrowth.inference.statespace_nodes import Context, innovations
 from bayesgrowth.models import linear
 from bayesgrowth.seeds import stream
 
@@ -51,7 +52,8 @@ class StateSpacePosterior:
     Attributes
     ----------
     params : dict of numpy.ndarray
-        Per node: ``sigma``, ``sigma_level``, ``sigma_growth``, ``rho``, ``half_life``
+        Per node: ``sigma``, ``sigma_level``, ``sigma_growth``, (drifting seasons)
+        ``sigma_season``, ``rho``, ``half_life``
         (``inf`` where growth drifts freely).
     weight : numpy.ndarray
         Posterior probability of each node (sums to 1).
@@ -73,8 +75,8 @@ class StateSpacePosterior:
         self._ctx, self.spec, self._axis, self.t_ref = ctx, spec, axis, int(t_ref)
         self.weight = weight[keep] / weight[keep].sum()
         sel = {k: v[keep] for k, v in nodes.items()}
-        self.params = {k: sel[k] for k in ("sigma", "sigma_level", "sigma_growth", "rho",
-                                           "half_life")}
+        self.params = {k: sel[k] for k in ("sigma", "sigma_level", "sigma_growth",
+                                           "sigma_season", "rho", "half_life") if k in sel}
         self.beta_mean, self.beta_cov = sel["beta_mean"], sel["beta_cov"]
         # each node's cell on the grid (width, and whether in logs), for :meth:`spread`
         self._cells = {n: (sel[f"cell_{n}"], sel[f"cell_log_{n}"]) for n in grid.CELL_NAMES
@@ -118,84 +120,21 @@ class StateSpacePosterior:
         dict
             ``mean`` ``(G, H)``; ``curve_cov``/``value_cov`` (joint) or
             ``curve_var``/``value_var`` ``(G, H)``: the level alone, and the level
-            plus noise.
+            plus noise (see :func:`bayesgrowth.inference.statespace_paths.predictive`).
         """
-        sel = slice(None) if nodes is None else np.asarray(nodes)
-        ctx, p = self._ctx, {k: v[sel] for k, v in self.params.items()}
-        state, state_cov = self._state[sel], self._state_cov[sel]
-        beta_mean, beta_cov = self.beta_mean[sel], self.beta_cov[sel]
-        jf = np.asarray(t_future, dtype=int) - self.t_ref
-        steps = jf - int(ctx.idx[-1])
-        rho = p["rho"]
-        xf = design(ctx, rho, jf, self._season_rows(t_future))
-        z = np.stack([np.ones((rho.size, steps.size)),
-                      growth_loading(rho, steps.astype(float))], axis=-1)
-        ay, ax = state[:, :, 0], state[:, :, 1:]
-        g = xf - z @ ax
-        mean = (g @ beta_mean[..., None])[..., 0] + (z @ ay[..., None])[..., 0]
-        gb = g @ beta_cov
-        s = steps.astype(float)
-        sg2 = p["sigma_growth"] ** 2
-        sl2 = p["sigma_level"] ** 2
-        if joint:
-            # loading of the growth shock at future step i on the level at step h (i <= h)
-            d = s[:, None] - s[None, :]
-            on = (d >= 0).astype(float)
-            r = rho[:, None, None]
-            with np.errstate(divide="ignore", invalid="ignore"):
-                af = np.where(r == 1.0, d + 1, (1 - r ** (d + 1)) / (1 - r)) * on
-            cov = (gb @ np.swapaxes(g, 1, 2) + z @ state_cov @ np.swapaxes(z, 1, 2)
-                   + sg2[:, None, None] * (af @ np.swapaxes(af, 1, 2))
-                   + sl2[:, None, None] * (on @ on.T)[None])
-            noise = (p["sigma"] ** 2)[:, None, None] * np.eye(s.size)[None]
-            return {"mean": mean, "curve_cov": cov, "value_cov": cov + noise}
-        # the same diagonal without (G, H, H) arrays: a growth shock k steps before h
-        # loads (1 - rho^k) / (1 - rho) on the level, so the shocks add a cumulative sum
-        r = rho[:, None]
-        k = np.arange(1, int(s.max()) + 1, dtype=float)[None, :]
-        with np.errstate(divide="ignore", invalid="ignore"):
-            load = np.where(r == 1.0, k, (1 - r**k) / (1 - r))
-        shocks = np.cumsum(load**2, axis=1)[:, steps - 1]
-        var = ((gb * g).sum(-1) + np.einsum("ghi,gij,ghj->gh", z, state_cov, z)
-               + sg2[:, None] * shocks + sl2[:, None] * s[None, :])
-        return {"mean": mean, "curve_var": var, "value_var": var + p["sigma"][:, None] ** 2}
+        return paths.predictive(self, t_future, joint, nodes)
 
     def simulate(self, t_future: np.ndarray, nodes: np.ndarray, beta: np.ndarray,
                  rng: np.random.Generator) -> tuple[np.ndarray, np.ndarray]:
         """Joint predictive paths by running the state forward, one per ``(node, beta)``.
 
-        Given a node's parameters and ``beta``, the state at the last observation is
-        normal (the filter's), and each future period adds its shocks; memory grows
-        with draws times horizon only.
-
         Returns
         -------
         level, value : numpy.ndarray, shape (S, H)
-            Log level (the trend, seasons included) and log value (plus noise).
+            Log level (the trend, seasons included) and log value (plus noise); see
+            :func:`bayesgrowth.inference.statespace_paths.simulate`.
         """
-        ctx, p = self._ctx, {k: v[nodes] for k, v in self.params.items()}
-        jf = np.asarray(t_future, dtype=int) - self.t_ref
-        steps = jf - int(ctx.idx[-1])
-        if np.any(np.diff(np.concatenate([[0], steps])) != 1):
-            raise ValueError("simulate needs the consecutive periods after the last one")
-        state, cov = self._state[nodes], self._state_cov[nodes]
-        mean = state[:, :, 0] - np.einsum("sip,sp->si", state[:, :, 1:], beta)
-        c00 = np.sqrt(np.clip(cov[:, 0, 0], 0, None))
-        c10 = np.where(c00 > 0, cov[:, 1, 0] / np.where(c00 > 0, c00, 1), 0.0)
-        c11 = np.sqrt(np.clip(cov[:, 1, 1] - c10**2, 0, None))
-        z = rng.standard_normal((2, nodes.size))
-        dev = mean[:, 0] + c00 * z[0]
-        grow = mean[:, 1] + c10 * z[0] + c11 * z[1]
-        season = self._season_rows(t_future)
-        level = np.empty((nodes.size, steps.size))
-        rho = p["rho"]
-        for h in range(steps.size):
-            grow = rho * grow + p["sigma_growth"] * rng.standard_normal(nodes.size)
-            dev = dev + grow + p["sigma_level"] * rng.standard_normal(nodes.size)
-            x = design(ctx, rho, jf[h:h + 1], None if season is None else season[h:h + 1])
-            level[:, h] = np.einsum("sp,sp->s", x[:, 0, :], beta) + dev
-        value = level + p["sigma"][:, None] * rng.standard_normal(level.shape)
-        return level, value
+        return paths.simulate(self, t_future, nodes, beta, rng)
 
     def latest_growth(self) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         """Growth (log scale) in the last observed period: loading on ``beta``, shift, variance.
@@ -292,7 +231,8 @@ def _context(spec, priors, series) -> Context:
     season, m = linear.season_rows(spec, series.axis, t)
     mu0, var0 = linear.linear_prior(spec, priors, m)
     return Context(idx=t - int(priors.t_ref), y=series.log_values, season=season, mu0=mu0,
-                    var0=var0, long_run=linear.uses_long_run(spec), n_seasons=m)
+                   var0=var0, long_run=linear.uses_long_run(spec), n_seasons=m,
+                   season_drift=spec.season_drift)
 
 
 def _probe_quantiles(post: StateSpacePosterior, t_probe: np.ndarray) -> np.ndarray:

@@ -21,12 +21,12 @@ from bayesgrowth.inference.theta import ThetaDim, rho_of, theta_dims
 __all__ = ["Branch", "CELL_NAMES", "COARSE", "FINE", "branches", "locate", "moved", "on_grid",
            "shrink"]
 
-COARSE = {False: 6, True: 5}  # points per dimension of the locating grid (3-D, 4-D)
+COARSE = {False: 6, True: 5}  # points per dimension of the locating grid (3-D, 4-D or 5-D)
 FINE = {False: 8, True: 6}  # and of the weighting grid
 _KEEP = 15.0  # coarse-grid cells within e^-15 of the best bound the fine box
 _MASS = 1e-4  # a fine-grid cell row with less marginal mass than this leaves the box
 #: The parameters a grid may span (:meth:`Branch.cells` reports a cell width for each).
-CELL_NAMES = ("sigma", "sigma_level", "sigma_growth", "half_life")
+CELL_NAMES = ("sigma", "sigma_level", "sigma_growth", "sigma_season", "half_life")
 
 
 @dataclass
@@ -123,11 +123,12 @@ def shrink(branch: Branch, weight: np.ndarray, k: int) -> list[tuple[float, floa
 
 def branches(spec, priors) -> list[Branch]:
     """The node families of a local trend: drifting, fading, or both with half the mass each."""
+    drifts = getattr(spec, "season_drift", False)
     if spec.drift == "adaptive":
-        return [Branch(theta_dims(priors, False), False, 0.5),
-                Branch(theta_dims(priors, True), True, 0.5)]
+        return [Branch(theta_dims(priors, False, drifts), False, 0.5),
+                Branch(theta_dims(priors, True, drifts), True, 0.5)]
     fades = spec.drift == "mean-reverting"
-    return [Branch(theta_dims(priors, fades), fades, 1.0)]
+    return [Branch(theta_dims(priors, fades, drifts), fades, 1.0)]
 
 
 def on_grid(ctx, branches, k_of) -> tuple[dict, np.ndarray, dict, float, list]:

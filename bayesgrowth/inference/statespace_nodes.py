@@ -1,12 +1,14 @@
 """The local trend's likelihood at each node of ``theta``: filter, then integrate ``beta``.
 
-Per node (one value of the noise, level-shock and growth-drift scales and the growth
-persistence) the augmented Kalman filter of :mod:`bayesgrowth.inference.kalman` filters
-the log values and the columns of the mean-path design at once; the linear
-coefficients ``beta`` (starting level, starting growth, long-run growth, seasonal
-factors) are then integrated out against their normal prior in closed form
-(:func:`integrate`). Everything carries a leading node axis, so one call evaluates a
-whole grid. :mod:`bayesgrowth.inference.statespace` builds the grid and the posterior.
+Per node (one value of the noise, level-shock and growth-drift scales, the growth
+persistence and, with drifting seasons, the seasonal drift's scale) the augmented
+Kalman filter of :mod:`bayesgrowth.inference.kalman` (with drifting seasons,
+:mod:`bayesgrowth.inference.kalman_season`) filters the log values and the columns of the
+mean-path design at once; the linear coefficients ``beta`` (starting level, starting
+growth, long-run growth, seasonal factors) are then integrated out against their normal
+prior in closed form (:func:`integrate`). Everything carries a leading node axis, so one
+call evaluates a whole grid. :mod:`bayesgrowth.inference.statespace` builds the grid and the
+posterior.
 """
 
 from __future__ import annotations
@@ -18,6 +20,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from bayesgrowth.inference.kalman import augmented_filter, gram_filter, integrate_compiled
+from bayesgrowth.inference.kalman_season import gram_filter_season, season_filter
 
 __all__ = ["Context", "design", "evaluate", "growth_loading", "innovations", "integrate",
            "use_compiled"]
@@ -34,6 +37,7 @@ class Context:
     var0: np.ndarray
     long_run: bool  # the design has a long-run growth column
     n_seasons: int
+    season_drift: bool = False  # the seasonal factors drift (the deviation in the state)
 
 
 def growth_loading(rho: np.ndarray, j: np.ndarray) -> np.ndarray:
@@ -107,12 +111,19 @@ def use_compiled(work: int) -> bool:
 
 def evaluate(ctx: Context, params: dict) -> dict:
     """Filter every node and integrate ``beta`` out."""
-    if not use_compiled(params["sigma"].size * ctx.y.size):
+    states = ctx.n_seasons + 1 if ctx.season_drift else 2
+    if not use_compiled(params["sigma"].size * ctx.y.size * states**2 // 4):
         res = _filter(ctx, params)
         v, f, state, state_cov = res.innovations, res.variance, res.state, res.state_cov
         gram = np.einsum("gni,gnj->gij", v / f[..., None], v)
         logf = np.log(f).sum(axis=1)
         loglik, bm, bc = integrate(gram, logf, ctx.y.size, ctx)
+    elif ctx.season_drift:
+        gram, logf, state, state_cov = gram_filter_season(
+            ctx.y, ctx.season, ctx.idx, params["rho"], params["sigma_level"],
+            params["sigma_growth"], params["sigma"], params["sigma_season"], ctx.n_seasons,
+            ctx.long_run)
+        loglik, bm, bc = integrate_compiled(gram, logf, ctx.y.size, ctx.mu0, ctx.var0)
     else:
         gram, logf, state, state_cov = gram_filter(
             ctx.y, ctx.season, ctx.idx, params["rho"], params["sigma_level"],
@@ -127,6 +138,10 @@ def _filter(ctx: Context, params: dict):
     x = design(ctx, params["rho"], ctx.idx, ctx.season)
     data = np.concatenate([np.broadcast_to(ctx.y, (x.shape[0], ctx.y.size))[..., None], x],
                           axis=-1)
+    if ctx.season_drift:
+        return season_filter(data, ctx.idx, params["rho"], params["sigma_level"],
+                             params["sigma_growth"], params["sigma"], params["sigma_season"],
+                             ctx.n_seasons)
     return augmented_filter(data, ctx.idx, params["rho"], params["sigma_level"],
                             params["sigma_growth"], params["sigma"])
 

@@ -12,6 +12,8 @@ the same question.
   priors.level_shock_scale``, absent when ``s = 0``;
 * ``sigma_growth`` (growth drift): Gamma(2, 2/s) with mean ``s =
   priors.growth_drift_scale``;
+* ``sigma_season`` (drifting seasonal factors only): Gamma(2, 2/s) with mean ``s =
+  priors.season_drift_scale``;
 * ``half_life`` (mean-reverting growth only): log-normal with log-median
   ``priors.log_h_mu`` and log-sd ``priors.log_h_sd``; the persistence is
   ``rho = 2^(-1/half_life)``.
@@ -120,12 +122,14 @@ class _LogNormal:
         return np.exp(self.mu + self.sd * ndtri(np.asarray(q, dtype=float)))
 
 
-def theta_dims(priors, mean_reverting: bool) -> list[ThetaDim]:
+def theta_dims(priors, mean_reverting: bool, season_drift: bool = False) -> list[ThetaDim]:
     """The grid dimensions for a local trend with these resolved priors."""
     dims = [ThetaDim("sigma", _HalfNormal(priors.sigma_scale))]
     if priors.level_shock_scale > 0:
         dims.append(ThetaDim("sigma_level", _Gamma2(priors.level_shock_scale)))
     dims.append(ThetaDim("sigma_growth", _Gamma2(priors.growth_drift_scale)))
+    if season_drift:
+        dims.append(ThetaDim("sigma_season", _Gamma2(priors.season_drift_scale)))
     if mean_reverting:
         dims.append(ThetaDim("half_life", _LogNormal(priors.log_h_mu, priors.log_h_sd),
                              linear_fine=False))

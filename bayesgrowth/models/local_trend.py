@@ -41,7 +41,7 @@ import math
 
 import numpy as np
 
-from bayesgrowth.models import linear
+from bayesgrowth.models import linear, season_drift
 from bayesgrowth.models.parameters import (
     GROWTH,
     HALF_LIFE,
@@ -122,15 +122,18 @@ def error_covariance(sigma, phi, t: np.ndarray, xp=np):
     return sigma**2 / (1 - phi**2) * phi**gap
 
 
-def _level_cov(draws, spec, n_grid, rows_a, rows_b):
-    """``sigma_growth^2 A_r A_s' + sigma_level^2 B_r B_s'`` for row sets r, s."""
+def _level_cov(draws, spec, n_grid, rows_a, rows_b, m=None):
+    """``sigma_growth^2 A_r A_s' + sigma_level^2 B_r B_s'`` (+ seasonal drift's) for rows r, s."""
     rho = np.asarray(draws["rho"]) if spec.mean_reverting else None
     a, _, b = coefficients(rho, n_grid)
     sg2 = np.asarray(draws["sigma_growth"], dtype=float)[:, None, None] ** 2
     sl2 = np.asarray(draws["sigma_level"], dtype=float)[:, None, None] ** 2
     ar, as_ = a[..., rows_a, :], a[..., rows_b, :]
     br, bs = b[rows_a], b[rows_b]
-    return sg2 * (ar @ np.swapaxes(as_, -1, -2)) + sl2 * (br @ bs.T)[None]
+    cov = sg2 * (ar @ np.swapaxes(as_, -1, -2)) + sl2 * (br @ bs.T)[None]
+    if spec.season_drift:
+        cov = cov + season_drift.drift_cov(draws, n_grid, rows_a, rows_b, m)
+    return cov
 
 
 def _chunks(draws: dict, n: int):
@@ -217,6 +220,9 @@ def _joint(spec, d: dict, idx, fidx, t_all, n_grid: int):
         [np.broadcast_to(b[rows], (s, rows.size, n_grid - 1)),
          np.zeros((s, 1, n_grid - 1))], axis=1) * sl
     lat = load_u @ np.swapaxes(load_u, -1, -2) + load_z @ np.swapaxes(load_z, -1, -2)
+    if spec.season_drift:  # the seasonal deviations load the levels, not the growth
+        w = season_drift.drift_loadings(d, n_grid, rows, extra=1)
+        lat = lat + w @ np.swapaxes(w, -1, -2)
     # add the errors: observations and future values get them, levels do not
     m = n + h
     k = n + 2 * h + 1
@@ -327,7 +333,7 @@ def draw_linear(spec, priors, draws: dict, t, log_y, axis, rng: np.random.Genera
         s = np.asarray(d["sigma"]).size
         x = design(spec, idx, d.get("rho"), rows)
         x = np.broadcast_to(x, (s, *x.shape[-2:]))
-        k = _level_cov(d, spec, n_grid, idx, idx) + error_covariance(
+        k = _level_cov(d, spec, n_grid, idx, idx, m) + error_covariance(
             d["sigma"], d.get("phi") if spec.errors == "ar1" else None, t
         )
         xv = x * var0
@@ -347,6 +353,7 @@ def draw_linear(spec, priors, draws: dict, t, log_y, axis, rng: np.random.Genera
 def _parameter_names(spec) -> tuple[str, ...]:
     fades = spec.growth_fades
     return ("log1p_g", *(("long_run",) if fades else ()), "sigma_level", "sigma_growth",
+            *(("sigma_season",) if spec.season_drift else ()),
             *(("rho", "half_life") if fades else ()))
 
 
@@ -359,6 +366,9 @@ def _prior_lines(resolved, spec) -> list[str]:
     )
     if spec.growth_fades:
         lines.append(half_life_line(resolved, "half-life of growth when it fades"))
+    if spec.season_drift:
+        pct = 100 * math.expm1(resolved.season_drift_scale)
+        lines.append(f"drifting seasons: shocks of about {pct:.3g}% per period move the factors")
     return lines
 
 
@@ -370,6 +380,7 @@ FAMILY = register(ModelFamily(
         LONG_RUN,
         Parameter("sigma_level", "sd of the per-period shocks to the log level"),
         Parameter("sigma_growth", "sd of the per-period change of the log growth rate"),
+        Parameter("sigma_season", "sd of the per-period shocks to drifting seasonal factors"),
         Parameter("rho", "per-period persistence of growth above the long-run rate"),
         HALF_LIFE,
     ),

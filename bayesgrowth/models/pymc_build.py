@@ -22,7 +22,7 @@ import math
 
 import numpy as np
 
-from bayesgrowth.models import linear, local_trend
+from bayesgrowth.models import linear, local_trend, season_drift
 from bayesgrowth.models.spec import ModelSpec, season_index
 
 __all__ = ["build_pymc_model"]
@@ -149,7 +149,8 @@ def _local_trend_likelihood(spec, priors, t, y, w, axis) -> None:
     """The local trend's scales and their likelihood, the linear coefficients integrated out.
 
     The log values are normal with mean ``X mu0`` and covariance ``K + X V X'``
-    (see :mod:`bayesgrowth.models.local_trend`); rows with weight 0 are decoupled
+    (see :mod:`bayesgrowth.models.local_trend`; drifting seasons add their deviations'
+    covariance to ``K``); rows with weight 0 are decoupled
     from the others (zero residual and covariances, unit variance), which drops
     them exactly.
     """
@@ -188,6 +189,10 @@ def _local_trend_likelihood(spec, priors, t, y, w, axis) -> None:
         x = local_trend.design(spec, idx, None, rows)
     a_o, b_o = a[idx], b[idx]
     cov = s_g**2 * pt.dot(a_o, a_o.T) + s_l**2 * (b_o @ b_o.T)
+    if spec.season_drift:  # same prior as the exact engine (bayesgrowth.inference.theta)
+        s_s = pm.Gamma("sigma_season", alpha=2.0, beta=2.0 / priors.season_drift_scale)
+        d_o = season_drift.season_coefficients(m, n_grid)[idx]
+        cov = cov + s_s**2 * (d_o @ d_o.T)
     cov = cov + local_trend.error_covariance(sigma, phi, t, xp=pt)
     cov = cov + pt.dot(x * var0, x.T)
     ww = pt.outer(w, w)

@@ -77,12 +77,17 @@ class ModelSpec:
         ``local_trend`` is accepted for ``local-trend``.
     errors : {"independent", "ar1"}
     noise : {"normal", "student-t"}
-    seasonal : bool
-        Seasonal factors (quarterly or monthly data only).
+    seasonal : bool or "drifting"
+        Seasonal factors (quarterly or monthly data only); ``"drifting"`` is short for
+        ``seasonal=True, season_drift=True``.
     drift : {"random-walk", "mean-reverting", "adaptive"}
         For ``local-trend`` only: whether the growth rate wanders freely, reverts
         to a long-run rate (growth fades with a half-life), or either, weighted by
         the evidence (``adaptive``, exact engine only).
+    season_drift : bool
+        For ``local-trend`` with seasonal factors only: the factors drift slowly, a
+        seasonal random walk around them (Harvey 1989; Durbin & Koopman 2012, sec.
+        3.2), with its own scale ``sigma_season``.
     """
 
     model: str = "exponential"
@@ -90,13 +95,22 @@ class ModelSpec:
     noise: str = "normal"
     seasonal: bool = False
     drift: str = "random-walk"
+    season_drift: bool = False
 
     def __post_init__(self) -> None:
         object.__setattr__(self, "model", model_name(self.model))
         object.__setattr__(self, "errors", _choice(self.errors, ERRORS, "errors"))
         object.__setattr__(self, "noise", _choice(self.noise, NOISES, "noise"))
         object.__setattr__(self, "drift", _choice(self.drift, DRIFTS, "drift"))
+        if isinstance(self.seasonal, str) and self.seasonal.lower() == "drifting":
+            object.__setattr__(self, "season_drift", True)  # the option's one-word form
         object.__setattr__(self, "seasonal", bool(self.seasonal))
+        object.__setattr__(self, "season_drift", bool(self.season_drift))
+        if self.season_drift and not (self.seasonal and self.family.states):
+            raise ValueError(
+                "drifting seasonal factors need the local-trend model with seasonal factors "
+                f"(they live in its states), not {self.model}"
+                + ("" if self.seasonal else " without seasons"))
         if self.family.states and self.noise == "student-t":
             raise ValueError(
                 f"the {self.model} model integrates its states in closed form and needs normal "
@@ -181,7 +195,8 @@ class ModelSpec:
         parts.append("AR(1) errors" if self.errors == "ar1" else "independent errors")
         parts.append("Student-t noise" if self.noise == "student-t" else "normal noise")
         if self.seasonal:
-            parts.append("seasonal factors")
+            parts.append("drifting seasonal factors" if self.season_drift else
+                         "seasonal factors")
         return ", ".join(parts)
 
     def to_dict(self) -> dict:
@@ -211,8 +226,11 @@ def season_index(axis, t: np.ndarray) -> tuple[int, np.ndarray]:
     return 12 // months, (ordinal % 12) // months
 
 
-def resolve_seasonal(seasonal: bool | str, axis, t, model: str = "local-trend") -> bool:
+def resolve_seasonal(seasonal: bool | str, axis, t, model: str = "local-trend") -> bool | str:
     """Whether to fit seasonal factors; ``"auto"`` decides from the calendar.
+
+    ``"drifting"`` (drifting seasonal factors, see :class:`ModelSpec`) is returned as
+    it is: seasonal factors, which drift.
 
     ``"auto"`` means seasonal factors for the families that allow it (the local
     trend) when the calendar has seasons and two full years are observed (the
@@ -228,8 +246,11 @@ def resolve_seasonal(seasonal: bool | str, axis, t, model: str = "local-trend") 
         The curve.
     """
     if isinstance(seasonal, str):
+        if seasonal.lower() == "drifting":
+            return "drifting"
         if seasonal.lower() != "auto":
-            raise ValueError(f"seasonal must be true, false or 'auto', got {seasonal!r}")
+            raise ValueError(
+                f"seasonal must be true, false, 'auto' or 'drifting', got {seasonal!r}")
         months = None if axis is None else axis.months_per_period
         if not registry.get_family(model_name(model)).auto_seasonal:
             return False

@@ -202,4 +202,5 @@ class Priors:
             level_shock_scale=float(lt.scales(ppy)[0]),
             growth_drift_scale=float(lt.scales(ppy)[1]),
             seasonal_scale=float(math.log1p(self.seasonal.typical_pct / 100)),
+            season_drift_scale=float(math.log1p(lt.season_drift_pct / 100)),
         )

@@ -25,7 +25,7 @@ class ResolvedPriors:
     ``log_k ~ Normal(log_k_mu, log_k_sd)`` (ceiling), ``log half_life ~
     Normal(log_h_mu, log_h_sd)``, long-run log growth ``~ Normal(long_run_mu,
     long_run_sd)`` (fixed when the sd is 0), ``phi ~ Beta(phi_alpha, phi_beta)``,
-    level-shock and growth-drift Gamma(2) means, the seasonal sd and
+    level-shock, growth-drift and seasonal-drift Gamma(2) means, the seasonal sd and
     ``nu ~ Gamma(nu_alpha, nu_beta)``.
     """
 
@@ -48,6 +48,7 @@ class ResolvedPriors:
     level_shock_scale: float = 0.0
     growth_drift_scale: float = 0.01
     seasonal_scale: float = math.log1p(0.30)
+    season_drift_scale: float = math.log1p(10.0 / 3.0 / math.sqrt(2.0) / 100)
     nu_alpha: float = NU_ALPHA
     nu_beta: float = NU_BETA
 

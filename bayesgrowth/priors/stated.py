@@ -240,10 +240,19 @@ class LocalTrendPrior:
         Prior mean of the sd of the per-period change of the growth rate, in points.
         Default: 4 points of yearly growth a year scaled to the calendar
         (``4 / periods_per_year ** 1.5``).
+    season_drift_pct : float
+        Prior mean of the sd of the per-period shocks to drifting seasonal factors, in
+        percent (used only with drifting seasons). Default 2.36%: each shock moves one
+        season's factor up and the next one's down for good, so a factor wanders by
+        ``sqrt(2)`` shocks a year, 3.3%; the default level shocks move the level by 10% a
+        year, and a seasonal pattern that drifts *slowly* should move by a fraction of
+        that, here a third, whatever the calendar. Chosen by that reasoning, not on a
+        benchmark.
     """
 
     level_shock_pct: float | None = None
     growth_drift_pts: float | None = None
+    season_drift_pct: float = 10.0 / 3.0 / math.sqrt(2.0)
 
     def __post_init__(self) -> None:
         _check(
@@ -255,6 +264,10 @@ class LocalTrendPrior:
             self.growth_drift_pts is None
             or (math.isfinite(self.growth_drift_pts) and self.growth_drift_pts > 0),
             f"growth drift must be > 0 points per period, got {self.growth_drift_pts}",
+        )
+        _check(
+            math.isfinite(self.season_drift_pct) and self.season_drift_pct > 0,
+            f"seasonal drift must be > 0 percent per period, got {self.season_drift_pct}",
         )
 
     def scales(self, periods_per_year: float | None) -> tuple[float, float]:

@@ -107,6 +107,8 @@ def test_bad_input_one_line_exit_2_no_files(tmp_path, case, command):
          "1999Q1"),
         (["forecast", "{f}", "-H", "3", "--out", "{o}", "--value-col", "sales"], "--value-col"),
         (["forecast", "{f}", "-H", "3", "--out", "{o}", "--target", "-5"], "--target"),
+        (["forecast", "{f}", "-H", "3", "--out", "{o}", "--model", "exponential", "--seasonal",
+          "drifting"], "drifting seasonal factors need the local-trend model"),
     ],
 )
 def test_bad_options(tmp_path, good_csv, capsys, argv, fragment):
@@ -223,7 +225,7 @@ def test_one_recommended_default_in_the_api_and_the_cli(tmp_path):
     import bayesgrowth as bg
 
     expected = {"model": "local-trend", "drift": "mean-reverting", "seasonal": True,
-                "errors": "independent", "noise": "normal"}
+                "errors": "independent", "noise": "normal", "season_drift": False}
     fit = bg.GrowthModel(seed=1).fit(bg.load_demo()).fit_
     assert fit.engine == "exact" and fit.spec.to_dict() == expected
     out = tmp_path / "default"

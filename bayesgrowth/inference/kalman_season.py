@@ -1,0 +1,224 @@
+"""The local trend's Kalman filter with drifting seasonal factors, vectorised over nodes.
+
+The fixed seasonal factors stay linear coefficients in ``beta`` (integrated out as in
+:mod:`bayesgrowth.inference.kalman`); on top of them a seasonal *deviation* follows the
+dummy seasonal random walk (Harvey 1989, *Forecasting, Structural Time Series Models and
+the Kalman Filter*, sec. 2.3.4; Durbin & Koopman 2012, *Time Series Analysis by State
+Space Methods*, 2nd ed., sec. 3.2.1):
+
+``s_j = -(s_{j-1} + ... + s_{j-m+1}) + omega_j``,  ``omega_j ~ Normal(0, sigma_season^2)``,
+
+with ``s_0 = s_{-1} = ... = 0`` (the factors start where ``beta`` puts them), so
+
+``y_j = X_j beta + d_j + s_j + eps_j``.
+
+The state is ``(d_j, e_j, s_j, s_{j-1}, ..., s_{j-m+2})``, of size ``2 + m - 1``; with
+``sigma_season = 0`` the deviation stays zero and the filter is the two-state one.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from bayesgrowth.inference.kalman import FilterResult, run_filter, transition
+
+__all__ = ["gram_filter_season", "impulse", "season_filter", "season_loadings",
+           "season_transition"]
+
+
+def season_transition(rho, sigma_level, sigma_growth, sigma_season, m: int):
+    """Transition matrices ``T`` and shock covariances ``Q``, each ``(G, r, r)``, ``r = m + 1``."""
+    t2, q2 = transition(rho, sigma_level, sigma_growth)
+    g, r = t2.shape[0], m + 1
+    t = np.zeros((g, r, r))
+    q = np.zeros((g, r, r))
+    t[:, :2, :2], q[:, :2, :2] = t2, q2
+    t[:, 2, 2:] = -1.0  # s_j = -(s_{j-1} + ... + s_{j-m+1}) + omega_j
+    for i in range(3, r):
+        t[:, i, i - 1] = 1.0  # the older deviations shift down
+    q[:, 2, 2] = np.asarray(sigma_season, dtype=float) ** 2
+    return t, q
+
+
+def season_filter(data, grid_index, rho, sigma_level, sigma_growth, sigma, sigma_season,
+                  m: int) -> FilterResult:
+    """The augmented filter of ``[y, X]`` with the seasonal deviation in the state.
+
+    As :func:`bayesgrowth.inference.kalman.augmented_filter` (same arguments, plus the
+    deviations' shock sd ``sigma_season`` per node and the number of seasons ``m``); the
+    observation loads the level deviation and the current seasonal deviation. The plain
+    reference of the compiled :func:`gram_filter_season`.
+    """
+    t, q = season_transition(rho, sigma_level, sigma_growth, sigma_season, m)
+    z = np.zeros(m + 1)
+    z[0] = z[2] = 1.0
+    return run_filter(data, grid_index, t, q, sigma, z)
+
+
+def season_loadings(m: int, steps: np.ndarray) -> np.ndarray:
+    """Loading of the deviation state at the last observation on ``s`` ``h`` steps on.
+
+    Row ``h`` of the result ``(len(steps), m - 1)`` is the first row of ``C^h`` with
+    ``C`` the seasonal block of the transition.
+    """
+    c = np.zeros((m - 1, m - 1))
+    c[0, :] = -1.0
+    c[np.arange(1, m - 1), np.arange(m - 2)] = 1.0
+    out, power = [], np.eye(m - 1)
+    for _ in range(int(np.max(steps))):
+        power = c @ power
+        out.append(power[0].copy())
+    return np.asarray(out)[np.asarray(steps, dtype=int) - 1]
+
+
+def impulse(m: int, n: int) -> np.ndarray:
+    """The response of ``s`` to a unit shock ``d`` periods earlier, ``d = 0 .. n - 1``.
+
+    ``1 / (1 + L + ... + L^(m-1)) = (1 - L) / (1 - L^m)``: ``1`` at ``d = 0 mod m``,
+    ``-1`` at ``d = 1 mod m``, else ``0``.
+    """
+    d = np.arange(n)
+    return np.where(d % m == 0, 1.0, np.where(d % m == 1, -1.0, 0.0))
+
+
+def _predict(a, p, tmp, r, nb, rb):  # pragma: no cover - compiled by numba
+    """``a <- T a`` (each column) and ``p <- T p T'`` for ``nb`` nodes, in place."""
+    for c in range(a.shape[1]):
+        _apply_c(a, c, tmp, r, nb, rb)
+    for c in range(r):  # T p, column by column
+        _apply_c(p, c, tmp, r, nb, rb)
+    for i in range(r):  # (T p)' ...
+        for c in range(i):
+            for b in range(nb):
+                x = p[i, c, b]
+                p[i, c, b] = p[c, i, b]
+                p[c, i, b] = x
+    for c in range(r):  # ... and T (T p)' = T p T'
+        _apply_c(p, c, tmp, r, nb, rb)
+
+
+def _apply_t(x, c, tmp, r, nb, rb):  # pragma: no cover - compiled by numba
+    """Column ``c`` of ``x`` (state rows first) times the transition, in place."""
+    for b in range(nb):
+        x[0, c, b] += rb[b] * x[1, c, b]
+        x[1, c, b] *= rb[b]
+        tmp[b] = 0.0
+    for i in range(2, r):
+        for b in range(nb):
+            tmp[b] -= x[i, c, b]
+    for i in range(r - 1, 2, -1):
+        for b in range(nb):
+            x[i, c, b] = x[i - 1, c, b]
+    for b in range(nb):
+        x[2, c, b] = tmp[b]
+
+
+def _update(a, p, pz, row, acc, finv, lf, s2, r, k, nb):  # pragma: no cover - numba
+    """Measurement update of ``nb`` nodes given the design ``row``; ``row`` becomes ``v``."""
+    for c in range(r):
+        for b in range(nb):
+            pz[c, b] = p[c, 0, b] + p[c, 2, b]
+    for b in range(nb):
+        f = pz[0, b] + pz[2, b] + s2[b]
+        finv[b] = 1.0 / f
+        lf[b] += np.log(f)
+    for c1 in range(r):
+        for c2 in range(r):
+            for b in range(nb):
+                p[c1, c2, b] -= pz[c1, b] * pz[c2, b] * finv[b]
+    for c in range(k):
+        for b in range(nb):
+            row[c, b] -= a[0, c, b] + a[2, c, b]  # the innovation
+        for i in range(r):
+            for b in range(nb):
+                a[i, c, b] += pz[i, b] * finv[b] * row[c, b]
+    for c1 in range(k):
+        for c2 in range(c1 + 1):
+            for b in range(nb):
+                acc[c1, c2, b] += row[c1, b] * row[c2, b] * finv[b]
+
+
+def _season_kernel(y, season, idx, rho, s_level, s_growth, s_season, sigma, long_run, m,
+                   block, gram, logf, state, state_cov):  # pragma: no cover - numba
+    """The compiled filter of :func:`gram_filter_season`, ``block`` nodes at a time."""
+    n, n_s, n_nodes, r = y.size, season.shape[1], rho.size, m + 1
+    k = 3 + int(long_run) + n_s
+    a, p = np.empty((r, k, block)), np.empty((r, r, block))
+    acc, pz, row = np.empty((k, k, block)), np.empty((r, block)), np.empty((k, block))
+    w, lf, rb, tmp = np.empty(block), np.empty(block), np.empty(block), np.empty(block)
+    sg2, sl2, ss2, s2 = np.empty(block), np.empty(block), np.empty(block), np.empty(block)
+    finv = np.empty(block)
+    for start in range(0, n_nodes, block):
+        nb = min(block, n_nodes - start)
+        for b in range(nb):
+            rb[b], sg2[b] = rho[start + b], s_growth[start + b] ** 2
+            sl2[b], ss2[b] = s_level[start + b] ** 2, s_season[start + b] ** 2
+            s2[b] = sigma[start + b] ** 2
+        a[:, :, :], p[:, :, :], acc[:, :, :] = 0.0, 0.0, 0.0
+        w[:], lf[:] = 0.0, 0.0
+        j_prev = 0
+        for i in range(n):
+            jj = idx[i]
+            for _ in range(jj - j_prev):
+                _predict_c(a, p, tmp, r, nb, rb)
+                for b in range(nb):
+                    p[0, 0, b] += sg2[b] + sl2[b]
+                    p[0, 1, b] += sg2[b]
+                    p[1, 0, b] += sg2[b]
+                    p[1, 1, b] += sg2[b]
+                    p[2, 2, b] += ss2[b]
+                    w[b] = rb[b] * (1.0 + w[b])
+            j_prev = jj
+            row[0, :], row[1, :], row[2, :] = y[i], 1.0, w
+            if long_run:
+                for b in range(nb):
+                    row[3, b] = jj - w[b]
+            for c in range(n_s):
+                row[k - n_s + c, :] = season[i, c]
+            _update_c(a, p, pz, row, acc, finv, lf, s2, r, k, nb)
+        for b in range(nb):
+            g = start + b
+            for c1 in range(k):
+                for c2 in range(c1 + 1):
+                    gram[g, c1, c2] = gram[g, c2, c1] = acc[c1, c2, b]
+                for i2 in range(r):
+                    state[g, i2, c1] = a[i2, c1, b]
+            for i2 in range(r):
+                for c2 in range(r):
+                    state_cov[g, i2, c2] = p[i2, c2, b]
+            logf[g] = lf[b]
+
+
+_COMPILED = None
+_apply_c = _predict_c = _update_c = None  # the compiled helpers, bound with the kernel
+
+
+def gram_filter_season(y, season, grid_index, rho, sigma_level, sigma_growth, sigma,
+                       sigma_season, m: int, long_run: bool):
+    """:func:`bayesgrowth.inference.kalman.gram_filter` with the seasonal deviation's state.
+
+    Equals :func:`season_filter` on ``[y, X]`` reduced to ``V' diag(1/F) V``, ``sum log
+    F`` and the last state (checked in the tests); ``state`` is ``(G, m + 1, k)`` and
+    ``state_cov`` ``(G, m + 1, m + 1)``.
+    """
+    global _COMPILED, _apply_c, _predict_c, _update_c
+    from bayesgrowth.inference.kalman import _BLOCK
+
+    if _COMPILED is None:
+        import numba
+
+        _apply_c = numba.njit(cache=True)(_apply_t)
+        _predict_c = numba.njit(cache=True)(_predict)
+        _update_c = numba.njit(cache=True)(_update)
+        _COMPILED = numba.njit(cache=True)(_season_kernel)
+    season = np.zeros((len(y), 0)) if season is None else np.ascontiguousarray(season, float)
+    rho = np.ascontiguousarray(rho, dtype=float)
+    g, r = rho.size, m + 1
+    k = 3 + int(long_run) + season.shape[1]
+    gram, logf = np.zeros((g, k, k)), np.zeros(g)
+    state, state_cov = np.zeros((g, r, k)), np.zeros((g, r, r))
+    as_float = [np.ascontiguousarray(x, float) for x in (sigma_level, sigma_growth,
+                                                          sigma_season, sigma)]
+    _COMPILED(np.ascontiguousarray(y, float), season, np.asarray(grid_index, dtype=np.int64),
+              rho, *as_float, bool(long_run), int(m), _BLOCK, gram, logf, state, state_cov)
+    return gram, logf, state, state_cov
