@@ -279,3 +279,25 @@ def test_exact_engine_agrees_with_nuts_on_drifting_seasons():
             # to 8% of an sd, plus 4 Monte Carlo standard errors of NUTS' quantile
             assert abs(np.quantile(le, q) - np.quantile(ln, q)) < (
                 0.08 * sd + 4 * sd / math.sqrt(ess)), (step, q)
+
+
+@pytest.mark.parametrize("m", [4, 12])
+def test_shock_loadings_follow_the_seasonal_recursion(m):
+    # the recursion s_j = -(s_{j-1} + ... + s_{j-m+1}) + omega_j run by hand for one unit
+    # shock gives the loadings both engines use (the NUTS covariance, the band sources)
+    from bayesgrowth.forecast.band_sources import shock_variance
+    from bayesgrowth.models.season_drift import season_coefficients
+
+    n = 3 * m + 2
+    response = np.zeros(n)
+    s = [0.0] * (m - 1)
+    for j in range(n):
+        s = [-sum(s) + (1.0 if j == 0 else 0.0), *s[:-1]]
+        response[j] = s[0]
+    d = season_coefficients(m, n + 1)
+    for k in range(1, n + 1):  # the shock at period k, seen from every later period
+        np.testing.assert_array_equal(d[k:, k - 1], response[: n + 1 - k])
+    steps = np.arange(1, n + 1)
+    zero = {"rho": np.ones(1), "sigma_level": np.zeros(1), "sigma_growth": np.zeros(1)}
+    got = shock_variance({**zero, "sigma_season": np.array([0.1])}, steps, m)[0]
+    np.testing.assert_allclose(got, 0.01 * np.cumsum(response**2))
