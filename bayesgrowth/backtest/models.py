@@ -20,7 +20,8 @@ Models are named in a short text form, ``BASE[/MODIFIER...]``:
     The least-squares fits and the naive baseline (no modifiers).
 
 Modifiers: ``ar1`` (deviations persist), ``student-t`` (heavy-tailed noise),
-``seasonal`` / ``no-seasons`` (force seasonal factors on or off),
+``seasonal`` / ``no-seasons`` (force seasonal factors on or off), ``drifting-seasons``
+(seasonal factors that drift, local trend only),
 ``random-walk`` / ``mean-reverting`` / ``adaptive`` (how a local trend's growth
 drifts), and ``exact`` / ``nuts`` (the engine). Without an engine modifier a
 model uses the exact engine when it covers the model, else NUTS. Examples:
@@ -67,6 +68,7 @@ _MODIFIERS = {
     "student-t": ("noise", "student-t"),
     "seasonal": ("seasonal", True),
     "no-seasons": ("seasonal", False),
+    "drifting-seasons": ("seasonal", "drifting"),
     "random-walk": ("drift", "random-walk"),
     "mean-reverting": ("drift", "mean-reverting"),
     "adaptive": ("drift", "adaptive"),
@@ -120,7 +122,8 @@ def _spec(options: Mapping):
     from bayesgrowth.models.spec import ModelSpec
 
     keys = {k: options[k] for k in MODEL_KEYS if k in options}
-    keys["seasonal"] = keys.get("seasonal", False) is True
+    seasonal = keys.get("seasonal", False)
+    keys["seasonal"] = seasonal if seasonal in (True, "drifting") else False
     return ModelSpec(**keys)
 
 
@@ -237,6 +240,7 @@ def label_for_options(options: Mapping) -> str:
         base = "default" if spec.drift == DEFAULT_MODEL["drift"] else f"default/{spec.drift}"
     mods = [m for m, on in (("ar1", spec.errors == "ar1"), ("student-t", spec.noise != "normal"),
                             ("seasonal", seasonal is True),
+                            ("drifting-seasons", seasonal == "drifting"),
                             ("no-seasons", seasonal is False and family.auto_seasonal))
             if on]
     return "/".join([base, *mods])

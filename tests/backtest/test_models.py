@@ -64,6 +64,7 @@ def test_least_squares_and_baseline_names(text):
         ("logistic/exact", "exact engine fits.*logistic/nuts"),
         ("default/student-t", "'default/student-t'.*normal noise"),
         ("default/adaptive/nuts", "adaptive drift needs the exact engine"),
+        ("exponential/drifting-seasons", "drifting seasonal factors need the local-trend"),
     ],
 )
 def test_bad_names_raise_one_clear_error(text, match):
@@ -78,6 +79,7 @@ def test_bad_names_raise_one_clear_error(text, match):
     {"model": "local-trend", "errors": "ar1"},
     {"model": "exponential", "seasonal": "auto"},
     {"model": "gompertz", "errors": "ar1", "noise": "student-t", "seasonal": True},
+    {"model": "local-trend", "drift": "mean-reverting", "seasonal": "drifting"},
 ])
 def test_label_for_options_names_the_same_model(options):
     def spec(o):
