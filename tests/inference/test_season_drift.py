@@ -131,24 +131,42 @@ def test_loglik_matches_the_full_state_space_model_in_statsmodels(m):
         assert ev["loglik"][i] == pytest.approx(ref, rel=1e-8, abs=1e-8)
 
 
+def _assert_compiled_equals_plain(ctx, j, y, p, m, long_run):
+    """The compiled kernel's reductions equal the plain filter's, node by node."""
+    args = (p["rho"], p["sigma_level"], p["sigma_growth"], p["sigma"], p["sigma_season"], m)
+    gram, logf, state, state_cov = gram_filter_season(y, ctx.season, j, *args, long_run)
+    x = nodes.design(ctx, p["rho"], j, ctx.season)
+    data = np.concatenate([np.broadcast_to(y, (x.shape[0], y.size))[..., None], x], axis=-1)
+    res = season_filter(data, j, *args)
+    v, f = res.innovations, res.variance
+    plain = (np.einsum("gni,gnj->gij", v / f[..., None], v), np.log(f).sum(axis=1),
+             res.state, res.state_cov)
+    for mine, ref, atol in zip((gram, logf, state, state_cov), plain,
+                               (1e-12, 0.0, 1e-12, 1e-14), strict=True):
+        np.testing.assert_allclose(mine, ref, rtol=1e-10, atol=atol)
+
+
 def test_compiled_filter_equals_the_plain_one():
     # the compiled kernel reduces the plain filter (checked against statsmodels above)
     for m, long_run in ((4, True), (12, False)):
         ctx, j, y = _context(n=40, m=m, long_run=long_run)
-        p = _params(THETAS)
-        gram, logf, state, state_cov = gram_filter_season(
-            y, ctx.season, j, p["rho"], p["sigma_level"], p["sigma_growth"], p["sigma"],
-            p["sigma_season"], m, long_run)
-        x = nodes.design(ctx, p["rho"], j, ctx.season)
-        data = np.concatenate([np.broadcast_to(y, (3, y.size))[..., None], x], axis=-1)
-        res = season_filter(data, j, p["rho"], p["sigma_level"], p["sigma_growth"], p["sigma"],
-                            p["sigma_season"], m)
-        v, f = res.innovations, res.variance
-        plain = (np.einsum("gni,gnj->gij", v / f[..., None], v), np.log(f).sum(axis=1),
-                 res.state, res.state_cov)
-        for mine, ref, atol in zip((gram, logf, state, state_cov), plain,
-                                   (1e-12, 0.0, 1e-12, 1e-14), strict=True):
-            np.testing.assert_allclose(mine, ref, rtol=1e-10, atol=atol)
+        _assert_compiled_equals_plain(ctx, j, y, _params(THETAS), m, long_run)
+
+
+@pytest.mark.parametrize(("m", "long_run"), [(12, True), (12, False), (2, True), (3, False)])
+def test_compiled_filter_equals_the_plain_one_across_blocks_and_gaps(m, long_run):
+    # the compiled kernel keeps the seasonal deviations in a ring and updates one triangle of
+    # the covariance; the plain filter (checked against statsmodels above) runs the dense
+    # dummy-seasonal transition. Monthly data with a run of gaps, random-walk (rho = 1) and
+    # fading growth, zero scales, and more nodes than one compiled block (256)
+    ctx, j, y = _context(n=75, m=m, long_run=long_run, missing=(4, 5, 6, 20, 41, 60), seed=3)
+    rng = np.random.default_rng(8)
+    g = 300
+    rho = np.where(np.arange(g) % 2 == 0, 1.0, rng.uniform(0.5, 0.99, g))
+    sl, sg, sig, sss = (np.exp(rng.uniform(-4.5, -2.0, g)) for _ in range(4))
+    sl[:4], sg[4:8], sss[8:12] = 0.0, 0.0, 0.0
+    p = {"rho": rho, "sigma_level": sl, "sigma_growth": sg, "sigma": sig, "sigma_season": sss}
+    _assert_compiled_equals_plain(ctx, j, y, p, m, long_run)
 
 
 def test_no_seasonal_drift_is_the_fixed_seasons_model():
