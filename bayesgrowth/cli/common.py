@@ -9,7 +9,11 @@ import warnings
 from pathlib import Path
 
 from bayesgrowth.cli.acceptance import add_accept_option
-from bayesgrowth.cli.prior_options import add_common_priors, add_curve_priors
+from bayesgrowth.cli.prior_options import (
+    add_common_priors,
+    add_curve_priors,
+    add_season_drift_prior,
+)
 from bayesgrowth.config import DEFAULT_ENGINE, DEFAULT_LEVELS, DEFAULT_MODEL, check_levels
 from bayesgrowth.data.series import GrowthSeries, read_series
 
@@ -101,6 +105,7 @@ def add_model_options(p: argparse.ArgumentParser, *, horizon_required: bool = Tr
     g = p.add_argument_group("priors (see docs/user-guide.md)")
     add_common_priors(g)
     add_curve_priors(g)
+    add_season_drift_prior(g)
     p.add_argument("--quiet", action="store_true", help="no progress output")
     add_accept_option(p)
 
@@ -235,6 +240,7 @@ def priors_from_args(args):
         GrowthPrior,
         HalfLifePrior,
         InitialValuePrior,
+        LocalTrendPrior,
         NoisePrior,
         Priors,
     )
@@ -246,6 +252,8 @@ def priors_from_args(args):
                 args.ceiling, args.ceiling_multiple, args.ceiling_give_or_take
             )
             extra["half_life"] = HalfLifePrior(args.half_life, args.half_life_factor)
+        if getattr(args, "season_drift", None) is not None:
+            extra["local_trend"] = LocalTrendPrior(season_drift_pct=args.season_drift)
         return Priors(
             initial=InitialValuePrior(args.initial_give_or_take, args.initial_value),
             growth=GrowthPrior(args.growth, args.growth_give_or_take),

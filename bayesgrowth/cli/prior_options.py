@@ -6,7 +6,21 @@ Each option maps to a field of :class:`bayesgrowth.priors.Priors`
 
 from __future__ import annotations
 
-__all__ = ["add_common_priors", "add_curve_priors"]
+import argparse
+import math
+
+__all__ = ["add_common_priors", "add_curve_priors", "add_season_drift_prior"]
+
+
+def _positive_pct(text: str) -> float:
+    """A percentage above 0 (argparse type: the error names the option)."""
+    try:
+        value = float(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a number") from None
+    if not (math.isfinite(value) and value > 0):
+        raise argparse.ArgumentTypeError(f"{text!r} must be a percentage above 0")
+    return value
 
 
 def add_common_priors(g) -> None:
@@ -99,4 +113,20 @@ def add_curve_priors(g) -> None:
         default=3.0,
         metavar="F",
         help="spread of the half-life prior: within a factor of F [3]",
+    )
+
+
+def add_season_drift_prior(g) -> None:
+    """The prior of drifting seasonal factors (``--seasonal drifting`` only)."""
+    from bayesgrowth.priors import LocalTrendPrior
+
+    default = LocalTrendPrior().season_drift_pct
+    g.add_argument(
+        "--season-drift",
+        type=_positive_pct,
+        default=None,
+        metavar="PCT",
+        help="with --seasonal drifting only (ignored otherwise): typical shock to a season's "
+        f"factor per period in percent, the prior mean of its sd [{default:.3g}: a factor "
+        "drifts about 3.3%% a year]",
     )

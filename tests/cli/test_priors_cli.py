@@ -70,3 +70,38 @@ def test_sensitivity_tells_a_prior_that_matters_from_one_that_does_not(tmp_path,
     centre = next(line for line in capsys.readouterr().out.splitlines()
                   if "growth centre" in line)
     assert "the data decide" in centre
+
+
+@pytest.mark.parametrize("value", ["0", "-2", "lots", "nan"])
+def test_season_drift_refuses_a_bad_value_in_one_line(tmp_path, good_csv, capsys, value):
+    out = tmp_path / "f"
+    rc = main(["forecast", str(good_csv), "-H", "2", "--out", str(out), "--quiet",
+               "--seasonal", "drifting", "--season-drift", value])
+    assert rc == 2 and not out.exists()
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "--season-drift" in err[0] and value in err[0]
+
+
+def test_season_drift_sets_the_drifting_seasons_prior():
+    from bayesgrowth.cli.common import priors_from_args
+    from bayesgrowth.cli.main import build_parser
+    from bayesgrowth.priors import LocalTrendPrior
+
+    base = ["forecast", "revenue.csv", "-H", "2", "--out", "o"]
+    parse = build_parser("forecast").parse_args
+    given = priors_from_args(parse([*base, "--seasonal", "drifting", "--season-drift", "5"]))
+    assert given.local_trend.season_drift_pct == 5.0
+    # without the option, the library's default (the other local-trend priors untouched)
+    assert priors_from_args(parse(base)).local_trend == LocalTrendPrior()
+
+
+def test_season_drift_reaches_the_fitted_model(tmp_path, good_csv):
+    import json
+
+    out = tmp_path / "f"
+    assert main(["forecast", str(good_csv), "-H", "2", "--out", str(out), "--quiet",
+                 "--seasonal", "drifting", "--season-drift", "5"]) == 0
+    priors = json.loads((out / "summary.json").read_text())["priors"]
+    assert priors["used"]["season_drift_scale"] == pytest.approx(np.log1p(0.05))
+    assert "drifting seasons: shocks of about 5% per period move the factors" in (
+        priors["in_words"])
