@@ -26,7 +26,8 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-__all__ = ["SOURCES", "SOURCE_LABELS", "band_sources", "shock_variance", "variance_parts"]
+__all__ = ["SOURCES", "SOURCE_LABELS", "band_sources", "shock_variance", "source_labels",
+           "variance_parts"]
 
 #: The three sources, in stacking order.
 SOURCES = ("estimation", "shocks", "noise")
@@ -37,6 +38,14 @@ SOURCE_LABELS = {
     "shocks": "future shocks to the level and the growth rate",
     "noise": "period-to-period noise",
 }
+
+
+def source_labels(season_drift: bool = False) -> dict:
+    """:data:`SOURCE_LABELS`, the shocks naming the seasonal factors too when they drift."""
+    if not season_drift:
+        return dict(SOURCE_LABELS)
+    return {**SOURCE_LABELS,
+            "shocks": "future shocks to the level, the growth rate and the seasonal factors"}
 
 
 def shock_variance(params: dict, steps: np.ndarray, seasons: int = 0) -> np.ndarray:
@@ -107,8 +116,9 @@ def band_sources(fc) -> pd.DataFrame:
     -------
     pandas.DataFrame
         One row per period and source: ``period``, ``step``, ``source`` (one of
-        :data:`SOURCES`), ``variance`` and ``share`` (of the period's total;
-        the shares of a period sum to 1).
+        :data:`SOURCES`), ``label`` (the source in words, :func:`source_labels`: with
+        drifting seasons the shocks include theirs), ``variance`` and ``share`` (of the
+        period's total; the shares of a period sum to 1).
 
     Raises
     ------
@@ -120,10 +130,12 @@ def band_sources(fc) -> pd.DataFrame:
         raise ValueError("band sources need a fit by the exact state-space engine "
                          "(engine='exact' with the local trend model)")
     parts = variance_parts(post, fc.t, fc.fit.series.t_last)
+    labels = source_labels("sigma_season" in post.params)  # as shock_variance counts them
     rows = []
     for h, period in enumerate(fc.periods):
         for source in SOURCES:
             v = float(parts[source][h])
-            rows.append({"period": period, "step": h + 1, "source": source, "variance": v,
+            rows.append({"period": period, "step": h + 1, "source": source,
+                         "label": labels[source], "variance": v,
                          "share": v / float(parts["total"][h])})
     return pd.DataFrame(rows)

@@ -6,7 +6,7 @@ import numpy as np
 from matplotlib.axes import Axes
 from matplotlib.ticker import PercentFormatter
 
-from bayesgrowth.forecast.band_sources import SOURCE_LABELS, SOURCES, band_sources
+from bayesgrowth.forecast.band_sources import SOURCES, band_sources
 from bayesgrowth.plots.style import CATEGORICAL, FORECAST, legend, style_axes
 
 __all__ = ["plot_band_sources"]
@@ -38,13 +38,14 @@ def plot_band_sources(forecast, ax: Axes | None = None) -> Axes:
         _, ax = plt.subplots(figsize=(7.5, 3.6), layout="constrained")
     style_axes(ax)
     wide = table.pivot(index="step", columns="source", values="share")
+    labels = table.drop_duplicates("source").set_index("source")["label"]
     x = np.arange(len(forecast.periods))
     bottom = np.zeros(x.size)
     for source in SOURCES:
         share = wide[source].to_numpy()
         fill, hatch = _FILLS[source]
         ax.bar(x, share, bottom=bottom, width=0.72, color=fill, hatch=hatch,
-               edgecolor="white", linewidth=0.8, label=SOURCE_LABELS[source].capitalize(),
+               edgecolor="white", linewidth=0.8, label=labels[source].capitalize(),
                zorder=2)
         bottom += share
     ax.set_xticks(x, forecast.periods, rotation=0 if x.size <= 8 else 45)

@@ -10,7 +10,7 @@ from collections.abc import Callable
 
 import pandas as pd
 
-from bayesgrowth.forecast.band_sources import SOURCE_LABELS, SOURCES
+from bayesgrowth.forecast.band_sources import SOURCES
 from bayesgrowth.report.words import fmt_number, fmt_probability
 
 __all__ = ["band_sources_phrase", "outlook_html", "time_to_target_phrase"]
@@ -60,8 +60,8 @@ def band_sources_phrase(table: pd.DataFrame, period: str | None = None) -> str:
     str
     """
     period = period or table["period"].iloc[-1]
-    rows = table[table["period"] == period].set_index("source")["share"]
-    shares = ", ".join(f"{fmt_probability(rows[s])} from {SOURCE_LABELS[s]}"
+    rows = table[table["period"] == period].set_index("source")
+    shares = ", ".join(f"{fmt_probability(rows.loc[s, 'share'])} from {rows.loc[s, 'label']}"
                        for s in SOURCES)
     return f"band of {period} (variance of the log value): {shares}"
 

@@ -13,11 +13,13 @@ from bayesgrowth.forecast.band_sources import (
     SOURCES,
     band_sources,
     shock_variance,
+    source_labels,
     variance_parts,
 )
 from bayesgrowth.forecast.target import first_passage
 from bayesgrowth.inference.run import fit_series
 from bayesgrowth.plots.band_sources import plot_band_sources
+from bayesgrowth.report.outlook import band_sources_phrase
 
 
 @pytest.fixture(scope="module")
@@ -195,6 +197,22 @@ def test_band_sources_chart(local_fc):
     assert [t.get_text() for t in ax.get_xticklabels()] == local_fc.periods
     heights = np.array([[b.get_height() for b in c] for c in ax.containers])
     np.testing.assert_allclose(heights.sum(axis=0), 1.0, rtol=1e-12)
+
+
+def test_band_sources_name_the_seasons_when_they_drift(local_fc):
+    # with drifting seasons their future shocks are counted in the shock share (see
+    # test_season_drift.py), so its label must name them; with fixed seasons it must not
+    drifting = bg.forecast(fit_series(bg.load_demo(), engine="exact", model="local-trend",
+                                      drift="random-walk", seasonal="drifting", seed=5), 4)
+    with_seasons = "future shocks to the level, the growth rate and the seasonal factors"
+    tab = band_sources(drifting)
+    assert set(tab.loc[tab["source"] == "shocks", "label"]) == {with_seasons}
+    assert source_labels(True)["shocks"] == with_seasons
+    assert f"from {with_seasons}, " in band_sources_phrase(tab)
+    legend = [t.get_text() for t in plot_band_sources(drifting).get_legend().get_texts()]
+    assert with_seasons.capitalize() in legend
+    fixed = band_sources_phrase(band_sources(local_fc))
+    assert f"from {SOURCE_LABELS['shocks']}, " in fixed and "seasonal factors" not in fixed
 
 
 def test_report_names_time_to_target_and_band_sources():
