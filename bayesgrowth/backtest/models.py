@@ -76,7 +76,7 @@ _MODIFIERS = {
     "nuts": ("engine", "nuts"),
 }
 #: Keys of a model given as a dict: model options, the engine, and sampler settings.
-MODEL_KEYS = ("model", "errors", "noise", "seasonal", "drift")
+MODEL_KEYS = ("model", "errors", "noise", "seasonal", "drift", "season_drift")
 SAMPLER_KEYS = ("draws", "chains", "tune", "target_accept", "cores")
 
 

@@ -64,7 +64,7 @@ TARGET_ACCEPT = 0.95
 #: Sampler settings of ``fit_series`` this refitter understands.
 _SETTINGS = ("draws", "chains", "tune", "target_accept", "cores", "progressbar")
 #: ``fit_series`` options that choose the model (see :class:`~bayesgrowth.models.spec.ModelSpec`).
-SPEC_OPTIONS = ("model", "errors", "noise", "seasonal", "drift")
+SPEC_OPTIONS = ("model", "errors", "noise", "seasonal", "drift", "season_drift")
 
 
 def supports(options: dict | None) -> bool:

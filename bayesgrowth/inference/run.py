@@ -26,6 +26,7 @@ def fit_series(
     noise: str = "normal",
     seasonal: bool | str = False,
     drift: str = "random-walk",
+    season_drift: bool = False,
     **settings,
 ) -> Fit:
     """Fit a growth model to ``series`` with the chosen engine.
@@ -56,6 +57,9 @@ def fit_series(
         seasonal random walk around them (see :class:`ModelSpec`).
     drift : {"random-walk", "mean-reverting"}
         For ``local-trend``: how the growth rate drifts.
+    season_drift : bool
+        The same as ``seasonal="drifting"`` when ``seasonal`` is true (the form of
+        :meth:`ModelSpec.to_dict`).
     **settings
         Passed to the engine (``draws``, ``chains``; for NUTS also ``tune``,
         ``target_accept``, ``cores``, ``progressbar``).
@@ -78,7 +82,8 @@ def fit_series(
     if engine not in ENGINES:
         raise ValueError(f"engine must be one of {', '.join(ENGINES)}, got {engine!r}")
     seasonal = resolve_seasonal(seasonal, series.axis, series.t, model)
-    spec = ModelSpec(model=model, errors=errors, noise=noise, seasonal=seasonal, drift=drift)
+    spec = ModelSpec(model=model, errors=errors, noise=noise, seasonal=seasonal, drift=drift,
+                     season_drift=season_drift)
     if engine == "exact" and not spec.exact_fits:
         from bayesgrowth.models.registry import exact_coverage
 

@@ -258,6 +258,20 @@ def test_drifting_seasons_refused_outside_the_local_trend():
     assert "drifting seasonal factors" in spec.label()
 
 
+def test_a_model_spec_dict_refits_the_same_model():
+    # refits (backtests, recalibration) pass ModelSpec.to_dict() back to fit_series
+    from bayesgrowth.data.demo import load_demo
+    from bayesgrowth.inference import fit_series
+    from bayesgrowth.inference.refit import SPEC_OPTIONS
+
+    for spec in (ModelSpec(errors="ar1"),
+                 ModelSpec(model="local-trend", seasonal="drifting", drift="mean-reverting")):
+        assert set(spec.to_dict()) == set(SPEC_OPTIONS)
+        fit = fit_series(load_demo(), engine="exact", seed=1, draws=50, chains=1,
+                         **spec.to_dict())
+        assert fit.spec == spec
+
+
 @pytest.mark.slow
 def test_exact_engine_agrees_with_nuts_on_drifting_seasons():
     import bayesgrowth as bg
