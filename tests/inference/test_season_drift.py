@@ -267,7 +267,7 @@ def test_a_model_spec_dict_refits_the_same_model():
     for spec in (ModelSpec(errors="ar1"),
                  ModelSpec(model="local-trend", seasonal="drifting", drift="mean-reverting")):
         assert set(spec.to_dict()) == set(SPEC_OPTIONS)
-        fit = fit_series(load_demo(), engine="exact", seed=1, draws=50, chains=1,
+        fit = fit_series(load_demo(), engine="exact", seed=1, draws=400, chains=1,
                          **spec.to_dict())
         assert fit.spec == spec
 
