@@ -326,6 +326,16 @@ def checked_model_options(args, engines, option: str = "--engine") -> dict:
     return {} if spec.is_plain_exponential and options["seasonal"] is not True else options
 
 
+def check_seasons(args, series, seasonal: bool) -> None:
+    """Refuse seasonal factors (``--seasonal yes`` or ``drifting``) on a calendar without them."""
+    if seasonal and (series.axis is None or series.axis.months_per_period not in (1, 3)):
+        raise UsageError(
+            f"--seasonal {getattr(args, 'seasonal', 'yes')}: "
+            f"{getattr(getattr(args, 'file', None), 'name', None) or series.name} is not "
+            "quarterly or monthly, and seasonal factors need quarters or months; leave "
+            "--seasonal at auto or give no")
+
+
 def fit_from_args(args, series):
     """Fit ``series`` with the engine, model and priors the options name; warn on failure."""
     from bayesgrowth.inference.run import fit_series
@@ -336,6 +346,7 @@ def fit_from_args(args, series):
     checked_model_options(args, (args.engine,))
     spec = ModelSpec(**{**spec_options, "seasonal": resolve_seasonal(
         spec_options["seasonal"], series.axis, series.t, spec_options["model"])})
+    check_seasons(args, series, spec.seasonal)
     options = {"draws": args.draws, "chains": args.chains, **spec_options}
     if args.engine == "nuts":
         options["progressbar"] = not args.quiet

@@ -41,7 +41,7 @@ def add_parser(sub) -> None:
 
 def run(args) -> int:
     """Run ``report``; returns the exit code."""
-    from bayesgrowth.cli.common import checked_model_options, priors_from_args
+    from bayesgrowth.cli.common import check_seasons, checked_model_options, priors_from_args
     from bayesgrowth.inference.diagnostics import SamplingWarning
     from bayesgrowth.report import render_report, write_report
     from bayesgrowth.report.build import report_parts
@@ -54,6 +54,7 @@ def run(args) -> int:
                          "and 1")
     priors = priors_from_args(args)
     spec_options = checked_model_options(args, (args.engine,))
+    check_seasons(args, series, spec_options.get("seasonal") in (True, "drifting"))
     command = "bayesgrowth " + " ".join(shlex.quote(a) for a in sys.argv[1:])
     names = ["report.html"]
     check_output(args.out, names, [args.file], force=args.force)

@@ -78,6 +78,16 @@ def test_dates_past_9999_are_refused(tmp_path, run_cli, snapshot, user_error):
              "--horizon 4", "ends in 9999-12-31", "past the year 9999")
 
 
+@pytest.mark.parametrize("command, seasonal", [("forecast", "yes"), ("forecast", "drifting"),
+                                               ("report", "yes")])
+def test_seasonal_factors_on_yearly_data_are_refused(tmp_path, run_cli, snapshot, user_error,
+                                                     command, seasonal):
+    text = "period,value\n" + "".join(f"{2015 + i},{100 + 20 * i}\n" for i in range(6))
+    _refused(tmp_path, run_cli, snapshot, user_error, "years.csv", text,
+             f"--seasonal {seasonal}: years.csv is not quarterly or monthly", "auto or give no",
+             command=command, extra=("--seasonal", seasonal))
+
+
 @pytest.mark.parametrize("name, text, fragments", [
     ("utf16.csv", QUARTERS.encode("utf-16"), ("utf16.csv: not a text CSV file", "UTF-8")),
     ("ragged.csv", "period,value\n2023Q1,100\n2023Q2,110,5\n2023Q3,121\n",
