@@ -328,12 +328,18 @@ def checked_model_options(args, engines, option: str = "--engine") -> dict:
 
 def check_seasons(args, series, seasonal: bool) -> None:
     """Refuse seasonal factors (``--seasonal yes`` or ``drifting``) on a calendar without them."""
-    if seasonal and (series.axis is None or series.axis.months_per_period not in (1, 3)):
+    from bayesgrowth.models.spec import season_index
+
+    if not seasonal:
+        return
+    try:
+        season_index(series.axis, series.t)
+    except ValueError:
         raise UsageError(
             f"--seasonal {getattr(args, 'seasonal', 'yes')}: "
             f"{getattr(getattr(args, 'file', None), 'name', None) or series.name} is not "
             "quarterly or monthly, and seasonal factors need quarters or months; leave "
-            "--seasonal at auto or give no")
+            "--seasonal at auto or give no") from None
 
 
 def fit_from_args(args, series):

@@ -53,20 +53,12 @@ def shock_variance(params: dict, steps: np.ndarray, seasons: int = 0) -> np.ndar
 
     A growth shock ``k`` periods before step ``h`` (counting itself) loads
     ``(1 - rho^k) / (1 - rho)`` on the level (``k`` when ``rho = 1``). With drifting
-    seasons (``sigma_season`` in ``params``, ``seasons`` of them) their shocks add too.
+    seasons (``sigma_season`` in ``params``, ``seasons`` of them) their shocks add too:
+    the sum of :func:`bayesgrowth.inference.statespace_paths.shock_terms`.
     """
-    rho = params["rho"][:, None]
-    k = np.arange(1, int(steps.max()) + 1, dtype=float)[None, :]
-    with np.errstate(divide="ignore", invalid="ignore"):
-        load = np.where(rho == 1.0, k, (1 - rho**k) / (1 - rho))
-    growth = params["sigma_growth"][:, None] ** 2 * np.cumsum(load**2, axis=1)[:, steps - 1]
-    level = params["sigma_level"][:, None] ** 2 * steps[None, :].astype(float)
-    if "sigma_season" not in params:
-        return growth + level
-    from bayesgrowth.inference.kalman_season import impulse
+    from bayesgrowth.inference.statespace_paths import shock_terms
 
-    psi2 = np.cumsum(impulse(seasons, int(steps.max())) ** 2)[steps - 1]
-    return growth + level + params["sigma_season"][:, None] ** 2 * psi2[None, :]
+    return sum(shock_terms(params, np.asarray(steps), seasons))
 
 
 def variance_parts(post, t_future: np.ndarray, t_last: int) -> dict:

@@ -28,8 +28,7 @@ import numpy as np
 
 from bayesgrowth.inference.kalman import FilterResult, run_filter, transition
 
-__all__ = ["gram_filter_season", "impulse", "season_filter", "season_loadings",
-           "season_transition"]
+__all__ = ["gram_filter_season", "season_filter", "season_loadings", "season_transition"]
 
 
 def season_transition(rho, sigma_level, sigma_growth, sigma_season, m: int):
@@ -75,16 +74,6 @@ def season_loadings(m: int, steps: np.ndarray) -> np.ndarray:
         power = c @ power
         out.append(power[0].copy())
     return np.asarray(out)[np.asarray(steps, dtype=int) - 1]
-
-
-def impulse(m: int, n: int) -> np.ndarray:
-    """The response of ``s`` to a unit shock ``d`` periods earlier, ``d = 0 .. n - 1``.
-
-    ``1 / (1 + L + ... + L^(m-1)) = (1 - L) / (1 - L^m)``: ``1`` at ``d = 0 mod m``,
-    ``-1`` at ``d = 1 mod m``, else ``0``.
-    """
-    d = np.arange(n)
-    return np.where(d % m == 0, 1.0, np.where(d % m == 1, -1.0, 0.0))
 
 
 def _predict(a, sa, p, cs, drop, r, k, nb, rb, sg2, sl2, ss2):  # pragma: no cover - numba

@@ -11,10 +11,11 @@ from __future__ import annotations
 
 import numpy as np
 
-from bayesgrowth.inference.kalman_season import impulse, season_loadings
+from bayesgrowth.inference.kalman_season import season_loadings
 from bayesgrowth.inference.statespace_nodes import design, growth_loading
+from bayesgrowth.models.season_drift import impulse
 
-__all__ = ["predictive", "simulate"]
+__all__ = ["predictive", "shock_terms", "simulate"]
 
 
 def _drifts(post) -> bool:
@@ -59,7 +60,7 @@ def predictive(post, t_future: np.ndarray, joint: bool = True,
         noise = (p["sigma"] ** 2)[:, None, None] * np.eye(steps.size)[None]
         return {"mean": mean, "curve_cov": cov, "value_cov": cov + noise}
     var = (gb * g).sum(-1) + np.einsum("ghi,gij,ghj->gh", z, state_cov, z)
-    for term in _shock_var(post, p, steps):
+    for term in shock_terms(p, steps, ctx.n_seasons):
         var = var + term
     return {"mean": mean, "curve_var": var, "value_var": var + p["sigma"][:, None] ** 2}
 
@@ -81,8 +82,12 @@ def _shock_cov(post, p: dict, s: np.ndarray) -> list:
     return out
 
 
-def _shock_var(post, p: dict, steps: np.ndarray) -> list:
-    """The diagonal of :func:`_shock_cov` without ``(G, H, H)`` arrays."""
+def shock_terms(p: dict, steps: np.ndarray, seasons: int = 0) -> list:
+    """The diagonal of :func:`_shock_cov` without ``(G, H, H)`` arrays, one term per shock.
+
+    Growth drift and level shocks ``(G, H)`` for the node parameters ``p``, then, with
+    drifting seasons (``sigma_season`` in ``p``, ``seasons`` of them), the seasonal shocks.
+    """
     # a growth shock k steps before h loads (1 - rho^k) / (1 - rho) on the level, so the
     # shocks add a cumulative sum
     r = p["rho"][:, None]
@@ -93,8 +98,8 @@ def _shock_var(post, p: dict, steps: np.ndarray) -> list:
     shocks = np.cumsum(load**2, axis=1)[:, steps - 1]
     out = [(p["sigma_growth"] ** 2)[:, None] * shocks,
            (p["sigma_level"] ** 2)[:, None] * s[None, :]]
-    if _drifts(post):
-        psi2 = np.cumsum(impulse(post._ctx.n_seasons, int(s.max())) ** 2)[steps - 1]
+    if "sigma_season" in p:
+        psi2 = np.cumsum(impulse(seasons, int(s.max())) ** 2)[steps - 1]
         out.append((p["sigma_season"] ** 2)[:, None] * psi2[None, :])
     return out
 

@@ -16,18 +16,26 @@ from __future__ import annotations
 
 import numpy as np
 
-__all__ = ["drift_cov", "drift_loadings", "season_coefficients"]
+__all__ = ["drift_cov", "drift_loadings", "impulse", "season_coefficients"]
+
+
+def impulse(m: int, n: int) -> np.ndarray:
+    """The response of ``s`` to a unit shock ``d`` periods earlier, ``d = 0 .. n - 1``.
+
+    ``1 / (1 + L + ... + L^(m-1)) = (1 - L) / (1 - L^m)``: ``1`` at ``d = 0 mod m``,
+    ``-1`` at ``d = 1 mod m``, else ``0``.
+    """
+    d = np.arange(n)
+    return np.where(d % m == 0, 1.0, np.where(d % m == 1, -1.0, 0.0))
 
 
 def season_coefficients(m: int, n_grid: int) -> np.ndarray:
     """Loadings ``(n_grid, n_grid - 1)`` of the deviations on the shocks at ``1 .. n_grid-1``.
 
-    ``s_j = sum_k psi_{j-k} omega_k`` with ``psi = (1 - L) / (1 - L^m)``: ``1`` at lags
-    ``0 mod m``, ``-1`` at ``1 mod m``, else ``0``.
+    ``s_j = sum_k psi_{j-k} omega_k`` with ``psi`` the :func:`impulse` response.
     """
     d = np.arange(n_grid)[:, None] - np.arange(1, n_grid)[None, :]
-    lag = np.maximum(d, 0) % m
-    return np.where(d >= 0, np.where(lag == 0, 1.0, np.where(lag == 1, -1.0, 0.0)), 0.0)
+    return np.where(d >= 0, impulse(m, n_grid)[np.maximum(d, 0)], 0.0)
 
 
 def _count(draws: dict, m: int | None) -> int:
