@@ -10,6 +10,7 @@ matters (deprecations) not at all. ``BAYESGROWTH_DEBUG=1`` shows them raw.
 
 from __future__ import annotations
 
+import os
 import sys
 import warnings
 from collections import Counter
@@ -32,11 +33,13 @@ KNOWN = {
 }
 
 
+#: The package's own folder: a warning raised from a file inside it is the package's.
+_PACKAGE = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
+
+
 def _ours(w: warnings.WarningMessage) -> bool:
-    path = str(w.filename).replace("\\", "/")
-    if "site-packages/" in path:
-        return path.split("site-packages/")[-1].startswith("bayesgrowth/")
-    return "/bayesgrowth/" in path
+    # by location, not by name: a checkout is often itself a folder called bayesgrowth
+    return os.path.abspath(str(w.filename)).startswith(_PACKAGE + os.sep)
 
 
 def notes_for(caught: list[warnings.WarningMessage]) -> list[str]:

@@ -1,10 +1,15 @@
 """Library warnings reach the user as one line in the package's words, or not at all."""
 
+import os
 import warnings
 
 import numpy as np
 
+import bayesgrowth
 from bayesgrowth.cli.library_notes import library_warnings, notes_for
+
+#: The installed package's folder, wherever the checkout or environment put it.
+PACKAGE = os.path.dirname(bayesgrowth.__file__)
 
 
 def _message(text, category, filename):
@@ -27,7 +32,7 @@ def test_each_kind_of_warning_becomes_one_plain_line_or_nothing():
         _message("Estimated shape parameter of Pareto distribution is greater than 0.70",
                  UserWarning, lib + "arviz/stats/stats.py"),
         _message("sampling diagnostics failed: R-hat 1.2", UserWarning,
-                 "/work/repo/bayesgrowth/inference/nuts.py"),
+                 os.path.join(PACKAGE, "inference", "nuts.py")),
         _message("something else\nsecond line", UserWarning, lib + "xarray/core/x.py"),
     ]
     lines = notes_for(caught)
@@ -49,6 +54,15 @@ def test_the_context_prints_notes_on_stderr_after_the_work(capsys):
         warnings.warn("old spelling", DeprecationWarning, stacklevel=1)
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and err[0].startswith("note: numpy reported 1 floating-point")
+
+
+def test_a_checkout_called_bayesgrowth_is_not_the_package():
+    # a clone is often a folder named bayesgrowth: its tests and scripts are not the package
+    outside = os.path.join(os.path.dirname(PACKAGE), "x", "bayesgrowth", "tests", "test_x.py")
+    lines = notes_for([_message("overflow encountered in exp", RuntimeWarning, outside),
+                       _message("a script's own note", UserWarning, outside)])
+    assert lines[0].startswith("note: ") and "script's own note" in lines[0]
+    assert lines[1].startswith("note: numpy reported 1 floating-point")
 
 
 def test_debug_leaves_warnings_raw(capsys):
