@@ -44,6 +44,8 @@ __all__ = ["StateSpacePosterior", "state_space_posterior"]
 _SETTLE = 0.02  # quantiles settled when they move less than 2% of the 10-90 width
 _MAX_MOVES = 8  # tighter boxes before the grid is refined anyway
 _PROBE = np.array([0.1, 0.5, 0.9])
+_MAPPED = True  # points spaced by the marginal posterior once the box holds (False: even)
+_MAP_FROM = 4  # in branches of this many dimensions or more (fewer are cheap on even grids)
 
 
 class StateSpacePosterior:
@@ -268,7 +270,7 @@ def state_space_posterior(series, priors, spec, *, max_refinements: int = 3):
         b.to_fine()
     ppy = series.axis.periods_per_year or 4
     t_probe = series.t_last + np.array([1, int(max(4, 2 * round(ppy)))])  # next, two years on
-    previous, extra, moves = None, 0, 0
+    previous, extra, moves, mapped = None, 0, 0, False
     while True:
         def k_of(b, extra=extra):
             return grid.FINE[len(b.dims) >= 4] + extra
@@ -283,16 +285,26 @@ def state_space_posterior(series, priors, spec, *, max_refinements: int = 3):
             if post.last_move <= _SETTLE:
                 break
         previous = q
-        boxes = [grid.shrink(b, wb, k_of(b)) for b, wb in zip(branches, within, strict=True)]
-        moved = any(grid.moved(b.box, nb) for b, nb in zip(branches, boxes, strict=True))
-        if moved and moves < _MAX_MOVES:  # the mass is not yet resolved: a tighter box
-            moves += 1
-        elif extra < 2 * max_refinements:  # the box holds: more points
-            extra += 2
-        else:
+        if not mapped:
+            boxes = [grid.shrink(b, wb, k_of(b)) for b, wb in zip(branches, within, strict=True)]
+            moved = any(grid.moved(b.box, nb) for b, nb in zip(branches, boxes, strict=True))
+            if moved and moves < _MAX_MOVES:  # the mass is not yet resolved: a tighter box
+                moves += 1
+            elif extra >= 2 * max_refinements:
+                break
+            elif _MAPPED and any(len(b.dims) >= _MAP_FROM for b in branches):
+                mapped = True  # the box holds: points where the mass is (see statespace_grid)
+            else:  # the box holds: more points
+                extra += 2
+        elif extra >= 2 * max_refinements:
             break
-        for b, nb in zip(branches, boxes, strict=True):
-            b.box = nb
+        else:
+            extra += 2
+        for b, nb, wb in zip(branches, boxes, within, strict=True):
+            if mapped and len(b.dims) >= _MAP_FROM:
+                grid.remap(b, wb, k_of(b))
+            elif not mapped:
+                b.box = nb
     return post
 
 

@@ -68,18 +68,21 @@ def test_exact_bands_agree_with_the_predictive_draws(demo_fit):
     assert p_exact == pytest.approx(0.5, abs=1e-5)
 
 
-def test_adaptive_weights_are_the_normalised_evidences():
+def test_adaptive_weights_are_the_normalised_evidences(monkeypatch):
     # Bayesian model averaging (Hoeting, Madigan, Raftery & Volinsky 1999, Statistical
-    # Science 14(4)): with prior mass 1/2 each, a branch's weight is its evidence share
+    # Science 14(4)): with prior mass 1/2 each, a branch's weight is its evidence share.
+    # The three fits are refined until their probes move by 0.2% (not the default 2%), so
+    # that each one's own grid error in the evidence (a few hundredths) does not blur it.
+    monkeypatch.setattr(ss, "_SETTLE", 0.002)
     s = bg.load_demo()
     pr = Priors().resolve(s)
     both = ss.state_space_posterior(s, pr, ModelSpec(model="local-trend", drift="adaptive"))
     rw = ss.state_space_posterior(s, pr, ModelSpec(model="local-trend", drift="random-walk"))
     mr = ss.state_space_posterior(s, pr, ModelSpec(model="local-trend", drift="mean-reverting"))
     share = 1 / (1 + math.exp(mr.log_evidence - rw.log_evidence))
-    assert both.branch_weight["drifting"] == pytest.approx(share, abs=0.03)
+    assert both.branch_weight["drifting"] == pytest.approx(share, abs=0.01)
     combined = math.log(0.5 * math.exp(rw.log_evidence) + 0.5 * math.exp(mr.log_evidence))
-    assert both.log_evidence == pytest.approx(combined, abs=0.05)
+    assert both.log_evidence == pytest.approx(combined, abs=0.01)
 
 
 def test_seasonal_auto_needs_two_full_years():
