@@ -21,9 +21,11 @@ integrand is flatter. The power: for the midpoint rule, the error is smallest wi
 density growing as ``|f''|^(1/3)`` (from the rule's ``h^2 f''/24`` error per cell), about
 ``f^(1/3)`` for a bell-shaped ``f``; the forecast depends on the tails more than the
 marginal's mass does, hence the smaller power and the 1% floor spread over the box. On the
-40-point quarterly series of ``benchmarks/forecast.py`` six mapped points per dimension
-(1,296 nodes) put the band quantiles within 0.5-0.7% of a 30-point even grid's, closer than
-twelve even points (20,736 nodes, 1.1%).
+40-point quarterly series of ``benchmarks/forecast.py``, in its final box, six mapped points
+per dimension (1,296 nodes) put the band quantiles within 0.5-0.7% of the 80% band's width of
+a 30-point even grid's, closer than twelve even points (20,736 nodes, 1.1%). Only grids of
+four or more dimensions are mapped (:mod:`bayesgrowth.inference.statespace`); smaller ones
+are cheap with even points.
 """
 
 from __future__ import annotations
@@ -45,7 +47,6 @@ _KEEP = 15.0  # coarse-grid cells within e^-15 of the best bound the fine box
 _MASS = 1e-4  # a fine-grid cell row with less marginal mass than this leaves the box
 _POWER = 0.25  # mapped points: density of points as the marginal density to this power
 _FLOOR = 0.01  # plus this share of an even spread, so the tails keep points
-_MAP_DIMS = None
 _FINE_MAP = 400  # pieces of the piecewise-linear map per dimension
 #: The parameters a grid may span (:meth:`Branch.cells` reports a cell width for each).
 CELL_NAMES = ("sigma", "sigma_level", "sigma_growth", "sigma_season", "half_life")
@@ -170,9 +171,6 @@ def remap(branch: Branch, weight: np.ndarray, k: int) -> None:
     total = w.sum()
     maps = []
     for d, ((lo, hi), (centre, width)) in enumerate(zip(branch.box, branch.axes, strict=True)):
-        if _MAP_DIMS is not None and branch.dims[d].name not in _MAP_DIMS:
-            maps.append((np.array([0.0, 1.0]), np.array([lo, hi])))
-            continue
         mass = w.sum(axis=tuple(i for i in range(w.ndim) if i != d)) / total
         log_f = np.log(np.maximum(mass, 1e-300) / width)
         x = np.linspace(lo, hi, _FINE_MAP + 1)
