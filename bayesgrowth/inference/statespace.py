@@ -16,7 +16,10 @@ approach of Rue, Martino & Chopin (2009, *JRSS-B* 71(2)) but with a plain grid:
 a coarse grid over the prior's range locates the posterior mass, a finer grid
 over that box carries the weights (prior times likelihood, midpoint rule in
 transformed coordinates), and the grid is refined until the forecast's
-quantiles stop moving. The posterior predictive is a finite mixture of
+quantiles stop moving. Once the box holds, a grid of four or more dimensions
+spaces its points by the marginal posterior densities of the previous pass
+(:func:`bayesgrowth.inference.statespace_grid.remap`), so few points resolve a
+narrow peak inside a box wide enough for the tails. The posterior predictive is a finite mixture of
 log-normals, so quantiles and exceedance probabilities are exact up to the grid
 (:mod:`bayesgrowth.inference.mixture`); draws are made only where a consumer
 needs them.
@@ -257,7 +260,8 @@ def state_space_posterior(series, priors, spec, *, max_refinements: int = 3):
         How many times the fine grid may be refined (two more points per
         dimension each time) while the probe quantiles still move; before that
         the box shrinks around the mass while it moves (at most ``_MAX_MOVES``
-        times), which does not count as a refinement.
+        times), which does not count as a refinement, and a grid of four or more
+        dimensions is then mapped to the mass once at the same size.
 
     Returns
     -------
