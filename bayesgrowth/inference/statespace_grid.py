@@ -205,8 +205,11 @@ def on_grid(ctx, branches, k_of) -> tuple[dict, np.ndarray, dict, float, list]:
         top = lw.max()
         within.append(np.exp(lw - top))
         log_ev["fading" if b.fades else "drifting"] = top + math.log(within[-1].sum())
-    nodes = {k: np.concatenate([p[k] for p in parts]) for k in parts[0]}
-    lw = np.concatenate(logw)
+    if len(parts) == 1:  # one branch: nothing to join (a copy of every array otherwise)
+        nodes, lw = parts[0], logw[0]
+    else:
+        nodes = {k: np.concatenate([p[k] for p in parts]) for k in parts[0]}
+        lw = np.concatenate(logw)
     top = lw.max()
     w = np.exp(lw - top)
     total = top + math.log(w.sum())
