@@ -11,7 +11,7 @@ quarterly series with the default model, the goal of the honest-default issue
 factors (independent and AR(1) errors, integrated out on the exact engine), and which
 heavy libraries the CLI imported: the exact engine's runs should import none of
 PyMC, PyTensor, ArviZ, xarray or Dask (they are for NUTS fits and
-NetCDF files).
+NetCDF files), nor scipy (about 0.1 s for scipy.special alone).
 
 Run: ``python benchmarks/forecast.py`` (``--nuts`` adds the exponential curve on
 NUTS). Goals (from the project's issue): exact CLI at most 1.2 s and 180 MB.
@@ -30,7 +30,8 @@ CHILD = r"""
 import resource, sys
 from bayesgrowth.cli import main
 rc = main(sys.argv[1:])
-heavy = sorted(m for m in ("pymc", "pytensor", "arviz", "xarray", "dask") if m in sys.modules)
+heavy = sorted(m for m in ("pymc", "pytensor", "arviz", "xarray", "dask", "scipy")
+               if m in sys.modules)
 print("MAXRSS_KB", resource.getrusage(resource.RUSAGE_SELF).ru_maxrss, file=sys.stderr)
 print("HEAVY", ",".join(heavy) or "-", file=sys.stderr)
 sys.exit(rc)

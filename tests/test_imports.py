@@ -1,4 +1,5 @@
-"""Layering: reading data, the exact engine, least squares and plotting never import PyMC."""
+"""Layering: reading data, the exact engine, least squares and plotting never import PyMC;
+the exact engine's forecast command imports no scipy either."""
 
 import subprocess
 import sys
@@ -56,3 +57,18 @@ def test_exact_forecast_command_loads_no_sampler_netcdf_or_backtest(tmp_path):
     heavy = {"pymc", "pytensor", "arviz", "xarray", "dask", "matplotlib.pyplot",
              "bayesgrowth.backtest", "bayesgrowth.scoring", "bayesgrowth.select"}
     assert heavy & loaded == set()
+
+
+def test_exact_forecast_commands_load_no_scipy(tmp_path):
+    # scipy.special alone costs about 0.1 s of a one-second command (benchmarks/forecast.py)
+    from bayesgrowth.data.demo import demo_path
+
+    runs = [[], ["--model", "exponential"], ["--model", "exponential", "--errors", "ar1"]]
+    loaded = _modules_after(
+        "import sys\nfrom bayesgrowth.cli import main\n"
+        + "".join(f"assert main(['forecast', {str(demo_path())!r}, '-H', '2', '--out', "
+                  f"{str(tmp_path / str(i))!r}, '--quiet', *{extra!r}]) == 0\n"
+                  for i, extra in enumerate(runs))
+    )
+    assert all((tmp_path / str(i) / "forecast.csv").exists() for i in range(len(runs)))
+    assert {m for m in loaded if m.split(".")[0] in ("scipy", "pymc", "pytensor", "arviz")} == set()

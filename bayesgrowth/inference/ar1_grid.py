@@ -31,10 +31,10 @@ within it, and the coefficients drawn from their exact normal conditional given 
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.special import betaln
 
 from bayesgrowth.config import DEFAULT_CHAINS, DEFAULT_DRAWS
 from bayesgrowth.data.series import GrowthSeries
@@ -117,8 +117,13 @@ def grid_log_weight(spec: ModelSpec, series: GrowthSeries, priors: ResolvedPrior
     s = priors.sigma_scale
     log_p_sigma = 0.5 * np.log(2 / np.pi) - np.log(s) - 0.5 * (sigma / s) ** 2
     a, b = priors.phi_alpha, priors.phi_beta
-    log_p_phi = (a - 1) * np.log(phi) + (b - 1) * np.log1p(-phi) - betaln(a, b)
+    log_p_phi = (a - 1) * np.log(phi) + (b - 1) * np.log1p(-phi) - _log_beta(a, b)
     return loglik + log_p_sigma + u + log_p_phi + log_1m_phi2
+
+
+def _log_beta(a: float, b: float) -> float:
+    """``log B(a, b)`` from the standard library's log-gamma (scipy's import skipped)."""
+    return math.lgamma(a) + math.lgamma(b) - math.lgamma(a + b)
 
 
 def _nodes(box, points) -> tuple[np.ndarray, np.ndarray, tuple[float, float]]:

@@ -24,7 +24,8 @@ from collections.abc import Callable
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.special import ndtr
+
+from bayesgrowth.inference.normal import ndtr
 
 __all__ = ["SigmaGridPosterior", "linear_gaussian_posterior"]
 

@@ -9,7 +9,8 @@ bracket always holds the root), to a tolerance far below any band's rounding.
 from __future__ import annotations
 
 import numpy as np
-from scipy.special import ndtr, ndtri
+
+from bayesgrowth.inference.normal import ndtr, ndtri
 
 __all__ = ["heaviest", "mixture_cdf", "mixture_mean_exp", "mixture_quantiles"]
 

@@ -25,7 +25,8 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.special import gammaincinv, ndtri
+
+from bayesgrowth.inference.normal import ndtri
 
 __all__ = ["ThetaDim", "theta_dims"]
 
@@ -102,7 +103,46 @@ class _Gamma2:
         return np.where(x > 0, out, -np.inf)
 
     def ppf(self, q):
-        return self.theta * gammaincinv(2.0, np.asarray(q, dtype=float))
+        q = np.asarray(q, dtype=float)
+        u = [_gamma2_quantile(float(p)) for p in q.reshape(-1)]
+        return self.theta * np.array(u).reshape(q.shape)
+
+
+def _gamma2_cdf(u: float) -> float:
+    """``P(U <= u) = 1 - e^-u (1 + u)`` for ``U ~ Gamma(2, 1)``, to full relative precision."""
+    if u >= 1.0:
+        return 1.0 - math.exp(-u) * (1.0 + u)
+    # below 1 the closed form cancels: its series sum_k>=2 (-1)^k (k-1) u^k / k! does not
+    total, power = 0.0, u
+    for k in range(2, 30):
+        power *= u / k
+        total += (-1) ** k * (k - 1) * power
+    return total
+
+
+def _gamma2_quantile(q: float) -> float:
+    """``u`` with ``P(U <= u) = q`` for ``U ~ Gamma(2, 1)``, by Newton steps.
+
+    Below the median the steps solve ``log F(u) = log q`` from ``sqrt(2 q)`` (``F(u) <=
+    u^2 / 2``), above it ``log S(u) = -u + log(1 + u) = log(1 - q)`` from ``-log(1 - q)``;
+    both logs are concave (the Gamma(2) density is log-concave), so the steps approach the
+    root from one side and cannot overshoot into a region where they diverge.
+    """
+    if not 0.0 < q < 1.0:
+        return {0.0: 0.0, 1.0: math.inf}.get(q, math.nan)
+    lower = q <= 0.5
+    target = math.log(q) if lower else math.log1p(-q)
+    u = math.sqrt(2.0 * q) if lower else -target
+    for _ in range(100):
+        if lower:
+            f = _gamma2_cdf(u)
+            step = (target - math.log(f)) * f / (u * math.exp(-u))
+        else:
+            step = (-u + math.log1p(u) - target) * (1.0 + u) / u
+        u += step
+        if abs(step) <= 1e-16 * u:
+            break
+    return u
 
 
 class _LogNormal:
