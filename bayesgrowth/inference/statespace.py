@@ -171,9 +171,7 @@ class StateSpacePosterior:
         """
         nodes = rng.choice(self.weight.size, size=n, p=self.weight)
         used, inverse = np.unique(nodes, return_inverse=True)
-        cov = self.beta_cov[used]
-        ev, evec = np.linalg.eigh(0.5 * (cov + np.swapaxes(cov, 1, 2)))
-        root = (evec * np.sqrt(np.clip(ev, 0, None))[:, None, :])[inverse]
+        root = _cov_root(self.beta_cov[used], self._ctx.var0 > 0)[inverse]
         zb = rng.standard_normal((n, self.beta_mean.shape[1]))
         beta = self.beta_mean[nodes] + np.einsum("sij,sj->si", root, zb)
         load, shift, var = self.latest_growth()
@@ -229,6 +227,21 @@ class StateSpacePosterior:
             q = linear.season_basis(self._ctx.n_seasons)
             out = np.concatenate([out, draws["season"] @ q], axis=-1)
         return out
+
+
+def _cov_root(cov: np.ndarray, free: np.ndarray) -> np.ndarray:
+    """Lower Cholesky factors ``(G, p, p)`` of ``beta``'s posterior covariances.
+
+    A coefficient with a zero prior sd is fixed: its row and column are zero, and so is
+    its row of the factor; the free block is positive definite (``S M^-1 S`` with ``M``
+    positive definite, see :func:`bayesgrowth.inference.statespace_nodes.integrate`).
+    """
+    root = np.zeros_like(cov)
+    idx = np.flatnonzero(free)
+    block = cov[:, idx[:, None], idx[None, :]]
+    root[:, idx[:, None], idx[None, :]] = np.linalg.cholesky(
+        0.5 * (block + np.swapaxes(block, 1, 2)))
+    return root
 
 
 def _context(spec, priors, series) -> Context:

@@ -40,6 +40,7 @@ beyond 3), while the PyMC model keeps sampling them and its written-out algebra.
 
 from __future__ import annotations
 
+import functools
 import math
 
 import numpy as np
@@ -86,9 +87,16 @@ def integrates_linear(spec: ModelSpec) -> bool:
 
 
 def season_basis(m: int) -> np.ndarray:
-    """Orthonormal ``(m, m - 1)`` basis of the vectors that sum to zero."""
+    """Orthonormal ``(m, m - 1)`` basis of the vectors that sum to zero (read-only)."""
+    return _season_basis(int(m))
+
+
+@functools.lru_cache(maxsize=16)
+def _season_basis(m: int) -> np.ndarray:
     q, _ = np.linalg.qr(np.eye(m) - 1.0 / m)
-    return q[:, : m - 1]
+    q = np.ascontiguousarray(q[:, : m - 1])
+    q.flags.writeable = False  # one copy serves every caller
+    return q
 
 
 def season_count(spec: ModelSpec, axis) -> int:
