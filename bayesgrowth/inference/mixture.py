@@ -3,7 +3,18 @@
 For log values the predictive is ``sum_g w_g Normal(m_g, s_g^2)``, so a value's
 predictive is a mixture of log-normals. Its CDF is a weighted sum of normal CDFs;
 quantiles come from safeguarded Newton steps on that CDF (monotone, so the
-bracket always holds the root), to a tolerance far below any band's rounding.
+bracket always holds the root).
+
+A posterior of thousands of grid nodes is first compressed, column by column:
+components close in mean (within a quarter of their sd) and in sd (within 5%) merge
+into one normal of the same weight, mean and variance (:func:`_compress`), a few
+hundred to a few thousand components in all, and the root is found on that. On
+real exact-engine posteriors (M1 and Tourism series) the compressed quantiles lie
+within about 1e-4 of the 2.5-97.5% width of the full mixture's
+(``tests/inference/test_mixture_compression.py``), against a grid error of about
+2e-3 of the 80% band's width; ``exact=True`` (and any mixture of at most
+``_EXACT_BELOW`` components, or a column whose components the bins cannot
+separate finely enough) takes the root of the full mixture.
 """
 
 from __future__ import annotations
@@ -23,6 +34,17 @@ _ITER = 100
 #: 0.3% of that width on a typical series, tests/inference/test_statespace_grid_accuracy.py),
 #: with a third to half of the components of a typical exact posterior left out.
 _TAIL_MASS = 1e-5
+
+#: Mixtures of at most this many components are solved in full (compressing saves nothing).
+_EXACT_BELOW = 1024
+#: Merged components differ in mean by at most this times their smallest sd ...
+_MEAN_BIN = 0.25
+#: ... and in log sd by at most this.
+_LOG_SD_BIN = 0.0175
+#: A column is solved in full when its sds spread over more than this many log units
+#: (a ratio of about 8,000) or its means over more than ``_MAX_BINS`` bins of the
+#: narrowest row: the bins would be too many to save time.
+_MAX_LOG_SD_SPREAD, _MAX_BINS = 9.0, 1024
 
 
 def heaviest(weight: np.ndarray) -> np.ndarray:
@@ -48,12 +70,14 @@ def mixture_cdf(weight: np.ndarray, mean: np.ndarray, sd: np.ndarray,
 
 
 def mixture_quantiles(weight: np.ndarray, mean: np.ndarray, sd: np.ndarray,
-                      probs, tol: float = 1e-9) -> np.ndarray:
+                      probs, tol: float = 1e-9, *, exact: bool = False) -> np.ndarray:
     """Quantiles ``(len(probs), H)`` of the mixture, per column.
 
     Newton steps on the CDF from the moment-matched normal's quantile, each kept
     inside a bracket that bisection would also keep (so the iteration cannot
     leave the root's bracket), until every step is below ``tol * max(1, |x|)``.
+    A mixture of more than ``_EXACT_BELOW`` components is compressed first
+    (the module docstring gives the error this leaves).
 
     Parameters
     ----------
@@ -66,19 +90,119 @@ def mixture_quantiles(weight: np.ndarray, mean: np.ndarray, sd: np.ndarray,
     tol : float
         Relative tolerance of the root (the default is far below any rounding; a
         convergence check needs less).
+    exact : bool
+        Find the root of the full mixture, without compressing it.
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> q = mixture_quantiles(np.array([0.5, 0.5]), np.array([[-1.0], [1.0]]),
+    ...                       np.array([[0.5], [0.5]]), [0.25, 0.5, 0.75])
+    >>> np.round(q[:, 0], 4).tolist()
+    [-0.9999, 0.0, 0.9999]
     """
-    weight, mean, sd = compact(weight, mean, sd)
     p = np.asarray(probs, dtype=float)[:, None]
+    if exact or weight.size <= _EXACT_BELOW:
+        weight, mean, sd = compact(weight, mean, sd)
+        return _full_root(weight, mean, np.maximum(sd, 1e-300), p, tol)
+    # every component lighter than 1e-5 / G goes (less than 1e-5 of the weight in all)
+    keep = weight >= _TAIL_MASS / weight.size
+    if not keep.all():
+        weight, mean, sd = weight[keep] / weight[keep].sum(), mean[keep], sd[keep]
     sd = np.maximum(sd, 1e-300)
-    lo = np.broadcast_to((mean - 40 * sd).min(axis=0), (p.size, mean.shape[1])).copy()
-    hi = np.broadcast_to((mean + 40 * sd).max(axis=0), (p.size, mean.shape[1])).copy()
+    parts = [_compress(weight, mean[:, h], sd[:, h]) for h in range(mean.shape[1])]
+    fine = np.array([part is not None for part in parts])
+    out = np.empty((p.size, mean.shape[1]))
+    if fine.any():
+        merged = [part for part in parts if part is not None]
+        sizes = [part[0].size for part in merged]
+        w, m, s = (np.concatenate([part[i] for part in merged]) for i in range(3))
+        col = np.repeat(np.arange(len(merged)), sizes)
+        starts = np.cumsum(sizes) - sizes
+        out[:, fine] = _ragged_root(w, m, s, col, starts, p, tol)
+    if not fine.all():
+        out[:, ~fine] = _full_root(weight, mean[:, ~fine], sd[:, ~fine], p, tol)
+    return out
+
+
+def _full_root(weight, mean, sd, p, tol):
+    """Quantiles of the full mixture (weights ``(G,)``, columns ``(G, H)``)."""
+    def cdf_density(x):
+        z = (x[..., None, :] - mean) / sd
+        f = np.einsum("g,pgh->ph", weight, ndtr(z))
+        return f, np.einsum("g,pgh->ph", weight, np.exp(-0.5 * z**2) / sd) / np.sqrt(2 * np.pi)
+
+    lo = (mean - 40 * sd).min(axis=0)
+    hi = (mean + 40 * sd).max(axis=0)
     m = weight @ mean
-    s = np.sqrt(weight @ (sd**2 + mean**2) - m**2)
+    s = np.sqrt(np.maximum(weight @ (sd**2 + mean**2) - m**2, 0.0))
+    return _newton(cdf_density, m, s, lo, hi, p, tol)
+
+
+def _ragged_root(w, m, s, col, starts, p, tol):
+    """Quantiles of per-column mixtures stored flat, sorted by column ``col``.
+
+    ``starts[h]`` is where column ``h``'s components begin.
+    """
+    ws, inv_s = w / s, 1.0 / s
+    z, pdf, tail = (np.empty((p.size, w.size)) for _ in range(3))  # reused: fresh arrays
+    neg = np.empty(z.shape, dtype=bool)  # this large cost more than the arithmetic
+
+    def cdf_density(x):
+        np.take(x, col, axis=1, out=z)
+        np.subtract(z, m, out=z)
+        np.multiply(z, inv_s, out=z)
+        _normal_cdf_pdf(z, pdf, tail, neg)
+        np.multiply(z, w, out=z)
+        np.multiply(pdf, ws, out=pdf)
+        return np.add.reduceat(z, starts, axis=1), np.add.reduceat(pdf, starts, axis=1)
+
+    lo = np.minimum.reduceat(m - 40 * s, starts)
+    hi = np.maximum.reduceat(m + 40 * s, starts)
+    mu = np.add.reduceat(w * m, starts)
+    sdev = np.sqrt(np.maximum(np.add.reduceat(w * (s * s + m * m), starts) - mu**2, 0.0))
+    return _newton(cdf_density, mu, sdev, lo, hi, p, tol)
+
+
+#: Abramowitz and Stegun (1964), Handbook of Mathematical Functions, 26.2.17: the
+#: normal tail ``P(Z > z) = pdf(z) * poly(1 / (1 + P z))`` for ``z >= 0``, within 7.5e-8.
+_AS_P = 0.2316419
+_AS_B = (1.330274429, -1.821255978, 1.781477937, -0.356563782, 0.319381530)
+
+
+def _normal_cdf_pdf(z: np.ndarray, pdf: np.ndarray, tail: np.ndarray, neg: np.ndarray):
+    """Standard normal CDF (within 7.5e-8, 26.2.17 of Abramowitz and Stegun) and density.
+
+    Overwrites ``z`` with the CDF and ``pdf`` with the density (``tail`` and ``neg`` are
+    scratch of ``z``'s shape). Four times cheaper than ``ndtr`` and the density together;
+    the error is far below what compressing the mixture leaves.
+    """
+    np.less(z, 0.0, out=neg)
+    np.multiply(z, z, out=pdf)
+    pdf *= -0.5
+    np.exp(pdf, out=pdf)
+    pdf *= 1.0 / np.sqrt(2.0 * np.pi)
+    np.abs(z, out=z)  # z becomes t = 1 / (1 + P |z|)
+    z *= _AS_P
+    z += 1.0
+    np.reciprocal(z, out=z)
+    np.multiply(z, _AS_B[0], out=tail)
+    for b in _AS_B[1:]:
+        tail += b
+        tail *= z
+    tail *= pdf  # P(Z > |z|)
+    np.subtract(1.0, tail, out=z)
+    np.copyto(z, tail, where=neg)
+
+
+def _newton(cdf_density, m, s, lo, hi, p, tol):
+    """Safeguarded Newton on ``cdf_density(x) -> (F(x), F'(x))`` from ``m + s * ndtri(p)``."""
+    shape = (p.size, m.size)
+    lo, hi = np.broadcast_to(lo, shape).copy(), np.broadcast_to(hi, shape).copy()
     x = np.clip(m + s * ndtri(p), lo, hi)
     for _ in range(_ITER):
-        z = (x[..., None, :] - mean) / sd
-        f = np.einsum("g,pgh->ph", weight, ndtr(z)) - p
-        dens = np.einsum("g,pgh->ph", weight, np.exp(-0.5 * z**2) / sd) / np.sqrt(2 * np.pi)
+        f, dens = cdf_density(x)
+        f = f - p
         lo = np.where(f < 0, x, lo)
         hi = np.where(f < 0, hi, x)
         with np.errstate(divide="ignore", invalid="ignore"):
@@ -90,6 +214,50 @@ def mixture_quantiles(weight: np.ndarray, mean: np.ndarray, sd: np.ndarray,
             return new
         x = new
     return x
+
+
+def _compress(weight: np.ndarray, mean: np.ndarray, sd: np.ndarray):
+    """One column's components merged where close in mean and sd, or None if too spread.
+
+    The components fall into rows of log sd ``_LOG_SD_BIN`` wide and, within a row,
+    into bins of mean ``_MEAN_BIN`` times the row's smallest sd wide; each bin becomes
+    one normal with the bin's weight, mean and variance (its components' variances
+    plus the spread of their means). A column at a time keeps the arrays small
+    (fresh large arrays cost more here than the arithmetic on them).
+
+    Parameters
+    ----------
+    weight, mean, sd : numpy.ndarray, shape (G,)
+
+    Returns
+    -------
+    tuple of numpy.ndarray or None
+        Weights, means and sds of the merged components; None when the sds spread
+        over more than ``_MAX_LOG_SD_SPREAD`` or the means over more than
+        ``_MAX_BINS`` bins of the narrowest row.
+    """
+    log_sd = np.log(sd)
+    lmin, mmin = log_sd.min(), mean.min()
+    rows = int((log_sd.max() - lmin) / _LOG_SD_BIN) + 1
+    if rows * _LOG_SD_BIN > _MAX_LOG_SD_SPREAD + _LOG_SD_BIN:
+        return None
+    # reciprocal bin width and bin count per row; rounding is monotone, so no component's
+    # bin passes its row's count
+    inv = np.exp(-lmin - _LOG_SD_BIN * np.arange(rows)) / _MEAN_BIN
+    bins = ((mean.max() - mmin) * inv).astype(int) + 1
+    if bins[0] > _MAX_BINS:
+        return None
+    first = np.cumsum(bins) - bins  # first key of each row
+    row = ((log_sd - lmin) / _LOG_SD_BIN).astype(int)
+    key = first[row] + ((mean - mmin) * inv[row]).astype(int)
+    n = int(first[-1] + bins[-1])
+    total = np.bincount(key, weight, n)
+    m1 = np.bincount(key, weight * mean, n)
+    m2 = np.bincount(key, weight * (mean * mean + sd * sd), n)
+    k = np.flatnonzero(total > 0)
+    w = total[k]
+    mu = m1[k] / w
+    return w, mu, np.sqrt(np.maximum(m2[k] / w - mu * mu, 0.0))
 
 
 def mixture_mean_exp(weight: np.ndarray, mean: np.ndarray, sd: np.ndarray) -> np.ndarray:

@@ -42,6 +42,8 @@ def predictive(post, t_future: np.ndarray, joint: bool = True,
     beta_mean, beta_cov = post.beta_mean[sel], post.beta_cov[sel]
     jf = np.asarray(t_future, dtype=int) - post.t_ref
     steps = jf - int(ctx.idx[-1])
+    if not joint and not _drifts(post):
+        return _plain_marginal(post, p, state, state_cov, beta_mean, beta_cov, jf, steps)
     rho = p["rho"]
     xf = design(ctx, rho, jf, post._season_rows(t_future))
     z = np.stack([np.ones((rho.size, steps.size)),
@@ -60,9 +62,55 @@ def predictive(post, t_future: np.ndarray, joint: bool = True,
         noise = (p["sigma"] ** 2)[:, None, None] * np.eye(steps.size)[None]
         return {"mean": mean, "curve_cov": cov, "value_cov": cov + noise}
     var = (gb * g).sum(-1) + np.einsum("ghi,gij,ghj->gh", z, state_cov, z)
-    for term in shock_terms(p, steps, ctx.n_seasons):
+    return _marginal(p, steps, ctx.n_seasons, mean, var)
+
+
+def _marginal(p: dict, steps: np.ndarray, seasons: int, mean: np.ndarray,
+              var: np.ndarray) -> dict:
+    """The marginal predictive from the mean and the variance of the level before shocks."""
+    for term in shock_terms(p, steps, seasons):
         var = var + term
     return {"mean": mean, "curve_var": var, "value_var": var + p["sigma"][:, None] ** 2}
+
+
+def _plain_marginal(post, p: dict, state, state_cov, beta_mean, beta_cov, jf, steps) -> dict:
+    """:func:`predictive` without joint covariances or drifting seasons, in (G, H) arrays.
+
+    The level's loading on ``beta`` is ``g = a + c_h + w v - u b1`` per node and step:
+    ``a = e_level - b0`` and ``b1`` per node (``b0``, ``b1`` the state's loadings on
+    ``beta``), ``c_h`` per step (long-run offset, seasons), ``w`` and ``u`` the growth
+    loadings of the design and of the state. Expanding ``g' B g`` in these terms needs
+    only products per node and one matrix product over the steps, instead of a small
+    matrix product per node and step (several times slower, the same numbers to rounding).
+    """
+    ctx, rho = post._ctx, p["rho"]
+    w = growth_loading(rho, jf.astype(float))
+    u = growth_loading(rho, steps.astype(float))
+    k = beta_mean.shape[1]
+    v = np.zeros(k)
+    v[1] = 1.0
+    c = np.zeros((jf.size, k))
+    if ctx.long_run:  # the long-run column is j - w
+        v[2] = -1.0
+        c[:, 2] = jf
+    season = post._season_rows(post.t_ref + jf)
+    if season is not None:
+        c[:, k - season.shape[1]:] = season
+    ay, b0, b1 = state[:, :, 0], state[:, 0, 1:], state[:, 1, 1:]
+    a = -b0
+    a[:, 0] += 1.0
+    mean = (ay[:, 0] + (a * beta_mean).sum(1))[:, None] + beta_mean @ c.T
+    mean += w * (beta_mean @ v)[:, None] + u * (ay[:, 1] - (b1 * beta_mean).sum(1))[:, None]
+    ba, bv, bb = (np.einsum("gpq,gq->gp", beta_cov, x) for x in (a, np.broadcast_to(v, a.shape),
+                                                                 b1))
+    cc = (c[:, :, None] * c[:, None, :]).reshape(jf.size, k * k)
+    var = (a * ba).sum(1)[:, None] + 2 * ba @ c.T + beta_cov.reshape(-1, k * k) @ cc.T
+    var += w * w * (bv @ v)[:, None] + u * u * (b1 * bb).sum(1)[:, None]
+    var += 2 * w * ((a * bv).sum(1)[:, None] + bv @ c.T)
+    var -= 2 * u * ((a * bb).sum(1)[:, None] + bb @ c.T) + 2 * w * u * (bb @ v)[:, None]
+    var += state_cov[:, 0, 0][:, None] + u * (2 * state_cov[:, 0, 1][:, None]
+                                              + u * state_cov[:, 1, 1][:, None])
+    return _marginal(p, steps, ctx.n_seasons, mean, var)
 
 
 def _shock_cov(post, p: dict, s: np.ndarray) -> list:
