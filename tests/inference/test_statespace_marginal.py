@@ -12,17 +12,18 @@ import numpy as np
 import pytest
 
 import bayesgrowth as bg
+from bayesgrowth.config import DEFAULT_MODEL
 from bayesgrowth.inference import statespace_paths as paths
 from bayesgrowth.inference.run import fit_series
 
 
 @pytest.mark.parametrize("options", [
-    {"seasonal": True},
-    {"seasonal": False},
-    {"seasonal": True, "drift": "adaptive"},
+    DEFAULT_MODEL,
+    {**DEFAULT_MODEL, "seasonal": False},
+    {**DEFAULT_MODEL, "drift": "adaptive"},  # with nodes of growth that does not revert
 ])
 def test_marginal_predictive_equals_the_joint_ones_diagonal(options):
-    fit = fit_series(bg.load_demo(), engine="exact", model="local-trend", seed=3, **options)
+    fit = fit_series(bg.load_demo(), engine="exact", seed=3, **options)
     post = fit.state_space
     t = fit.series.future_t(6)
     marginal = paths.predictive(post, t, joint=False)
