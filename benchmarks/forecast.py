@@ -26,15 +26,20 @@ import sys
 import tempfile
 import time
 
+# the program's own entry (main() reading sys.argv ends the process as the command does);
+# the figures are printed by an exit handler, which it runs
 CHILD = r"""
-import resource, sys
+import atexit, resource, sys
+
+def report():
+    heavy = sorted(m for m in ("pymc", "pytensor", "arviz", "xarray", "dask", "scipy")
+                   if m in sys.modules)
+    print("MAXRSS_KB", resource.getrusage(resource.RUSAGE_SELF).ru_maxrss, file=sys.stderr)
+    print("HEAVY", ",".join(heavy) or "-", file=sys.stderr)
+
+atexit.register(report)
 from bayesgrowth.cli import main
-rc = main(sys.argv[1:])
-heavy = sorted(m for m in ("pymc", "pytensor", "arviz", "xarray", "dask", "scipy")
-               if m in sys.modules)
-print("MAXRSS_KB", resource.getrusage(resource.RUSAGE_SELF).ru_maxrss, file=sys.stderr)
-print("HEAVY", ",".join(heavy) or "-", file=sys.stderr)
-sys.exit(rc)
+sys.exit(main())
 """
 
 

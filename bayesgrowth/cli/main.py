@@ -268,7 +268,44 @@ def _run_demo(args) -> int:
 
 
 def main(argv: list[str] | None = None) -> int:
-    """Run the command line; returns the exit code."""
+    """Run the command line; returns the exit code.
+
+    Without ``argv`` it is the program (the ``bayesgrowth`` command, ``python -m
+    bayesgrowth``: the arguments come from ``sys.argv``), and once the command is done it
+    ends the process itself (:func:`end_process`). With ``argv`` it runs the command in
+    this process and returns its exit code.
+    """
+    code = _run(argv)
+    if argv is None:
+        end_process(code)
+    return code
+
+
+def end_process(code: int) -> None:
+    """End the process with ``code``, skipping the interpreter's teardown if nothing else runs.
+
+    Python's own exit frees the objects of every loaded module one by one: about 0.2 s once
+    pandas and matplotlib are loaded, a fifth of a forecast's command. The command's files
+    are in place when it returns, so with no other thread running the exit handlers run
+    (what an ordinary exit runs first: logging, temporary folders), the printed output is
+    flushed and the process ends at once. With other threads (a Dask cluster, a pool) it
+    exits as usual, which waits for them.
+    """
+    import atexit
+    import threading
+
+    if threading.active_count() > 1:
+        sys.exit(code)
+    atexit._run_exitfuncs()
+    for stream in (sys.stdout, sys.stderr):
+        try:
+            stream.flush()
+        except (OSError, ValueError):  # the reader went away, or the stream was closed
+            pass
+    os._exit(code)
+
+
+def _run(argv: list[str] | None) -> int:
     first = (sys.argv[1:] if argv is None else argv)[:1]
     parser = build_parser(first[0] if first and first[0] in COMMANDS else None)
     try:
