@@ -93,8 +93,8 @@ def _plain_marginal(post, p: dict, state, state_cov, beta_mean, beta_cov, jf, st
         c[:, k - season.shape[1]:] = season
     ay, a, b1 = state[:, :, 0], -state[:, 0, 1:], state[:, 1, 1:]
     a[:, 0] += 1.0
-    ba, bv, bb = (np.einsum("gpq,gq->gp", beta_cov, x) for x in (a, np.broadcast_to(v, a.shape),
-                                                                 b1))
+    ba, bb = (np.einsum("gpq,gq->gp", beta_cov, x) for x in (a, b1))
+    bv = (beta_cov.reshape(-1, k) @ v).reshape(-1, k)
 
     def dot(x, y):
         return np.einsum("gp,gp->g", x, y)
@@ -145,18 +145,17 @@ def shock_terms(p: dict, steps: np.ndarray, seasons: int = 0) -> list:
     drifting seasons (``sigma_season`` in ``p``, ``seasons`` of them), the seasonal shocks.
     """
     # a growth shock k steps before h loads (1 - rho^k) / (1 - rho) on the level, so the
-    # shocks add a cumulative sum
-    r = p["rho"][:, None]
+    # shocks add a cumulative sum; worked out as (H, G) arrays, returned as (G, H) views
+    r = p["rho"][None, :]
     s = steps.astype(float)
-    k = np.arange(1, int(s.max()) + 1, dtype=float)[None, :]
+    k = np.arange(1, int(s.max()) + 1, dtype=float)[:, None]
     with np.errstate(divide="ignore", invalid="ignore"):
         load = np.where(r == 1.0, k, (1 - r**k) / (1 - r))
-    shocks = np.cumsum(load**2, axis=1)[:, steps - 1]
-    out = [(p["sigma_growth"] ** 2)[:, None] * shocks,
-           (p["sigma_level"] ** 2)[:, None] * s[None, :]]
+    shocks = np.cumsum(load**2, axis=0)[steps - 1]
+    out = [(p["sigma_growth"] ** 2 * shocks).T, (p["sigma_level"] ** 2 * s[:, None]).T]
     if "sigma_season" in p:
         psi2 = np.cumsum(impulse(seasons, int(s.max())) ** 2)[steps - 1]
-        out.append((p["sigma_season"] ** 2)[:, None] * psi2[None, :])
+        out.append((p["sigma_season"] ** 2 * psi2[:, None]).T)
     return out
 
 
