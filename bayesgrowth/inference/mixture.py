@@ -235,13 +235,14 @@ def _compress(weight: np.ndarray, mean: np.ndarray, sd: np.ndarray):
     tuple of numpy.ndarray or None
         Weights, means and sds of the merged components; None when the sds spread
         over more than ``_MAX_LOG_SD_SPREAD`` or the means over more than
-        ``_MAX_BINS`` bins of the narrowest row.
+        ``_MAX_BINS`` bins of the narrowest row, or a value is not finite.
     """
     log_sd = np.log(sd)
     lmin, mmin = log_sd.min(), mean.min()
-    rows = int((log_sd.max() - lmin) / _LOG_SD_BIN) + 1
-    if rows * _LOG_SD_BIN > _MAX_LOG_SD_SPREAD + _LOG_SD_BIN:
-        return None
+    spread = log_sd.max() - lmin
+    if not (spread <= _MAX_LOG_SD_SPREAD and np.isfinite(mean.max() - mmin)):
+        return None  # also a column holding an infinite or undefined value
+    rows = int(spread / _LOG_SD_BIN) + 1
     # reciprocal bin width and bin count per row; rounding is monotone, so no component's
     # bin passes its row's count
     inv = np.exp(-lmin - _LOG_SD_BIN * np.arange(rows)) / _MEAN_BIN
