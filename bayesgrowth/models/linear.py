@@ -3,39 +3,36 @@
 In the exponential and damped curves (given the half-life) and in the local
 trend, the starting level ``log a``, the growth ``b`` and the long-run growth
 ``c`` enter the log mean linearly, ``m = X beta``, and so do the local trend's
-seasonal factors (the curves sample theirs: that keeps ``p <= 3`` coefficients,
-whose algebra is written out in closed form). Their priors
-are normal, ``beta ~ N(mu0, diag(v0))``, so with normal noise the log values are
-normal given the remaining parameters, with mean ``X mu0`` and covariance ``K +
-X diag(v0) X'`` (``K`` the error covariance). NUTS then samples only the scales
-and shape parameters, and each draw's ``beta`` is drawn afterwards from its exact
-normal conditional.
+seasonal factors (the curves sample theirs: that keeps ``p <= 3`` coefficients, whose
+algebra is written out in closed form). Their priors are normal, ``beta ~ N(mu0,
+diag(v0))``, so with normal noise the log values are normal given the remaining parameters,
+with mean ``X mu0`` and covariance ``K + X diag(v0) X'`` (``K`` the error covariance). NUTS
+then samples only the scales and shape parameters, and each draw's ``beta`` is drawn
+afterwards from its exact normal conditional.
 
-Why: sampled jointly with the AR(1) persistence ``phi``, the starting level made
-a funnel. Its posterior sd grows like ``sigma / sqrt(1 - phi^2)`` as ``phi``
-nears 1, and NUTS diverged on US real GDP (14 divergent transitions on 20
-quarters; none once ``log a`` was fixed). Without level shocks, the local trend
-has the same funnel in the noise scale.
+Why: sampled jointly with the AR(1) persistence ``phi``, the starting level made a funnel.
+Its posterior sd grows like ``sigma / sqrt(1 - phi^2)`` as ``phi`` nears 1, and NUTS diverged
+on US real GDP (14 divergent transitions on 20 quarters; none once ``log a`` was fixed).
+Without level shocks, the local trend has the same funnel in the noise scale.
 
-For the curves with independent or AR(1) errors, ``K^-1 = T'T`` with ``T`` the
-innovation transform (each row turns an error into its standardised innovation),
-so the marginal density is computed in ``O(n p^2)``. With ``z = T (y - X mu0)``,
-``W = T X`` and ``M = diag(1/v0) + W'W``:
+For the curves with independent or AR(1) errors, ``K^-1 = T'T`` with ``T`` the innovation
+transform (each row turns an error into its standardised innovation), so the marginal
+density is computed in ``O(n p^2)``. With ``z = T (y - X mu0)``, ``W = T X`` and ``M =
+diag(1/v0) + W'W``:
 
 ``log p(y) = -n/2 log(2 pi) - log det T^-1 - z'z/2 + g' M^-1 g / 2 - log det(diag(v0) M) / 2``,
 
-with ``g = W'z`` (the Woodbury identity). Given the other parameters, ``beta - mu0 ~
-N(M^-1 g, M^-1)``. A coefficient with prior variance 0 is fixed at its mean and
-left out of ``X``. ``M`` is at most 3 x 3, and its determinant and inverse are
-written out with cofactors: PyTensor runs its Cholesky and triangular solves as
-Python calls, which made each gradient about 1.3 ms on the damped curve.
+with ``g = W'z`` (the Woodbury identity). Given the other parameters, ``beta - mu0 ~ N(M^-1
+g, M^-1)``. A coefficient with prior variance 0 is fixed at its mean and left out of ``X``.
+``M`` is at most 3 x 3, and its determinant and inverse are written out with cofactors:
+PyTensor runs its Cholesky and triangular solves as Python calls, which made each gradient
+about 1.3 ms on the damped curve.
 
-A ``ZeroSumNormal(s)`` vector of ``m`` seasonal factors is ``Q eta``, with ``eta ~ N(0,
-s^2 I)`` and ``Q`` an orthonormal basis of the zero-sum vectors. The exact engines of the
-exponential curve integrate the curve's seasonal factors out that way too
-(:func:`with_season_columns`: columns ``D Q`` beside the curve's, ``D`` the season
-indicators); their NumPy algebra takes any number of coefficients (a Cholesky factor
-beyond 3), while the PyMC model keeps sampling them and its written-out algebra.
+A ``ZeroSumNormal(s)`` vector of ``m`` seasonal factors is ``Q eta``, with ``eta ~ N(0, s^2
+I)`` and ``Q`` an orthonormal basis of the zero-sum vectors. The exact engines of the
+exponential curve integrate its seasonal factors out that way too (:func:`with_season_columns`:
+columns ``D Q``, ``D`` the season indicators); their NumPy algebra takes any number of
+coefficients, while the PyMC model keeps sampling them and its written-out algebra.
 """
 
 from __future__ import annotations
@@ -86,16 +83,11 @@ def integrates_linear(spec: ModelSpec) -> bool:
             and not spec.is_plain_exponential)
 
 
-def season_basis(m: int) -> np.ndarray:
-    """Orthonormal ``(m, m - 1)`` basis of the vectors that sum to zero (read-only)."""
-    return _season_basis(int(m))
-
-
 @functools.lru_cache(maxsize=16)
-def _season_basis(m: int) -> np.ndarray:
-    q, _ = np.linalg.qr(np.eye(m) - 1.0 / m)
-    q = np.ascontiguousarray(q[:, : m - 1])
-    q.flags.writeable = False  # one copy serves every caller
+def season_basis(m: int) -> np.ndarray:
+    """Orthonormal ``(m, m - 1)`` basis of the vectors that sum to zero (cached, read-only)."""
+    q = np.linalg.qr(np.eye(m) - 1.0 / m)[0][:, : m - 1].copy()
+    q.flags.writeable = False
     return q
 
 
