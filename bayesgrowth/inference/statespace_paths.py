@@ -80,7 +80,8 @@ def _plain_marginal(post, p: dict, state, state_cov, beta_mean, beta_cov, jf, st
     ``(G, H)`` views of them.
     """
     ctx, rho = post._ctx, p["rho"]
-    w, u = _loading(rho, jf), _loading(rho, steps)
+    # growth loadings as (H, G): per-node terms then broadcast along rows
+    w, u = (growth_loading(rho, np.asarray(j, dtype=float)).T for j in (jf, steps))
     k = beta_mean.shape[1]
     v = np.zeros(k)
     v[1] = 1.0
@@ -112,13 +113,6 @@ def _plain_marginal(post, p: dict, state, state_cov, beta_mean, beta_cov, jf, st
         var += term.T
     value = var + p["sigma"] ** 2
     return {"mean": mean.T, "curve_var": var.T, "value_var": value.T}
-
-
-def _loading(rho: np.ndarray, j: np.ndarray) -> np.ndarray:
-    """:func:`~bayesgrowth.inference.statespace_nodes.growth_loading`, as ``(len(j), G)``."""
-    r, jj = rho[None, :], np.asarray(j, dtype=float)[:, None]
-    with np.errstate(divide="ignore", invalid="ignore"):
-        return np.where(r == 1.0, jj, r * (1 - r**jj) / (1 - r))
 
 
 def _shock_cov(post, p: dict, s: np.ndarray) -> list:
