@@ -245,7 +245,7 @@ def gram_filter(y, season, grid_index, rho, sigma_level, sigma_growth, sigma, lo
     if _COMPILED is None:
         import numba
 
-        _COMPILED = numba.njit(cache=True)(_gram_kernel)
+        _COMPILED = numba.njit(cache=True, error_model="numpy")(_gram_kernel)
     season = np.zeros((len(y), 0)) if season is None else np.ascontiguousarray(season, float)
     rho = np.ascontiguousarray(rho, dtype=float)
     g = rho.size
@@ -341,7 +341,7 @@ def integrate_compiled(gram, logf, n, mu0, var0):
     if _INTEGRATE is None:
         import numba
 
-        _INTEGRATE = numba.njit(cache=True)(_integrate_kernel)
+        _INTEGRATE = numba.njit(cache=True, error_model="numpy")(_integrate_kernel)
     g, p = gram.shape[0], gram.shape[1] - 1
     loglik = np.empty(g)
     beta_mean = np.empty((g, p))

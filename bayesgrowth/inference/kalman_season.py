@@ -238,10 +238,10 @@ def gram_filter_season(y, season, grid_index, rho, sigma_level, sigma_growth, si
     if _COMPILED is None:
         import numba
 
-        _predict_c = numba.njit(cache=True)(_predict)
-        _update_c = numba.njit(cache=True)(_update)
-        _store_c = numba.njit(cache=True)(_store)
-        _COMPILED = numba.njit(cache=True)(_season_kernel)
+        _predict_c = numba.njit(cache=True, error_model="numpy")(_predict)
+        _update_c = numba.njit(cache=True, error_model="numpy")(_update)
+        _store_c = numba.njit(cache=True, error_model="numpy")(_store)
+        _COMPILED = numba.njit(cache=True, error_model="numpy")(_season_kernel)
     season = np.zeros((len(y), 0)) if season is None else np.ascontiguousarray(season, float)
     rho = np.ascontiguousarray(rho, dtype=float)
     g, r = rho.size, m + 1
