@@ -80,6 +80,47 @@ def saturates(fit) -> bool:
     return bool(spec is not None and spec.family.ceiling)
 
 
+class _Paths:
+    """Predictive paths simulated on first use (the exact engine's bands need none)."""
+
+    def __init__(self, make) -> None:
+        self._make, self._out = make, None
+
+    def get(self, i: int) -> np.ndarray:
+        if self._out is None:
+            self._out = self._make()
+        return self._out[i]
+
+    def __getstate__(self) -> dict:  # pickled (to a worker, say) as the paths themselves
+        self.get(0)
+        return {"_make": None, "_out": self._out}
+
+
+class _Drawn:
+    """A :class:`Forecast` field that may hold a :class:`_Paths` until it is read.
+
+    For dataclass fields (a descriptor-typed field): raising ``AttributeError`` on class
+    access tells :func:`dataclasses.dataclass` that the field has no default.
+    """
+
+    def __init__(self, index: int) -> None:
+        self._index = index
+
+    def __set_name__(self, owner, name: str) -> None:
+        self._key = "_" + name
+
+    def __get__(self, obj, objtype=None):
+        if obj is None:
+            raise AttributeError(self._key[1:])
+        value = obj.__dict__[self._key]
+        if isinstance(value, _Paths):
+            value = obj.__dict__[self._key] = value.get(self._index)
+        return value
+
+    def __set__(self, obj, value) -> None:
+        obj.__dict__[self._key] = value
+
+
 @dataclass
 class Forecast:
     """A posterior predictive forecast for ``horizon`` periods after the last observation.
@@ -97,6 +138,7 @@ class Forecast:
         Time indices of the future periods.
     draws : numpy.ndarray, shape (n_draws, horizon)
         Posterior predictive draws of the value (parameter and noise uncertainty).
+        For the exact engine they are simulated when first read.
     curve_draws : numpy.ndarray, shape (n_draws, horizon)
         Draws of the mean curve alone (parameter uncertainty only).
     seed : int
@@ -113,8 +155,8 @@ class Forecast:
     levels: tuple[int, ...]
     periods: list[str]
     t: np.ndarray
-    draws: np.ndarray
-    curve_draws: np.ndarray
+    draws: np.ndarray = _Drawn(0)
+    curve_draws: np.ndarray = _Drawn(1)
     seed: int
     exact: dict | None = None
 
@@ -300,42 +342,50 @@ def forecast(
     t = fit.series.future_t(horizon)
     exact = None
     if fit.state_space is not None:
-        log_draws, curve, exact = _state_space_draws(fit, t, rng)
-    elif fit.spec.is_plain_exponential:
-        params = fit.flat()
-        log_draws = exponential.simulate_log(params, t, fit.priors.t_ref, rng)
-        curve = exponential.log_mean(params, t, fit.priors.t_ref)
+        exact = _state_space_mixture(fit, t)
+        draws = curve_draws = _Paths(lambda: _state_space_draws(fit, t, rng))
     else:
-        s = fit.series
-        log_draws, curve = general.simulate_log(
-            fit.spec, fit.flat(), s.t, s.log_values, t, fit.priors.t_ref, rng, s.axis
-        )
+        if fit.spec.is_plain_exponential:
+            params = fit.flat()
+            log_draws = exponential.simulate_log(params, t, fit.priors.t_ref, rng)
+            curve = exponential.log_mean(params, t, fit.priors.t_ref)
+        else:
+            s = fit.series
+            log_draws, curve = general.simulate_log(
+                fit.spec, fit.flat(), s.t, s.log_values, t, fit.priors.t_ref, rng, s.axis
+            )
+        draws, curve_draws = np.exp(log_draws), np.exp(curve)
     return Forecast(
         fit=fit,
         horizon=horizon,
         levels=levels,
         periods=fit.series.future_labels(horizon),
         t=t,
-        draws=np.exp(log_draws),
-        curve_draws=np.exp(curve),
+        draws=draws,
+        curve_draws=curve_draws,
         seed=seed,
         exact=exact,
     )
 
 
-def _state_space_draws(fit: Fit, t: np.ndarray, rng: np.random.Generator):
-    """Joint predictive draws, one path per posterior draw (its node and coefficients).
-
-    Returns the log value draws, the log level draws and the mixture description.
-    """
+def _state_space_mixture(fit: Fit, t: np.ndarray) -> dict:
+    """The exact predictive as a mixture of normals on the log scale (per node)."""
     post = fit.state_space
     marginal = post.predictive(t, joint=False)
-    nodes = fit.extra["nodes"].reshape(-1)
-    curve, values = post.simulate(t, nodes, post.beta_of(fit.flat()), rng)
-    exact = {
+    return {
         "weight": post.weight,
         "mean": marginal["mean"],
         "value_sd": np.sqrt(marginal["value_var"]),
         "curve_sd": np.sqrt(np.clip(marginal["curve_var"], 0, None)),
     }
-    return values, curve, exact
+
+
+def _state_space_draws(fit: Fit, t: np.ndarray, rng: np.random.Generator):
+    """Joint predictive paths, one per posterior draw (its node and coefficients).
+
+    Returns the value draws and the level draws.
+    """
+    post = fit.state_space
+    nodes = fit.extra["nodes"].reshape(-1)
+    curve, values = post.simulate(t, nodes, post.beta_of(fit.flat()), rng)
+    return np.exp(values), np.exp(curve)
