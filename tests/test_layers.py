@@ -16,7 +16,8 @@ PACKAGE = Path(bayesgrowth.__file__).parent
 #: Lowest first; a module may import its own layer and the layers before it. The
 #: same order is written out in DEVELOPERS.md ("Layout").
 LAYERS = [
-    ["bayesgrowth._version", "bayesgrowth.config", "bayesgrowth.seeds", "bayesgrowth.display"],
+    ["bayesgrowth._version", "bayesgrowth.config", "bayesgrowth.seeds", "bayesgrowth.display",
+     "bayesgrowth.lazy"],
     ["bayesgrowth.data"],
     ["bayesgrowth.priors"],
     ["bayesgrowth.scoring", "bayesgrowth.leastsq"],

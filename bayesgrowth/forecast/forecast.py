@@ -20,6 +20,7 @@ from bayesgrowth.forecast.bands import (
 from bayesgrowth.forecast.summaries import forecast_html, forecast_summary, forecast_text
 from bayesgrowth.inference.fit import Fit
 from bayesgrowth.inference.mixture import mixture_cdf, mixture_mean_exp, mixture_quantiles
+from bayesgrowth.lazy import Deferred, LazyField
 from bayesgrowth.models import exponential, general
 from bayesgrowth.seeds import stream
 
@@ -80,47 +81,6 @@ def saturates(fit) -> bool:
     return bool(spec is not None and spec.family.ceiling)
 
 
-class _Paths:
-    """Predictive paths simulated on first use (the exact engine's bands need none)."""
-
-    def __init__(self, make) -> None:
-        self._make, self._out = make, None
-
-    def get(self, i: int) -> np.ndarray:
-        if self._out is None:
-            self._out = self._make()
-        return self._out[i]
-
-    def __getstate__(self) -> dict:  # pickled (to a worker, say) as the paths themselves
-        self.get(0)
-        return {"_make": None, "_out": self._out}
-
-
-class _Drawn:
-    """A :class:`Forecast` field that may hold a :class:`_Paths` until it is read.
-
-    For dataclass fields (a descriptor-typed field): raising ``AttributeError`` on class
-    access tells :func:`dataclasses.dataclass` that the field has no default.
-    """
-
-    def __init__(self, index: int) -> None:
-        self._index = index
-
-    def __set_name__(self, owner, name: str) -> None:
-        self._key = "_" + name
-
-    def __get__(self, obj, objtype=None):
-        if obj is None:
-            raise AttributeError(self._key[1:])
-        value = obj.__dict__[self._key]
-        if isinstance(value, _Paths):
-            value = obj.__dict__[self._key] = value.get(self._index)
-        return value
-
-    def __set__(self, obj, value) -> None:
-        obj.__dict__[self._key] = value
-
-
 @dataclass
 class Forecast:
     """A posterior predictive forecast for ``horizon`` periods after the last observation.
@@ -155,8 +115,8 @@ class Forecast:
     levels: tuple[int, ...]
     periods: list[str]
     t: np.ndarray
-    draws: np.ndarray = _Drawn(0)
-    curve_draws: np.ndarray = _Drawn(1)
+    draws: np.ndarray = LazyField(0)
+    curve_draws: np.ndarray = LazyField(1)
     seed: int
     exact: dict | None = None
 
@@ -343,7 +303,7 @@ def forecast(
     exact = None
     if fit.state_space is not None:
         exact = _state_space_mixture(fit, t)
-        draws = curve_draws = _Paths(lambda: _state_space_draws(fit, t, rng))
+        draws = curve_draws = Deferred(lambda: _state_space_draws(fit, t, rng))
     else:
         if fit.spec.is_plain_exponential:
             params = fit.flat()

@@ -12,6 +12,7 @@ from bayesgrowth._version import __version__
 from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.display import fmt_number, fmt_percent, html_summary, text_summary
 from bayesgrowth.inference.diagnostics import Diagnostics
+from bayesgrowth.lazy import LazyField
 from bayesgrowth.models import exponential, general
 from bayesgrowth.models.spec import ModelSpec
 from bayesgrowth.priors import ResolvedPriors
@@ -46,6 +47,7 @@ class Fit:
         ``sigma``, and the further parameters of ``spec``), or ``(chain, draw, k)``
         for vectors (the seasonal factors ``season``). The local trend's states are
         integrated out, so its posterior holds only scalar parameters.
+        The exact engine draws them when they are first read.
     diagnostics : Diagnostics
         Convergence checks.
     settings : dict
@@ -67,7 +69,7 @@ class Fit:
     priors: ResolvedPriors
     engine: str
     seed: int
-    posterior: dict[str, np.ndarray]
+    posterior: dict[str, np.ndarray] = LazyField(0)
     diagnostics: Diagnostics
     settings: dict = field(default_factory=dict)
     model: str = "exponential"

@@ -39,6 +39,7 @@ from bayesgrowth.inference import statespace_grid as grid
 from bayesgrowth.inference import statespace_paths as paths
 from bayesgrowth.inference.mixture import heaviest, mixture_quantiles
 from bayesgrowth.inference.statespace_nodes import Context, innovations
+from bayesgrowth.lazy import Deferred, DeferredMapping
 from bayesgrowth.models import linear
 from bayesgrowth.seeds import stream
 
@@ -329,24 +330,20 @@ def fit_state_space(series, priors, spec, *, seed: int, draws: int = 1000, chain
     """Fit a local trend by the exact engine: the grid posterior plus independent draws.
 
     The draws (``chains * draws``, arranged as chains only to match the NUTS
-    engine's shape) serve the consumers that need draws; bands and
-    probabilities use the grid posterior itself (:attr:`Fit.state_space`).
+    engine's shape) serve the consumers that need draws, and are made when first
+    read; bands and probabilities use the grid posterior itself
+    (:attr:`Fit.state_space`).
 
     Returns
     -------
     Fit
     """
     from bayesgrowth.inference.diagnostics import Diagnostics
-    from bayesgrowth.inference.fit import Fit, as_chains
+    from bayesgrowth.inference.fit import Fit
 
     post = state_space_posterior(series, priors, spec)
-    rng = stream(seed, "posterior_completion")
     n = chains * draws
-    nodes, flat = post.sample(n, rng)
-    latest = flat.pop("latest_log_growth")
-    shape = (chains, draws)
-    posterior = as_chains(flat, [k for k in flat if k in spec.parameters() or k == "season"],
-                          chains, draws)
+    drawn = Deferred(lambda: _draws(post, spec, seed, chains, draws))
     settled = ("its forecast quantiles moved by less than 2% of their 10-90 width at the last "
                "refinement" if post.last_move <= _SETTLE else
                f"its forecast quantiles still moved by {100 * post.last_move:.1f}% of their 10-90 "
@@ -356,6 +353,18 @@ def fit_state_space(series, priors, spec, *, seed: int, draws: int = 1000, chain
         f"({post.n_nodes} nodes; {settled}), independent draws: no chains to check")
     settings = {"draws": draws, "chains": chains, "grid_points": post.grid_points,
                 "grid_nodes": post.n_nodes, "grid_last_move": post.last_move}
-    return Fit(series=series, priors=priors, engine="exact", seed=seed, posterior=posterior,
+    return Fit(series=series, priors=priors, engine="exact", seed=seed, posterior=drawn,
                diagnostics=diagnostics, settings=settings, spec=spec, state_space=post,
-               extra={"nodes": nodes.reshape(shape), "latest_log_growth": latest.reshape(shape)})
+               extra=DeferredMapping(drawn, 1))
+
+
+def _draws(post: StateSpacePosterior, spec, seed: int, chains: int, draws: int):
+    """The posterior draws as chains, and the extra per-draw quantities (see :class:`Fit`)."""
+    from bayesgrowth.inference.fit import as_chains
+
+    nodes, flat = post.sample(chains * draws, stream(seed, "posterior_completion"))
+    latest = flat.pop("latest_log_growth")
+    shape = (chains, draws)
+    posterior = as_chains(flat, [k for k in flat if k in spec.parameters() or k == "season"],
+                          chains, draws)
+    return posterior, {"nodes": nodes.reshape(shape), "latest_log_growth": latest.reshape(shape)}
