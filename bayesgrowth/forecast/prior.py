@@ -10,8 +10,11 @@ Parameter draws come from the PyMC model of the chosen specification
 (:func:`pymc.sample_prior_predictive` on the model of
 :func:`bayesgrowth.models.general.build_pymc_model`, whose likelihood is a
 potential that prior sampling leaves out), so they are the very priors the
-fit uses. The plain exponential model has its own sampler in NumPy (normal
-``log a`` and ``log(1+g)``, half-normal ``sigma``), which needs no PyMC.
+fit uses. The plain exponential model and the local trend (the default) have
+their own sampler in NumPy, which needs no PyMC and draws the same priors: normal
+``log a`` and ``log(1+g)``, half-normal ``sigma``, and for the local trend Gamma(2)
+level-shock and growth-drift scales, a log-normal half-life and, with AR(1) errors, a
+Beta ``phi`` (checked against PyMC's prior sampler in the tests).
 """
 
 from __future__ import annotations
@@ -189,6 +192,31 @@ def _numpy_prior(priors: ResolvedPriors, draws: int, seed: int) -> dict:
     }
 
 
+def _numpy_local_trend_prior(spec: ModelSpec, priors: ResolvedPriors, series: GrowthSeries,
+                              draws: int, seed: int) -> dict:
+    """The local trend's parameters from their priors, as its PyMC model states them.
+
+    See ``_local_trend_likelihood`` in :mod:`bayesgrowth.models.pymc_build`; the
+    coefficients it integrates out come from their prior (as for the PyMC sampler).
+    """
+    rng = stream(seed, "prior_parameters")
+    out = {"sigma": np.abs(rng.normal(0.0, priors.sigma_scale, draws))}
+    out["sigma_level"] = (rng.gamma(2.0, priors.level_shock_scale / 2.0, draws)
+                          if priors.level_shock_scale > 0 else np.zeros(draws))
+    out["sigma_growth"] = rng.gamma(2.0, priors.growth_drift_scale / 2.0, draws)
+    if spec.mean_reverting:
+        out["half_life"] = np.exp(rng.normal(priors.log_h_mu, priors.log_h_sd, draws))
+        out["rho"] = np.exp(-np.log(2.0) / out["half_life"])
+    if spec.errors == "ar1":
+        out["phi"] = rng.beta(priors.phi_alpha, priors.phi_beta, draws)
+    return general.complete_draws(spec, priors, out, np.array([], dtype=int), np.array([]),
+                                  series.axis, stream(seed, "prior_completion"))
+
+
+def _numpy_covers(spec: ModelSpec) -> bool:
+    return spec.is_plain_exponential or (spec.family.states and not spec.season_drift)
+
+
 def sample_prior(
     spec: ModelSpec,
     priors: ResolvedPriors,
@@ -209,8 +237,8 @@ def sample_prior(
     draws : int
     seed : int
     sampler : {"auto", "numpy", "pymc"}
-        ``auto`` uses NumPy for the plain exponential model and PyMC otherwise;
-        ``numpy`` exists only for the plain exponential model.
+        ``auto`` uses NumPy for the plain exponential model and the local trend, and
+        PyMC otherwise; ``numpy`` exists only for those two.
 
     Returns
     -------
@@ -221,14 +249,16 @@ def sample_prior(
     """
     if sampler not in SAMPLERS:
         raise ValueError(f"sampler must be one of {', '.join(SAMPLERS)}, got {sampler!r}")
-    if sampler == "numpy" and not spec.is_plain_exponential:
+    if sampler == "numpy" and not _numpy_covers(spec):
         raise ValueError(
-            f"the NumPy prior sampler covers only the plain exponential model, not "
-            f"{spec.label()}; use sampler='pymc'"
+            f"the NumPy prior sampler covers only the plain exponential model and the local "
+            f"trend, not {spec.label()}; use sampler='pymc'"
         )
-    if spec.is_plain_exponential and sampler != "pymc":
+    if sampler == "pymc" or not _numpy_covers(spec):
+        return _pymc_prior(spec, priors, series, draws, seed), "pymc"
+    if spec.is_plain_exponential:
         return _numpy_prior(priors, draws, seed), "numpy"
-    return _pymc_prior(spec, priors, series, draws, seed), "pymc"
+    return _numpy_local_trend_prior(spec, priors, series, draws, seed), "numpy"
 
 
 def _prior_errors(spec: ModelSpec, p: dict, shape: tuple[int, int],

@@ -137,3 +137,45 @@ def test_pymc_prior_draws_match_the_closed_form_at_the_reference_period(demo, mo
         # The ceiling's prior: log K ~ Normal(log_k_mu, log_k_sd) (scipy.stats.kstest).
         res = stats.kstest(pp.parameters["log_k"], stats.norm(r.log_k_mu, r.log_k_sd).cdf)
         assert res.pvalue > 1e-3
+
+
+@pytest.mark.parametrize("drift", ["mean-reverting", "random-walk"])
+def test_numpy_local_trend_prior_draws_follow_the_stated_priors(demo, drift):
+    # The local trend's NumPy sampler (the default model's) against scipy.stats: each
+    # scale's family (half-normal noise, Gamma(2) with the stated mean for the level
+    # shocks and growth drift, log-normal half-life) by scipy.stats.kstest, and the
+    # closed-form prior predictive at the reference period as for the PyMC sampler.
+    pp = prior_predictive(demo, 3, model="local-trend", drift=drift, draws=4000, seed=11)
+    assert pp.sampler == "numpy"
+    r = Priors().resolve(demo)
+    p = pp.parameters
+    checks = {
+        "sigma": stats.halfnorm(scale=r.sigma_scale),
+        "sigma_level": stats.gamma(2.0, scale=r.level_shock_scale / 2.0),
+        "sigma_growth": stats.gamma(2.0, scale=r.growth_drift_scale / 2.0),
+    }
+    if drift == "mean-reverting":
+        checks["half_life"] = stats.lognorm(r.log_h_sd, scale=np.exp(r.log_h_mu))
+        np.testing.assert_allclose(p["rho"], 0.5 ** (1.0 / p["half_life"]))
+    else:
+        assert "rho" not in p and "half_life" not in p
+    for name, dist in checks.items():
+        assert stats.kstest(p[name], dist.cdf).pvalue > 1e-3, name
+    _check_column(np.log(pp.value_draws(r.t_ref)), r.log_a_mu, r.log_a_sd**2, r.sigma_scale)
+
+
+@pytest.mark.slow
+def test_numpy_local_trend_prior_matches_pymc_prior_sampler(demo):
+    # The same prior by PyMC's sampler (pymc.sample_prior_predictive on the model the
+    # NUTS engine fits): two-sample Kolmogorov-Smirnov tests (scipy.stats.ks_2samp) on
+    # the scales and on the log value at the end of the horizon, seasons included.
+    kw = {"model": "local-trend", "drift": "mean-reverting", "seasonal": True,
+          "draws": 4000}
+    a = prior_predictive(demo, 4, seed=2, sampler="numpy", **kw)
+    b = prior_predictive(demo, 4, seed=3, sampler="pymc", **kw)
+    assert (a.sampler, b.sampler) == ("numpy", "pymc")
+    for name in ("sigma", "sigma_level", "sigma_growth", "rho", "log1p_g", "long_run"):
+        assert stats.ks_2samp(a.parameters[name], b.parameters[name]).pvalue > 1e-3, name
+    last = a.periods[-1]
+    res = stats.ks_2samp(np.log(a.value_draws(last)), np.log(b.value_draws(last)))
+    assert res.pvalue > 1e-3
