@@ -10,27 +10,38 @@ they had been computed at once: each deferred computation owns its random stream
 
 from __future__ import annotations
 
+import threading
 from collections.abc import Callable, Mapping
 
 __all__ = ["Deferred", "DeferredMapping", "LazyField"]
 
 
 class Deferred:
-    """A computation run once, on first use, returning a tuple of field values."""
+    """A computation run once, on first use, returning a tuple of field values.
+
+    Thread-safe: a second thread waits for the first one's result.
+    """
 
     def __init__(self, make: Callable[[], tuple]) -> None:
         self._make, self._out = make, None
+        self._lock = threading.Lock()
 
     def get(self, index: int):
         """Item ``index`` of the computation's result (computed now if not yet)."""
         if self._out is None:
-            self._out = self._make()
-            self._make = None
+            with self._lock:
+                if self._out is None:
+                    self._out = self._make()
+                    self._make = None
         return self._out[index]
 
     def __getstate__(self) -> dict:  # pickled (to a worker, say) as the values themselves
         self.get(0)
         return {"_make": None, "_out": self._out}
+
+    def __setstate__(self, state: dict) -> None:
+        self.__dict__.update(state)
+        self._lock = threading.Lock()
 
 
 class LazyField:

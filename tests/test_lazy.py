@@ -61,3 +61,24 @@ def test_exact_fit_and_forecast_draw_only_when_read_and_the_same_numbers():
     assert np.array_equal(again.draws, fc.draws)
     assert np.array_equal(again.fit.posterior["sigma"], fit.posterior["sigma"])
     assert np.array_equal(again.fit.extra["nodes"], fit.extra["nodes"])
+
+
+def test_deferred_computes_once_when_threads_read_it_together():
+    import threading
+    import time
+
+    calls = []
+
+    def make():
+        calls.append(1)
+        time.sleep(0.05)  # long enough for every thread to arrive while it runs
+        return (len(calls),)
+
+    d = Deferred(make)
+    seen = []
+    threads = [threading.Thread(target=lambda: seen.append(d.get(0))) for _ in range(4)]
+    for th in threads:
+        th.start()
+    for th in threads:
+        th.join()
+    assert calls == [1] and seen == [1, 1, 1, 1]

@@ -303,7 +303,9 @@ def forecast(
     exact = None
     if fit.state_space is not None:
         exact = _state_space_mixture(fit, t)
-        draws = curve_draws = Deferred(lambda: _state_space_draws(fit, t, rng))
+        # a stream of its own, made when the paths are: the same numbers whenever they are
+        draws = curve_draws = Deferred(
+            lambda: _state_space_draws(fit, t, stream(seed, "forecast")))
     else:
         if fit.spec.is_plain_exponential:
             params = fit.flat()
