@@ -298,7 +298,6 @@ def forecast(
     horizon = check_horizon(horizon)
     levels = check_levels(levels)
     seed = fit.seed if seed is None else int(seed)
-    rng = stream(seed, "forecast")
     t = fit.series.future_t(horizon)
     exact = None
     if fit.state_space is not None:
@@ -307,6 +306,7 @@ def forecast(
         draws = curve_draws = Deferred(
             lambda: _state_space_draws(fit, t, stream(seed, "forecast")))
     else:
+        rng = stream(seed, "forecast")
         if fit.spec.is_plain_exponential:
             params = fit.flat()
             log_draws = exponential.simulate_log(params, t, fit.priors.t_ref, rng)

@@ -144,14 +144,20 @@ def locate(branch: Branch, ctx: Context, k: int) -> list[tuple[float, float]]:
     return box
 
 
+def _marginals(weight: np.ndarray, k: int, n_dims: int) -> list[np.ndarray]:
+    """Per dimension, the share of the weight in each of a ``k``-per-dimension grid's rows."""
+    w = weight.reshape((k,) * n_dims)
+    total = w.sum()
+    return [w.sum(axis=tuple(i for i in range(n_dims) if i != d)) / total
+            for d in range(n_dims)]
+
+
 def shrink(branch: Branch, weight: np.ndarray, k: int) -> list[tuple[float, float]]:
     """A tighter box from a fine grid's weights: the cells whose marginal mass counts."""
-    w = weight.reshape((k,) * len(branch.dims))
-    total = w.sum()
     box = []
-    for d, (lo, hi) in enumerate(branch.box):
+    marginals = _marginals(weight, k, len(branch.dims))
+    for d, ((lo, hi), marginal) in enumerate(zip(branch.box, marginals, strict=True)):
         step = (hi - lo) / k
-        marginal = w.sum(axis=tuple(i for i in range(w.ndim) if i != d)) / total
         kept = np.flatnonzero(marginal >= _MASS)
         span_lo, span_hi = branch.dims[d].span(branch.log[d])
         box.append((max(span_lo, lo + (kept[0] - 1.0) * step),
@@ -167,11 +173,9 @@ def remap(branch: Branch, weight: np.ndarray, k: int) -> None:
     between rows and flat beyond them, gives ``g = f^(1/4)`` plus 1% of its mean; the map
     is ``g``'s distribution function over the box (see the module docstring).
     """
-    w = weight.reshape((k,) * len(branch.dims))
-    total = w.sum()
     maps = []
-    for d, ((lo, hi), (centre, width)) in enumerate(zip(branch.box, branch.axes, strict=True)):
-        mass = w.sum(axis=tuple(i for i in range(w.ndim) if i != d)) / total
+    marginals = _marginals(weight, k, len(branch.dims))
+    for (lo, hi), (centre, width), mass in zip(branch.box, branch.axes, marginals, strict=True):
         log_f = np.log(np.maximum(mass, 1e-300) / width)
         x = np.linspace(lo, hi, _FINE_MAP + 1)
         g = np.exp(_POWER * (np.interp(x, centre, log_f) - log_f.max()))
