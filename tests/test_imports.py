@@ -72,3 +72,16 @@ def test_exact_forecast_commands_load_no_scipy(tmp_path):
     )
     assert all((tmp_path / str(i) / "forecast.csv").exists() for i in range(len(runs)))
     assert {m for m in loaded if m.split(".")[0] in ("scipy", "pymc", "pytensor", "arviz")} == set()
+
+
+def test_default_priors_command_loads_no_pymc(tmp_path):
+    # the default model's prior check draws in NumPy (bayesgrowth.forecast.prior_draws)
+    from bayesgrowth.data.demo import demo_path
+
+    loaded = _modules_after(
+        "import sys\nfrom bayesgrowth.cli import main\n"
+        f"assert main(['priors', {str(demo_path())!r}, '-H', '2', '--out', "
+        f"{str(tmp_path / 'p')!r}, '--quiet']) == 0"
+    )
+    assert (tmp_path / "p" / "prior_predictive.csv").exists()
+    assert {m for m in loaded if m.split(".")[0] in ("pymc", "pytensor", "arviz")} == set()
