@@ -26,7 +26,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from bayesgrowth.inference.kalman import FilterResult, run_filter, transition
+from bayesgrowth.inference.kalman import _BLOCK, _LOG_EVERY, FilterResult, run_filter, transition
 
 __all__ = ["gram_filter_season", "season_filter", "season_loadings", "season_transition"]
 
@@ -120,7 +120,7 @@ def _predict(a, sa, p, cs, drop, r, k, nb, rb, sg2, sl2, ss2):  # pragma: no cov
             cs[i, b] = -old
 
 
-def _update(a, sa, p, cs, pz, gain, row, acc, finv, lf, s2, cur, r, k,
+def _update(a, sa, p, cs, pz, gain, row, acc, finv, prod, s2, cur, r, k,
             nb):  # pragma: no cover - numba
     """Measurement update of ``nb`` nodes given the design ``row``; ``row`` becomes ``v``.
 
@@ -134,7 +134,7 @@ def _update(a, sa, p, cs, pz, gain, row, acc, finv, lf, s2, cur, r, k,
     for b in range(nb):
         f = pz[0, b] + pz[cur, b] + s2[b]
         finv[b] = 1.0 / f
-        lf[b] += np.log(f)
+        prod[b] *= f  # the log of the product is taken in the kernel
         pz[r, b] = cs[0, b] + cs[cur, b]  # Cov(S, observed state)
     for i in range(r + 1):  # the gains, of the state and of the sum S
         for b in range(nb):
@@ -190,7 +190,7 @@ def _season_kernel(y, season, idx, rho, s_level, s_growth, s_season, sigma, long
     sa, cs = np.empty((k, block)), np.empty((r, block))
     acc, row = np.empty((k, k, block)), np.empty((k, block))
     pz, gain = np.empty((r + 1, block)), np.empty((r + 1, block))
-    w, lf, rb = np.empty(block), np.empty(block), np.empty(block)
+    w, lf, rb, prod = np.empty(block), np.empty(block), np.empty(block), np.empty(block)
     sg2, sl2, ss2, s2 = np.empty(block), np.empty(block), np.empty(block), np.empty(block)
     finv = np.empty(block)
     for start in range(0, n_nodes, block):
@@ -200,7 +200,7 @@ def _season_kernel(y, season, idx, rho, s_level, s_growth, s_season, sigma, long
             sl2[b], ss2[b] = s_level[start + b] ** 2, s_season[start + b] ** 2
             s2[b] = sigma[start + b] ** 2
         a[:, :, :], p[:, :, :], acc[:, :, :] = 0.0, 0.0, 0.0
-        sa[:, :], cs[:, :], w[:], lf[:] = 0.0, 0.0, 0.0, 0.0
+        sa[:, :], cs[:, :], w[:], lf[:], prod[:] = 0.0, 0.0, 0.0, 0.0, 1.0
         j_prev, head = 0, 0  # head: the ring slot of the current deviation
         for i in range(n):
             jj = idx[i]
@@ -216,7 +216,11 @@ def _season_kernel(y, season, idx, rho, s_level, s_growth, s_season, sigma, long
                     row[3, b] = jj - w[b]
             for c in range(n_s):
                 row[k - n_s + c, :] = season[i, c]
-            _update_c(a, sa, p, cs, pz, gain, row, acc, finv, lf, s2, 2 + head, r, k, nb)
+            _update_c(a, sa, p, cs, pz, gain, row, acc, finv, prod, s2, 2 + head, r, k, nb)
+            if i % _LOG_EVERY == _LOG_EVERY - 1 or i == n - 1:  # see kalman._LOG_EVERY
+                for b in range(nb):
+                    lf[b] += np.log(prod[b])
+                    prod[b] = 1.0
         _store_c(start, nb, head, a, p, acc, lf, r, k, gram, logf, state, state_cov)
 
 
@@ -233,8 +237,6 @@ def gram_filter_season(y, season, grid_index, rho, sigma_level, sigma_growth, si
     ``state_cov`` ``(G, m + 1, m + 1)``.
     """
     global _COMPILED, _predict_c, _store_c, _update_c
-    from bayesgrowth.inference.kalman import _BLOCK
-
     if _COMPILED is None:
         import numba
 
