@@ -49,6 +49,22 @@ def _worker_start(parent: int) -> None:
             pass
     if os.getppid() != parent:  # the parent died before the line above took effect
         os._exit(1)
+    _one_blas_thread()
+
+
+def _one_blas_thread() -> None:
+    """Let the linear-algebra library use one thread in a worker: the workers share the cores.
+
+    Each worker's library would otherwise start a thread per core, and the workers' small
+    matrix products would wait on each other's threads. ``threadpoolctl`` (a PyMC
+    requirement) sets the limit in the running library, which environment variables no
+    longer can once it is loaded.
+    """
+    try:
+        from threadpoolctl import threadpool_limits
+    except ImportError:  # pragma: no cover - installed with PyMC
+        return
+    threadpool_limits(1)
 
 
 class Executor:

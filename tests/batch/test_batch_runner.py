@@ -59,6 +59,19 @@ def test_process_pool_and_chunking_give_identical_files(tmp_path, good_csv):
     assert _files(tmp_path / "a") == _files(tmp_path / "b")
 
 
+def _blas_threads(chunk, arg):
+    from threadpoolctl import threadpool_info
+
+    return [pool["num_threads"] for pool in threadpool_info() if pool["user_api"] == "blas"]
+
+
+def test_pool_workers_use_one_blas_thread_each():
+    # The workers share the cores; a thread per core in each would oversubscribe them.
+    with LocalExecutor(2) as pool:
+        counts = [result for _, result in pool.run(_blas_threads, [0, 1], None)]
+    assert counts and all(c and set(c) == {1} for c in counts), counts
+
+
 class Stop(Exception):
     pass
 
