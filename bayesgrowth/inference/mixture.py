@@ -118,14 +118,11 @@ def mixture_quantiles(weight: np.ndarray, mean: np.ndarray, sd: np.ndarray,
     if not keep.all():
         weight, mean, sd = weight[keep] / weight[keep].sum(), mean[keep], sd[keep]
     sd = np.maximum(sd, 1e-300)
-    parts = [_compress(weight, mean[:, h], sd[:, h]) for h in range(mean.shape[1])]
-    fine = np.array([part is not None for part in parts])
+    fine, merged = _compress(weight, mean, sd)
     out = np.empty((p.size, mean.shape[1]))
-    if fine.any():
-        merged = [part for part in parts if part is not None]
-        sizes = [part[0].size for part in merged]
-        w, m, s = (np.concatenate([part[i] for part in merged]) for i in range(3))
-        col = np.repeat(np.arange(len(merged)), sizes)
+    if merged is not None:
+        w, m, s, sizes = merged
+        col = np.repeat(np.arange(sizes.size), sizes)
         starts = np.cumsum(sizes) - sizes
         # a root finer than the compression's error would be wasted: the polish squares it
         out[:, fine] = _ragged_root(w, m, s, col, starts, p, max(tol, _POLISH_BELOW))
@@ -252,48 +249,62 @@ def _newton(cdf_density, m, s, lo, hi, p, tol):
 
 
 def _compress(weight: np.ndarray, mean: np.ndarray, sd: np.ndarray):
-    """One column's components merged where close in mean and sd, or None if too spread.
+    """Each column's components merged where close in mean and sd.
 
-    The components fall into rows of log sd ``_LOG_SD_BIN`` wide and, within a row,
-    into bins of mean ``_MEAN_BIN`` times the row's smallest sd wide; each bin becomes
-    one normal with the bin's weight, mean and variance (its components' variances
-    plus the spread of their means). A column at a time keeps the arrays small
-    (fresh large arrays cost more here than the arithmetic on them).
+    In each column the components fall into rows of log sd ``_LOG_SD_BIN`` wide and,
+    within a row, into bins of mean ``_MEAN_BIN`` times the row's smallest sd wide; each
+    bin becomes one normal with the bin's weight, mean and variance (its components'
+    variances plus the spread of their means). All columns are binned at once, each in
+    its own range of bin keys, so the merged components come out column by column.
 
     Parameters
     ----------
-    weight, mean, sd : numpy.ndarray, shape (G,)
+    weight : numpy.ndarray, shape (G,)
+    mean, sd : numpy.ndarray, shape (G, H)
 
     Returns
     -------
-    tuple of numpy.ndarray or None
-        Weights, means and sds of the merged components; None when the sds spread
-        over more than ``_MAX_LOG_SD_SPREAD`` or the means over more than
-        ``_MAX_BINS`` bins of the narrowest row, or a value is not finite.
+    fine : numpy.ndarray of bool, shape (H,)
+        The columns binned; the others spread their sds over more than
+        ``_MAX_LOG_SD_SPREAD``, their means over more than ``_MAX_BINS`` bins of the
+        narrowest row, or hold a value that is not finite.
+    merged : tuple of numpy.ndarray or None
+        Weights, means and sds of the merged components of the fine columns, one column
+        after another, and how many each column has; None when no column is fine.
     """
     log_sd = np.log(sd)
-    lmin, mmin = log_sd.min(), mean.min()
-    spread = log_sd.max() - lmin
-    if not (spread <= _MAX_LOG_SD_SPREAD and np.isfinite(mean.max() - mmin)):
-        return None  # also a column holding an infinite or undefined value
-    rows = int(spread / _LOG_SD_BIN) + 1
-    # reciprocal bin width and bin count per row; rounding is monotone, so no component's
-    # bin passes its row's count
-    inv = np.exp(-lmin - _LOG_SD_BIN * np.arange(rows)) / _MEAN_BIN
-    bins = ((mean.max() - mmin) * inv).astype(int) + 1
-    if bins[0] > _MAX_BINS:
-        return None
-    first = np.cumsum(bins) - bins  # first key of each row
-    row = ((log_sd - lmin) / _LOG_SD_BIN).astype(int)
-    key = first[row] + ((mean - mmin) * inv[row]).astype(int)
-    n = int(first[-1] + bins[-1])
-    total = np.bincount(key, weight, n)
-    m1 = np.bincount(key, weight * mean, n)
-    m2 = np.bincount(key, weight * (mean * mean + sd * sd), n)
-    k = np.flatnonzero(total > 0)
-    w = total[k]
-    mu = m1[k] / w
-    return w, mu, np.sqrt(np.maximum(m2[k] / w - mu * mu, 0.0))
+    lmin, mmin = log_sd.min(axis=0), mean.min(axis=0)
+    spread, mspread = log_sd.max(axis=0) - lmin, mean.max(axis=0) - mmin
+    # also false for a column holding an infinite or undefined value
+    fine = (spread <= _MAX_LOG_SD_SPREAD) & np.isfinite(mspread)
+    while fine.any():
+        cols = np.flatnonzero(fine)
+        rows = (spread[cols] / _LOG_SD_BIN).astype(int) + 1
+        # reciprocal bin width and bin count per column and row; rounding is monotone, so
+        # no component's bin passes its row's count
+        inv = np.exp(-lmin[cols, None] - _LOG_SD_BIN * np.arange(rows.max())) / _MEAN_BIN
+        bins = (mspread[cols, None] * inv).astype(int) + 1
+        wide = bins[:, 0] > _MAX_BINS
+        if wide.any():
+            fine[cols[wide]] = False
+            continue
+        bins[np.arange(rows.max()) >= rows[:, None]] = 0  # rows beyond a column's own
+        first = (np.cumsum(bins) - bins.ravel()).reshape(bins.shape)  # first key of each row
+        row = ((log_sd[:, cols] - lmin[cols]) / _LOG_SD_BIN).astype(int)
+        at = np.arange(cols.size)
+        key = first[at, row] + ((mean[:, cols] - mmin[cols]) * inv[at, row]).astype(int)
+        n = int(bins.sum())
+        # raveled row by row, each bin sums its components in their order
+        key, wg, mg = key.ravel(), np.repeat(weight, cols.size), mean[:, cols].ravel()
+        total = np.bincount(key, wg, n)
+        m1 = np.bincount(key, wg * mg, n)
+        m2 = np.bincount(key, wg * (mg * mg + sd[:, cols].ravel() ** 2), n)
+        k = np.flatnonzero(total > 0)
+        w = total[k]
+        mu = m1[k] / w
+        sizes = np.diff(np.searchsorted(k, np.append(first[:, 0], n)))
+        return fine, (w, mu, np.sqrt(np.maximum(m2[k] / w - mu * mu, 0.0)), sizes)
+    return fine, None
 
 
 def mixture_mean_exp(weight: np.ndarray, mean: np.ndarray, sd: np.ndarray) -> np.ndarray:

@@ -132,20 +132,33 @@ def test_quantiles_of_hard_mixtures_are_within_the_bounds(name):
 
 def test_compression_keeps_each_columns_weight_mean_and_variance():
     w, m, s = _hard_mixtures()["two far-apart modes"]
+    fine, (cw, cm, cs, sizes) = mixture._compress(w, m, s)
+    assert fine.all() and sizes.size == m.shape[1] and sizes.sum() == cw.size
+    for h, part in enumerate(np.split(np.arange(cw.size), np.cumsum(sizes)[:-1])):
+        assert part.size < w.size / 2  # it merged
+        np.testing.assert_allclose(cw[part].sum(), 1.0, rtol=1e-12)
+        np.testing.assert_allclose(cw[part] @ cm[part], w @ m[:, h], rtol=1e-9, atol=1e-12)
+        np.testing.assert_allclose(cw[part] @ (cs[part] ** 2 + cm[part] ** 2),
+                                   w @ (s[:, h] ** 2 + m[:, h] ** 2), rtol=1e-12)
+
+
+def test_columns_are_binned_as_if_each_were_alone():
+    # all columns at once give each column the merged components it gets on its own
+    w, m, s = _hard_mixtures()["two far-apart modes"]
+    _, (cw, cm, cs, sizes) = mixture._compress(w, m, s)
+    at = np.cumsum(sizes)[:-1]
     for h in range(m.shape[1]):
-        cw, cm, cs = mixture._compress(w, m[:, h], s[:, h])
-        assert cw.size < w.size / 2  # it merged
-        mean = w @ m[:, h]
-        np.testing.assert_allclose(cw.sum(), 1.0, rtol=1e-12)
-        np.testing.assert_allclose(cw @ cm, mean, rtol=1e-9, atol=1e-12)
-        np.testing.assert_allclose(cw @ (cs**2 + cm**2), w @ (s[:, h] ** 2 + m[:, h] ** 2),
-                                   rtol=1e-12)
+        _, (hw, hm, hs, _) = mixture._compress(w, m[:, h:h + 1], s[:, h:h + 1])
+        for joint, alone in zip((cw, cm, cs), (hw, hm, hs), strict=True):
+            np.testing.assert_array_equal(np.split(joint, at)[h], alone)
 
 
 def test_a_column_too_spread_to_bin_is_solved_in_full():
     w, m, s = _hard_mixtures()["very different sds"]
-    assert mixture._compress(w, m[:, 0], s[:, 0]) is not None
-    assert mixture._compress(w, m[:, 1], s[:, 1]) is None  # sds over six orders
+    fine, merged = mixture._compress(w, m, s)
+    assert fine[0] and merged[3].size == 1  # the first column is binned
+    assert not fine[1]  # sds over six orders
+    assert mixture._compress(w, m[:, 1:], s[:, 1:]) == (fine[1:], None)
 
 
 def test_the_fast_normal_cdf_is_within_its_published_error():
