@@ -17,7 +17,13 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from bayesgrowth.config import DEFAULT_CHAINS, DEFAULT_DRAWS, DEFAULT_LEVELS, DEFAULT_TUNE
+from bayesgrowth.config import (
+    DEFAULT_CHAINS,
+    DEFAULT_DRAWS,
+    DEFAULT_LEVELS,
+    DEFAULT_MODEL,
+    DEFAULT_TUNE,
+)
 from bayesgrowth.data.export import atomic_write
 from bayesgrowth.data.series import GrowthSeries, InputError
 from bayesgrowth.priors import Priors
@@ -51,7 +57,10 @@ class BatchSettings:
         Posterior draws per chain, chains, and NUTS tuning steps per chain.
     model_options : dict
         Further options of :func:`bayesgrowth.inference.fit_series` (``model``,
-        ``errors``, ...); any but the plain exponential model fits series one by one.
+        ``errors``, ...); by default the recommended model
+        (:data:`bayesgrowth.config.DEFAULT_MODEL`), and its choices fill in what a dict
+        given leaves out. On NUTS, any but the plain exponential model fits series one
+        by one.
     padded_length : int
         Length the compiled NUTS model is padded to (from the whole batch, so that it
         does not depend on which series a worker meets first).
@@ -74,7 +83,7 @@ class BatchSettings:
     draws: int = DEFAULT_DRAWS
     chains: int = DEFAULT_CHAINS
     tune: int = DEFAULT_TUNE
-    model_options: dict = field(default_factory=dict)
+    model_options: dict = field(default_factory=lambda: dict(DEFAULT_MODEL))
     padded_length: int = 0
     posterior_dir: str | None = None
     threads: int = 1
@@ -90,7 +99,7 @@ class BatchSettings:
             "priors": None if self.priors is None else asdict(self.priors),
             "draws": self.draws, "chains": self.chains,
             "tune": self.tune if self.engine == "nuts" else None,
-            "model_options": dict(sorted(self.model_options.items())),
+            "model_options": dict(sorted({**DEFAULT_MODEL, **self.model_options}.items())),
         }
         if self.recalibration is not None:  # the maps' fingerprints: same maps, same results
             record["recalibration"] = {freq: qmap.fingerprint() for freq, (qmap, _)
@@ -105,17 +114,18 @@ class BatchSettings:
         from bayesgrowth.models import exponential
         from bayesgrowth.models.spec import ModelSpec
 
-        plain = ("model", "errors", "noise", "seasonal")
-        if self.model_options.get("seasonal", False) not in (False,):
-            return False
+        plain = ("model", "errors", "noise")
+        options = {**DEFAULT_MODEL, **self.model_options}
         try:  # the compiled model is the exponential family's plain model
-            spec = ModelSpec(**{k: self.model_options[k] for k in plain
-                                if k in self.model_options})
+            spec = ModelSpec(**{k: options[k] for k in plain if k in options})
         except ValueError:
+            return False
+        # "auto" gives the exponential family no seasons (resolve_seasonal)
+        if options["seasonal"] not in (False, "auto"):
             return False
         if spec.family is not exponential.FAMILY or not spec.is_plain_exponential:
             return False
-        extra = {k: v for k, v in self.model_options.items() if k not in plain and k != "drift"}
+        extra = {k: v for k, v in options.items() if k not in (*plain, "seasonal", "drift")}
         return supports(extra)
 
 
@@ -155,7 +165,7 @@ def _fit(series: GrowthSeries, settings: BatchSettings, seed: int):
             return model.fit(series, resolved, seed)
     from bayesgrowth.inference.run import fit_series
 
-    options = dict(settings.model_options)
+    options = {**DEFAULT_MODEL, **settings.model_options}
     if settings.engine == "nuts":
         options.setdefault("progressbar", False)
         options.setdefault("cores", 1)

@@ -17,12 +17,12 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from bayesgrowth.config import DEFAULT_LEVELS, PREDICTIVE_DRAWS, check_levels
+from bayesgrowth.config import DEFAULT_LEVELS, DEFAULT_MODEL, PREDICTIVE_DRAWS, check_levels
 from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.forecast.bands import band_columns
 from bayesgrowth.forecast.prior_draws import sample_prior
 from bayesgrowth.models import exponential, general
-from bayesgrowth.models.spec import ModelSpec
+from bayesgrowth.models.spec import ModelSpec, resolve_seasonal, season_index
 from bayesgrowth.priors import Priors, ResolvedPriors
 from bayesgrowth.seeds import stream
 
@@ -172,11 +172,11 @@ def prior_predictive(
     horizon: int = 8,
     *,
     priors: Priors | None = None,
-    model: str = "exponential",
+    model: str = DEFAULT_MODEL["model"],
     errors: str = "independent",
     noise: str = "normal",
-    seasonal: bool = False,
-    drift: str = "random-walk",
+    seasonal: bool | str = DEFAULT_MODEL["seasonal"],
+    drift: str = DEFAULT_MODEL["drift"],
     levels=DEFAULT_LEVELS,
     draws: int = PREDICTIVE_DRAWS,
     seed: int | None = None,
@@ -194,7 +194,9 @@ def prior_predictive(
     priors : Priors, optional
         Defaults documented in :mod:`bayesgrowth.priors`.
     model, errors, noise, seasonal, drift
-        The model, as in :func:`bayesgrowth.inference.fit_series`.
+        The model, as in :func:`bayesgrowth.inference.fit_series`; by default the
+        recommended model (:data:`bayesgrowth.config.DEFAULT_MODEL`), seasonal factors
+        decided from the calendar.
     levels : sequence of int
         Band levels in percent.
     draws : int
@@ -217,9 +219,9 @@ def prior_predictive(
     """
     horizon, draws = _check_sizes(horizon, draws)
     levels = check_levels(levels)
+    seasonal = resolve_seasonal(seasonal, series.axis, series.t, model)
     spec = ModelSpec(model=model, errors=errors, noise=noise, seasonal=seasonal, drift=drift)
     if spec.seasonal:
-        from bayesgrowth.models.spec import season_index
 
         season_index(series.axis, series.t)
     seed = secrets.randbits(32) if seed is None else int(seed)

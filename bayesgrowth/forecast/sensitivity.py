@@ -21,9 +21,10 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from bayesgrowth.config import DEFAULT_MODEL
 from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.forecast.bands import check_horizon
-from bayesgrowth.models.spec import ModelSpec
+from bayesgrowth.models.spec import ModelSpec, resolve_seasonal
 from bayesgrowth.priors import CeilingPrior, Priors
 
 __all__ = [
@@ -122,11 +123,11 @@ def prior_sensitivity(
     series: GrowthSeries,
     horizon: int,
     *,
-    model: str = "exponential",
+    model: str = DEFAULT_MODEL["model"],
     errors: str = "independent",
     noise: str = "normal",
-    seasonal: bool = False,
-    drift: str = "random-walk",
+    seasonal: bool | str = DEFAULT_MODEL["seasonal"],
+    drift: str = DEFAULT_MODEL["drift"],
     priors: Priors | None = None,
     anchors=DEFAULT_ANCHORS,
     growth_centres=DEFAULT_GROWTH_CENTRES,
@@ -145,7 +146,9 @@ def prior_sensitivity(
     horizon : int
         The forecast period reported is the last of ``horizon`` periods.
     model, errors, noise, seasonal, drift
-        The model, as in :func:`bayesgrowth.inference.fit_series`.
+        The model, as in :func:`bayesgrowth.inference.fit_series`; by default the
+        recommended model (:data:`bayesgrowth.config.DEFAULT_MODEL`), seasonal factors
+        decided from the calendar.
     priors : Priors, optional
         The base setting (default :class:`~bayesgrowth.priors.Priors()`); each factor
         varies from it, and its own value is always one of the settings.
@@ -182,6 +185,7 @@ def prior_sensitivity(
     >>> result.period
     '2026Q4'
     """
+    seasonal = resolve_seasonal(seasonal, series.axis, series.t, model)
     spec = ModelSpec(model=model, errors=errors, noise=noise, seasonal=seasonal, drift=drift)
     engine = _engine(spec, engine)
     horizon = check_horizon(horizon)

@@ -5,7 +5,7 @@ from __future__ import annotations
 import warnings
 from pathlib import Path
 
-from bayesgrowth.config import DEFAULT_LEVELS
+from bayesgrowth.config import DEFAULT_LEVELS, DEFAULT_MODEL
 from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.report.html import ReportParts, figure_data_uri, render_report
 
@@ -77,7 +77,8 @@ def build_report(
     command : str, optional
         The command line (or call) that reproduces the report.
     fit_options : dict, optional
-        Further options for :func:`bayesgrowth.inference.fit_series`.
+        Further options for :func:`bayesgrowth.inference.fit_series`; the recommended
+        model (:data:`bayesgrowth.config.DEFAULT_MODEL`) fills in what they leave out.
     timestamp : str, optional
         Override the time stamp (for reproducibility tests).
     unit : str, optional
@@ -131,7 +132,8 @@ def report_parts(series: GrowthSeries, horizon: int, *, engine: str = "exact", s
     from bayesgrowth.inference.run import fit_series
     from bayesgrowth.plots.fan import plot_fan
 
-    fit = fit_series(series, engine=engine, priors=priors, seed=seed, **(fit_options or {}))
+    fit_options = {**DEFAULT_MODEL, **(fit_options or {})}
+    fit = fit_series(series, engine=engine, priors=priors, seed=seed, **fit_options)
     fc = forecast(fit, horizon, levels=levels)
     ax = plot_fan(fc, unit=unit, target=target)
     parts = ReportParts(

@@ -18,7 +18,7 @@ def test_compiled_batch_nuts_matches_the_exact_posterior(tmp_path):
     panel, _ = read_panel(frame)
     lengths = sorted(s.n for s in panel.values())
     assert lengths[0] < lengths[-1]
-    common = dict(horizon=2, seed=4, draws=1000, chains=4)
+    common = dict(horizon=2, seed=4, draws=1000, chains=4, model_options={"model": "exponential"})
     nuts = run_batch(panel, tmp_path / "nuts", BatchSettings(engine="nuts", tune=1000,
                      **common), executor=LocalExecutor(1))
     exact = run_batch(panel, tmp_path / "exact", BatchSettings(engine="exact", **common),

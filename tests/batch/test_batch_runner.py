@@ -37,13 +37,17 @@ def test_bad_series_are_listed_and_good_ones_finish(tmp_path, panel_csv):
 
 
 def test_rows_equal_the_single_series_forecast_with_the_derived_seed(tmp_path, good_csv):
+    from bayesgrowth.config import DEFAULT_MODEL
     from bayesgrowth.forecast import forecast
     from bayesgrowth.inference import fit_series
 
     panel, _ = read_panel(good_csv)
     result = run_batch(panel, tmp_path / "out", SETTINGS, executor=LocalExecutor(1))
+    # without model options a batch fits the recommended model, as the command does
+    assert SETTINGS.model_options == DEFAULT_MODEL
     name = list(panel)[2]
-    fit = fit_series(panel[name], engine="exact", seed=series_seed(3, name), draws=250)
+    fit = fit_series(panel[name], engine="exact", seed=series_seed(3, name), draws=250,
+                     **DEFAULT_MODEL)
     table = forecast(fit, 4).table
     rows = result.forecast[result.forecast["series"] == name]
     # The merged files are written with 6 significant digits, as forecast.csv is.

@@ -50,7 +50,7 @@ def _check_column(log_draws, mean, var_fixed, sigma_scale):
     Priors(initial=InitialValuePrior(0)),  # a fixed initial value: s_a = 0
 ])
 def test_prior_predictive_at_the_reference_period_is_the_closed_form(demo, priors):
-    pp = prior_predictive(demo, 6, priors=priors, draws=4000, seed=3)
+    pp = prior_predictive(demo, 6, priors=priors, model="exponential", draws=4000, seed=3)
     assert pp.sampler == "numpy"
     r = priors.resolve(demo)
     _check_column(np.log(pp.value_draws(r.t_ref)), r.log_a_mu, r.log_a_sd**2, r.sigma_scale)
@@ -58,7 +58,7 @@ def test_prior_predictive_at_the_reference_period_is_the_closed_form(demo, prior
 
 def test_prior_predictive_at_the_horizon_adds_the_growth_prior(demo):
     priors = Priors(growth=GrowthPrior(3, 5))
-    pp = prior_predictive(demo, 6, priors=priors, draws=4000, seed=4)
+    pp = prior_predictive(demo, 6, priors=priors, model="exponential", draws=4000, seed=4)
     r = priors.resolve(demo)
     dt = demo.t_last + 6 - r.t_ref
     _check_column(np.log(pp.draws[:, -1]), r.log_a_mu + r.log1p_g_mu * dt,
@@ -67,7 +67,7 @@ def test_prior_predictive_at_the_horizon_adds_the_growth_prior(demo):
 
 def test_the_check_can_fail(demo):
     # The closed form of other priors is rejected by the same check.
-    pp = prior_predictive(demo, 0, draws=4000, seed=5)
+    pp = prior_predictive(demo, 0, model="exponential", draws=4000, seed=5)
     r = Priors().resolve(demo)
     with pytest.raises(AssertionError):
         _check_column(np.log(pp.value_draws(r.t_ref)), r.log_a_mu, r.log_a_sd**2,
@@ -129,7 +129,8 @@ def test_pymc_prior_draws_match_the_closed_form_at_the_reference_period(demo, mo
     # this checks the draws of pymc.sample_prior_predictive on each model graph.
     if model not in registered_models():
         pytest.skip(f"model {model!r} is not registered yet")
-    pp = prior_predictive(demo, 3, model=model, draws=4000, seed=6, sampler="pymc")
+    pp = prior_predictive(demo, 3, model=model, seasonal=False, draws=4000, seed=6,
+                          sampler="pymc")
     assert pp.sampler == "pymc"
     r = Priors().resolve(demo)
     _check_column(np.log(pp.value_draws(r.t_ref)), r.log_a_mu, r.log_a_sd**2, r.sigma_scale)
@@ -145,7 +146,8 @@ def test_numpy_local_trend_prior_draws_follow_the_stated_priors(demo, drift):
     # scale's family (half-normal noise, Gamma(2) with the stated mean for the level
     # shocks and growth drift, log-normal half-life) by scipy.stats.kstest, and the
     # closed-form prior predictive at the reference period as for the PyMC sampler.
-    pp = prior_predictive(demo, 3, model="local-trend", drift=drift, draws=4000, seed=11)
+    pp = prior_predictive(demo, 3, model="local-trend", drift=drift, seasonal=False, draws=4000,
+                          seed=11)
     assert pp.sampler == "numpy"
     r = Priors().resolve(demo)
     p = pp.parameters
