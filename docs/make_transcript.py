@@ -21,6 +21,7 @@ from pathlib import Path
 
 HERE = Path(__file__).resolve().parent
 PAGE = HERE / "cli-transcript.md"
+README = HERE.parent / "README.md"
 
 #: (heading, command): the commands of the README, then the other routes.
 COMMANDS = [
@@ -59,8 +60,29 @@ def run(command: str, folder: Path) -> tuple[str, int]:
     return (done.stdout + done.stderr).rstrip(), done.returncode
 
 
+def stale_readme_lines(readme: str, page: str) -> list[str]:
+    """Lines of the README's short transcript that ``page`` (the full transcript) lacks.
+
+    The README shows a cut of the page in its ``console`` block: every line there must be a
+    line of the page, or its start when it ends with ``...``; lines that are only ``...``
+    stand for lines left out.
+    """
+    page_lines = page.splitlines()
+    _, _, rest = readme.partition("```console\n")
+    block = rest.split("```", 1)[0]
+    stale = []
+    for line in block.splitlines():
+        if line.strip() in ("", "..."):
+            continue
+        start = line[:-3].rstrip() if line.endswith("...") else None
+        if line not in page_lines and not (
+                start and any(p.startswith(start) for p in page_lines)):
+            stale.append(line)
+    return stale
+
+
 def main() -> int:
-    """Write docs/cli-transcript.md."""
+    """Write docs/cli-transcript.md, and say which README transcript lines it no longer has."""
     parts = [
         "# What the commands print",
         "",
@@ -78,9 +100,13 @@ def main() -> int:
             parts += ["", f"## {heading}", "", "```console", f"$ {command}", text, "```"]
             if code:
                 parts.append(f"(exit code {code})")
-    PAGE.write_text("\n".join(parts) + "\n", encoding="utf-8")
+    page = "\n".join(parts) + "\n"
+    PAGE.write_text(page, encoding="utf-8")
     print(f"wrote {PAGE.relative_to(HERE.parent)}")
-    return 0
+    stale = stale_readme_lines(README.read_text(encoding="utf-8"), page)
+    for line in stale:
+        print(f"README.md: not in the new transcript, copy it again: {line}", file=sys.stderr)
+    return 1 if stale else 0
 
 
 if __name__ == "__main__":

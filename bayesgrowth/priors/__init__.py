@@ -64,8 +64,8 @@ local trend
     When growth fades (mean-reverting or adaptive drift), its half-life has the same
     prior as the damped curve's.
 seasonal factors
-    Normal factors on the log scale constrained to sum to zero, sd ``log 1.1``
-    ("seasons differ from the average by about 10%").
+    Normal factors on the log scale constrained to sum to zero, sd ``log 1.3``
+    ("seasons differ from the average by about 30%"; see ``SeasonalPrior`` for why).
 Student-t noise
     Degrees of freedom ``nu ~ Gamma(2, 0.1)`` (mean 20), the prior recommended by
     Juárez & Steel (2010), *Journal of Business & Economic Statistics* 28(1); it
