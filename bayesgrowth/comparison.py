@@ -16,6 +16,7 @@ from bayesgrowth.display import fmt_interval, fmt_number, fmt_percent, html_summ
 from bayesgrowth.forecast.forecast import Forecast
 from bayesgrowth.leastsq import GrowthFit, LeastSquaresError, fit_table, fit_variants
 from bayesgrowth.leastsq.curves import CURVE_NAMES, fit_curve
+from bayesgrowth.leastsq.intervals import level_name
 
 #: Bending curves that have a least-squares fit in :mod:`bayesgrowth.leastsq.curves`; a
 #: model family names its match in the registry (``ModelFamily.leastsq_curve``).
@@ -164,7 +165,22 @@ def compare_to_forecast(forecast: Forecast, *, max_drop: int | None = None) -> C
             fits.append(curve_variant(curve, series.t, series.values, t_ref))
         except LeastSquaresError:
             pass  # the table then holds the exponential variants only
-    table = fit_table(fits, forecast.horizon, predictive_draws=forecast.draws[:, -1],
-                      levels=forecast.levels)
+    table = fit_table(fits, forecast.horizon)
+    _add_bayes_columns(table, forecast)
     table.insert(1, "period", forecast.periods[-1])
     return Comparison(fits=fits, table=table, forecast=forecast)
+
+
+def _add_bayes_columns(table: pd.DataFrame, forecast: Forecast) -> None:
+    """The forecast's median and bands at the horizon, and each row's ``prob_at_least``.
+
+    Taken from the forecast's own table and :meth:`~Forecast.prob_exceeds` (exact for an
+    exact forecast), so they are the numbers the forecast reports.
+    """
+    last = forecast.table.iloc[-1]
+    table["bayes_median"] = float(last["median"])
+    for level in forecast.levels:
+        table[f"bayes_lower_{level_name(level)}"] = float(last[f"lower_{level}"])
+        table[f"bayes_upper_{level_name(level)}"] = float(last[f"upper_{level}"])
+    table["prob_at_least"] = [float(forecast.prob_exceeds(v).iloc[-1])
+                              for v in table["value_at_horizon"]]
