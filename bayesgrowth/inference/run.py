@@ -31,6 +31,11 @@ def fit_series(
 ) -> Fit:
     """Fit a growth model to ``series`` with the chosen engine.
 
+    The building block under :class:`bayesgrowth.GrowthModel` and the commands; its
+    defaults are the plain exponential curve on NUTS, the model the comparison with
+    least-squares fits starts from. The recommended model is what ``GrowthModel()``
+    fits: ``fit_series(series, engine="exact", **bayesgrowth.config.DEFAULT_MODEL)``.
+
     Parameters
     ----------
     series : GrowthSeries
