@@ -55,10 +55,13 @@ _POLISH_BELOW = 1e-6
 
 
 def heaviest(weight: np.ndarray) -> np.ndarray:
-    """Indices of the heaviest components, which hold all but ``1e-5`` of the weight."""
-    order = np.argsort(weight)[::-1]
-    cum = np.cumsum(weight[order])
-    return order[: int(np.searchsorted(cum, 1.0 - _TAIL_MASS)) + 1]
+    """Indices (ascending) of the heaviest components, which hold all but ``1e-5`` of the weight.
+
+    Every component at least as heavy as the lightest one needed is kept (ties included).
+    """
+    desc = np.sort(weight)[::-1]
+    lightest = desc[min(int(np.searchsorted(np.cumsum(desc), 1.0 - _TAIL_MASS)), desc.size - 1)]
+    return np.flatnonzero(weight >= lightest)
 
 
 def compact(weight: np.ndarray, mean: np.ndarray, sd: np.ndarray):

@@ -77,7 +77,7 @@ class StateSpacePosterior:
                  log_evidence, grid_points):
         # the nodes holding all but 1e-5 of the mass, the components the mixture quantiles
         # keep anyway: every later step (predictive, draws, bands) costs half as much
-        keep = np.sort(heaviest(weight))
+        keep = heaviest(weight)
         self._ctx, self.spec, self._axis, self.t_ref = ctx, spec, axis, int(t_ref)
         self.weight = weight[keep] / weight[keep].sum()
         sel = {k: v[keep] for k, v in nodes.items()}
