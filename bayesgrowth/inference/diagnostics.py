@@ -15,6 +15,8 @@ __all__ = ["Diagnostics", "SamplingWarning", "RHAT_MAX", "ESS_MIN"]
 
 RHAT_MAX = 1.01
 ESS_MIN = 400
+#: How the one problem independent draws can have begins (too few of them).
+_FEW_DRAWS = "only"
 
 
 class SamplingWarning(UserWarning):
@@ -63,16 +65,28 @@ class Diagnostics:
 
     @classmethod
     def independent(cls, n: int, method: str) -> Diagnostics:
-        """For ``n`` independent draws of an exact posterior: no chains to disagree."""
-        return cls.from_values(1.0, n, n, 0, method=method)
+        """For ``n`` independent draws of an exact posterior: no chains to disagree.
+
+        Nothing can fail but the number of draws: fewer than ``ESS_MIN`` leave the numbers
+        read from the draws (time to a target, a backtest's scores, and the bands of the
+        engines that take them from draws) imprecise.
+        """
+        problems = () if n >= ESS_MIN else (
+            f"{_FEW_DRAWS} {n} independent draws of the exact posterior (numbers read from "
+            f"the draws need at least {ESS_MIN})",)
+        return cls(max_rhat=1.0, min_ess_bulk=float(n), min_ess_tail=float(n), divergences=0,
+                   ok=not problems, method=method, problems=problems)
 
     def warn_if_failed(self) -> None:
         """Raise a :class:`SamplingWarning` naming every failed check."""
         if not self.ok:
+            if self.problems[0].startswith(_FEW_DRAWS + " "):  # independent draws, too few
+                advice = "Ask for more draws (draws per chain times chains)."
+            else:
+                advice = ("Do not trust this forecast: sample longer (more draws), raise "
+                          "target_accept, or use the exact engine where it covers the model.")
             warnings.warn(
-                "sampling diagnostics failed: " + "; ".join(self.problems)
-                + ". Do not trust this forecast: sample longer (more draws), raise target_accept, "
-                "or use the exact engine.",
+                "sampling diagnostics failed: " + "; ".join(self.problems) + ". " + advice,
                 SamplingWarning,
                 stacklevel=3,
             )

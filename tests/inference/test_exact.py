@@ -134,3 +134,26 @@ def test_interval_coverage_of_true_growth_and_future_value():
         p = level / 100
         tol = 3 * np.sqrt(p * (1 - p) / n_sets)
         assert abs(k / n_sets - p) <= tol, (what, level, k / n_sets)
+
+
+@pytest.mark.parametrize("model", ["exponential", "local-trend"])
+def test_too_few_exact_draws_are_named_as_such_not_as_a_sampler_failure(model):
+    import warnings
+
+    from bayesgrowth.inference import SamplingWarning
+
+    # Independent draws have no chains to disagree; only their number can fall short (the
+    # 400 effective draws of Vehtari et al. 2021, the threshold the NUTS checks use).
+    few = fit_series(TWELVE, engine="exact", model=model, seed=1, draws=10, chains=4)
+    assert not few.diagnostics.ok
+    assert few.diagnostics.problems == (
+        "only 40 independent draws of the exact posterior (numbers read from the draws need "
+        "at least 400)",)
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        few.diagnostics.warn_if_failed()
+    text = str(caught[0].message)
+    assert caught[0].category is SamplingWarning
+    assert "more draws" in text and "exact engine" not in text and "target_accept" not in text
+    enough = fit_series(TWELVE, engine="exact", model=model, seed=1, draws=100, chains=4)
+    assert enough.diagnostics.ok and enough.diagnostics.problems == ()
