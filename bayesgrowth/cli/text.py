@@ -94,7 +94,8 @@ def forecast_lines(fc, summary: dict) -> list[str]:
                      f"{fmt_probability(p_last)} of reaching it by {fin['period']}; {first}")
     d = summary["diagnostics"]
     if summary.get("engine") == "exact":
-        lines.append("  computed exactly (no sampling, so no sampling checks are needed)")
+        lines.append("  computed exactly (no sampling, so no sampling checks are needed)"
+                     if d["ok"] else "  computed exactly, but " + "; ".join(d["problems"]))
     else:
         lines.append("  sampling checks: passed" if d["ok"] else
                      "  sampling checks: FAILED - " + "; ".join(d["problems"]))

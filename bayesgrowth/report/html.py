@@ -296,6 +296,14 @@ def _priors(summary: dict) -> str:
 
 def _diagnostics(summary: dict) -> str:
     d = summary["diagnostics"]
+    if summary["engine"] == "exact":  # no chains: R-hat and divergences do not apply
+        status = ('<p class="ok">Computed exactly: no sampling, so no sampling checks are '
+                  'needed.</p>' if d["ok"] else
+                  '<p class="warn">' + _e("; ".join(d["problems"])) + ": the numbers read "
+                  "from the draws are imprecise.</p>")
+        rows = pd.DataFrame({"Check": ["Method", "Independent draws"],
+                             "Value": [d["method"], f"{d['min_ess_bulk']:.0f}"]})
+        return status + _table(rows, {"Value": _e})
     status = ('<p class="ok">Sampling checks passed.</p>' if d["ok"] else
               '<p class="warn">Sampling checks FAILED: ' + _e("; ".join(d["problems"])) +
               ". Do not rely on this forecast.</p>")

@@ -187,3 +187,11 @@ def test_headline_follows_the_levels_given_and_never_prints_certainty(demo):
     assert "100%" not in head
     assert "Forecast table (Revenue (EUR thousand); quarterly periods)" in page
     assert "Quarters ahead" in page
+
+
+def test_an_exact_fit_reports_no_sampling_checks_it_did_not_make(page):
+    # The exact engine has no chains: no R-hat, no divergences to report.
+    section = page[page.index("Sampling diagnostics"):page.index("Cautions")]
+    assert "Computed exactly: no sampling" in section
+    assert "R-hat" not in section and "Divergent" not in section
+    assert "Independent draws" in section
