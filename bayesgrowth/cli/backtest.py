@@ -17,6 +17,7 @@ from bayesgrowth.cli.common import (
     priors_from_args,
     read_input,
     say,
+    whole_range,
 )
 from bayesgrowth.cli.output import add_force_option, check_output, staged_output
 from bayesgrowth.cli.text import add_unit_option, unit_from_args
@@ -126,6 +127,12 @@ def _check_settings(args, n: int) -> None:
     from bayesgrowth.backtest.split import RollingOrigin
     from bayesgrowth.data.series import MIN_OBSERVATIONS
 
+    if n <= MIN_OBSERVATIONS:
+        raise UsageError(
+            f"{args.file} has only {n} points, too short for a backtest: it needs at least "
+            f"{MIN_OBSERVATIONS + 1} (a first training set of {MIN_OBSERVATIONS} and one "
+            "period to forecast)"
+        )
     for option, value in (("--min-train", args.min_train), ("--window", args.window)):
         if value is not None and value < MIN_OBSERVATIONS:
             raise UsageError(f"{option} {value}: must be at least {MIN_OBSERVATIONS}")
@@ -135,8 +142,9 @@ def _check_settings(args, n: int) -> None:
         raise UsageError(f"--window {args.window}: may not exceed --min-train ({args.min_train})")
     if n <= args.min_train:
         raise UsageError(
-            f"--min-train {args.min_train}: {args.file} has only {n} points; choose at most "
-            f"{n - 1} so that at least one period is left to forecast"
+            f"--min-train {args.min_train}: {args.file} has only {n} points; choose a "
+            f"--min-train {whole_range(MIN_OBSERVATIONS, n - 1)} so that at least one period "
+            "is left to forecast"
         )
     RollingOrigin(args.horizon, args.min_train, stride=args.stride, window=args.window)
 

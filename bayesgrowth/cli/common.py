@@ -58,6 +58,11 @@ def _positive_int(text: str) -> int:
     return value
 
 
+def whole_range(low: int, high: int) -> str:
+    """Allowed whole numbers in words: ``"of 3"`` or ``"from 3 to 6"``."""
+    return f"of {low}" if low == high else f"from {low} to {high}"
+
+
 def _month(text: str) -> int:
     from bayesgrowth.data.fiscal import month_number
 

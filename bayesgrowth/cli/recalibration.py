@@ -12,7 +12,7 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
-from bayesgrowth.cli.common import UsageError, _positive_int, say
+from bayesgrowth.cli.common import UsageError, _positive_int, say, whole_range
 from bayesgrowth.config import PREDICTIVE_DRAWS
 from bayesgrowth.data.series import MIN_OBSERVATIONS
 
@@ -30,6 +30,9 @@ __all__ = [
 REPORTED_LEVEL = 80
 #: Predictive draws per backtest forecast in a batch (the PIT's resolution is one over it).
 BACKTEST_DRAWS = PREDICTIVE_DRAWS
+#: Fewest observations ``--recalibrate`` can backtest: the smallest first training set
+#: and two origins after it (:data:`bayesgrowth.backtest.recalibrate.MIN_ORIGINS`).
+SHORTEST_RECALIBRATED = MIN_OBSERVATIONS + 2
 
 
 def add_recalibrate_options(p: argparse.ArgumentParser, *, panel: bool = False) -> None:
@@ -68,14 +71,26 @@ def check_min_train(args, n: int, name: str | None = None) -> int | None:
     min_train = default_min_train(n) if args.min_train is None else int(args.min_train)
     if min_train < MIN_OBSERVATIONS:
         raise UsageError(f"--min-train {min_train}: must be at least {MIN_OBSERVATIONS}")
+    where = f"series {name!r} has" if name else "the series has"
+    if n < SHORTEST_RECALIBRATED:
+        raise UsageError(f"--recalibrate: {where} {n} observations, too short for its "
+                         f"backtest; {too_short_reason()}")
     if n - min_train < MIN_ORIGINS:
-        where = f"series {name!r} has" if name else "the series has"
         raise UsageError(
             f"--recalibrate: {where} {n} observations, and a backtest with --min-train "
             f"{min_train} leaves {max(n - min_train, 0)} to score (it needs {MIN_ORIGINS}); "
-            f"give a --min-train of at most {n - MIN_ORIGINS}"
+            f"give a --min-train {whole_range(MIN_OBSERVATIONS, n - MIN_ORIGINS)}"
         )
     return min_train
+
+
+def too_short_reason() -> str:
+    """Why a series shorter than :data:`SHORTEST_RECALIBRATED` cannot be recalibrated."""
+    from bayesgrowth.backtest.recalibrate import MIN_ORIGINS
+
+    return (f"it needs at least {SHORTEST_RECALIBRATED} (a first training set of "
+            f"{MIN_OBSERVATIONS} and {MIN_ORIGINS} more to score); leave out "
+            "--recalibrate")
 
 
 def recalibrate_forecast(args, fc, min_train: int):
@@ -183,10 +198,13 @@ def _backtest_plan(args, panel: dict, settings) -> list[list]:
             jobs.append((s, mt, series_seed(settings.seed, name)))
     if panel and not jobs:
         longest = max(s.n for s in panel.values())
+        if longest < SHORTEST_RECALIBRATED:
+            raise UsageError(f"--recalibrate: every series is too short for its backtest (the "
+                             f"longest has {longest} observations); {too_short_reason()}")
         raise UsageError(
             f"--recalibrate: no series is long enough for a backtest with --min-train "
             f"{args.min_train or 'half the history'} (the longest has {longest} observations); "
-            f"give a --min-train of at most {max(longest - MIN_ORIGINS, MIN_OBSERVATIONS)}"
+            f"give a --min-train {whole_range(MIN_OBSERVATIONS, longest - MIN_ORIGINS)}"
         )
     size = max(1, min(10, -(-len(jobs) // 8)))
     return [jobs[i:i + size] for i in range(0, len(jobs), size)]

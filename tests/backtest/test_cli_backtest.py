@@ -160,3 +160,31 @@ def test_missing_file_and_bad_value_exit_2_from_a_fresh_process(tmp_path):
         assert proc.returncode == 2, proc.stderr
         assert len(proc.stderr.strip().splitlines()) == 1 and "Traceback" not in proc.stderr
         assert not (tmp_path / "out").exists()
+
+
+def _quarters(n: int) -> str:
+    return "period,value\n" + "".join(
+        f"{2024 + i // 4}Q{i % 4 + 1},{100 + 5 * i}\n" for i in range(n))
+
+
+@pytest.mark.parametrize("min_train", ["2", "3"])
+def test_a_series_too_short_for_any_backtest_says_so(tmp_path, capsys, min_train):
+    path = tmp_path / "three.csv"
+    path.write_text(_quarters(3))
+    out = tmp_path / "out"
+    code, _, stderr = _run(["backtest", str(path), "-H", "1", "--min-train", min_train,
+                            "--out", str(out), "--quiet"], capsys)
+    assert code == 2 and len(stderr.strip().splitlines()) == 1, stderr
+    assert "has only 3 points, too short for a backtest: it needs at least 4" in stderr
+    assert "at most" not in stderr and not out.exists()
+
+
+def test_min_train_advice_names_a_value_the_command_accepts(tmp_path, capsys):
+    path = tmp_path / "four.csv"
+    path.write_text(_quarters(4))
+    code, _, stderr = _run(["backtest", str(path), "-H", "1", "--min-train", "4",
+                            "--out", str(tmp_path / "no"), "--quiet"], capsys)
+    assert code == 2 and "choose a --min-train of 3 so that" in stderr
+    code, _, _ = _run(["backtest", str(path), "-H", "1", "--min-train", "3",
+                       "--out", str(tmp_path / "yes"), "--quiet", "--methods", "naive"], capsys)
+    assert code == 0

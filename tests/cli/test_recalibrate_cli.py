@@ -61,7 +61,7 @@ def test_forecast_recalibrate_matches_the_python_api(tmp_path):
 
 @pytest.mark.parametrize("extra, fragment", [
     (["--min-train", "8"], "--min-train: only with --recalibrate"),
-    (["--recalibrate", "--min-train", "19"], "give a --min-train of at most 18"),
+    (["--recalibrate", "--min-train", "19"], "give a --min-train from 3 to 18"),
     (["--recalibrate", "--min-train", "2"], "--min-train 2: must be at least 3"),
 ])
 def test_bad_recalibrate_options_exit_2_and_write_nothing(tmp_path, capsys, extra, fragment):
@@ -94,3 +94,55 @@ def test_batch_recalibrate_pools_the_panel(tmp_path, capsys):
     rc = main(["batch", str(path), "-H", "3", "--out", str(tmp_path / "o2"), "--min-train", "9",
                "--quiet"])
     assert rc == 2 and "--min-train: only with --recalibrate" in capsys.readouterr().err
+
+
+def _quarters(n: int) -> str:
+    return "period,value\n" + "".join(
+        f"{2024 + i // 4}Q{i % 4 + 1},{100 + 5 * i}\n" for i in range(n))
+
+
+@pytest.mark.parametrize("extra", [[], ["--min-train", "3"]])
+@pytest.mark.parametrize("n", [3, 4])
+def test_recalibrate_too_short_says_so_and_suggests_no_impossible_min_train(
+        tmp_path, capsys, n, extra):
+    from bayesgrowth.backtest.recalibrate import MIN_ORIGINS
+    from bayesgrowth.cli.recalibration import SHORTEST_RECALIBRATED
+    from bayesgrowth.data.series import MIN_OBSERVATIONS
+
+    assert SHORTEST_RECALIBRATED == MIN_OBSERVATIONS + MIN_ORIGINS
+    path = tmp_path / "short.csv"
+    path.write_text(_quarters(n))
+    out = tmp_path / "out"
+    rc = main(["forecast", str(path), "-H", "2", "--out", str(out), "--quiet", "--recalibrate",
+               *extra])
+    err = capsys.readouterr().err.strip()
+    assert rc == 2 and err.count("\n") == 0, err
+    assert f"has {n} observations, too short for its backtest" in err
+    assert "at least 5" in err and "at most" not in err
+    assert not out.exists()
+
+
+def test_recalibrate_advice_is_a_range_that_is_accepted(tmp_path, capsys):
+    path = tmp_path / "five.csv"
+    path.write_text(_quarters(5))
+    rc = main(["forecast", str(path), "-H", "1", "--out", str(tmp_path / "no"), "--quiet",
+               "--recalibrate", "--min-train", "4"])
+    err = capsys.readouterr().err
+    assert rc == 2 and "give a --min-train of 3" in err
+    assert main(["forecast", str(path), "-H", "1", "--out", str(tmp_path / "yes"), "--quiet",
+                 "--recalibrate", "--min-train", "3"]) == 0
+
+
+def test_batch_recalibrate_on_a_panel_too_short_says_so(tmp_path, capsys):
+    path = tmp_path / "panel.csv"
+    rows = [f"{name},{line}" for name, n in (("A", 3), ("B", 4))
+            for line in _quarters(n).splitlines()[1:]]
+    path.write_text("series,period,value\n" + "\n".join(rows) + "\n")
+    out = tmp_path / "out"
+    rc = main(["batch", str(path), "-H", "1", "--out", str(out), "--recalibrate", "--quiet",
+               "--workers", "1"])
+    err = capsys.readouterr().err.strip()
+    assert rc == 2 and err.count("\n") == 0, err
+    assert "every series is too short for its backtest (the longest has 4" in err
+    assert "at least 5" in err and "at most" not in err
+    assert not out.exists()
