@@ -51,6 +51,8 @@ _SAME = {"€": "EUR", "£": "GBP", "₹": "INR", "₩": "KRW", "₽": "RUB", "�
 _SPACES = " \u00a0\u202f"
 _APOSTROPHES = "'\u2019"
 _GROUPS = _SPACES + _APOSTROPHES
+#: One to three digits, a mark, exactly three digits: all a grouped thousand can look like.
+_THOUSAND = re.compile(r"[+-]?\d{1,3}[.,]\d{3}", re.ASCII)
 
 
 def _count_outside_quotes(line: str) -> dict[str, int]:
@@ -126,8 +128,10 @@ def _strip_currency(text: str) -> tuple[str, str, bool] | None:
 def _hint(num: str) -> str | None:
     """What a number's marks say of the decimal mark: ``"."``, ``","``, ``"?"`` or ``None``.
 
-    ``"?"`` is a lone comma before exactly three digits after at most three
-    (``1,234``): thousands or decimals, it cannot be told.
+    ``"?"`` is a lone comma before exactly three digits after one to three
+    digits (``1,234``): thousands or decimals, it cannot be told. ``"?."`` is the
+    same with a point. Anything else after the mark (``11.82``, ``1.234%``) cannot
+    be a grouped thousand, so the mark is a decimal mark.
     """
     commas, points = num.count(","), num.count(".")
     grouped = any(ch in num for ch in _GROUPS)
@@ -139,8 +143,7 @@ def _hint(num: str) -> str | None:
     other = "." if mark == "," else ","
     if count > 1:
         return other
-    left, right = num.split(mark)
-    if grouped or len(right) != 3 or len(left.lstrip("+-")) > 3:
+    if grouped or not _THOUSAND.fullmatch(num):
         return mark
     return "?" if mark == "," else "?."
 
@@ -174,6 +177,8 @@ def decimal_mark(texts: Sequence[str], wheres: Sequence[str], decimal: str = "au
         cell = _strip_currency(str(text).strip())
         if cell is None or (_PLAIN.fullmatch(cell[0]) and separator != ";"):
             continue
+        if cell[0].endswith("%"):
+            continue  # refused as a percentage by amount(), whatever the mark
         hint = _hint(cell[0])
         if hint is not None:
             seen.setdefault(hint, (i, str(text).strip(), where))
@@ -303,3 +308,4 @@ header (columns 1 and 3); rename or delete one of them
                 f"{seen[name]} and {i}); rename or delete one of them"
             )
         seen.setdefault(name, i)
+

@@ -144,6 +144,28 @@ def test_percentages_are_refused(tmp_path, capsys):
              "'12.5%' is a percentage", "values must be amounts", "not rates")
 
 
+@pytest.mark.parametrize("sep", [",", ";"])
+def test_percentages_are_refused_before_any_question_of_the_mark(tmp_path, capsys, sep):
+    # 11.82% has two digits after the point and 2.500% has a percent sign after
+    # the three: neither is a grouped thousand, so the percentage is the problem.
+    text = f"period{sep}value\n2024Q1{sep}11.82%\n2024Q2{sep}2.500%\n2024Q3{sep}13.10%\n"
+    message = _refused(tmp_path, capsys, "rates.csv", text, "rates.csv, row 2, column 'value'",
+                       "'11.82%' is a percentage")
+    assert "--decimal" not in message and "semicolon" not in message
+
+
+@pytest.mark.parametrize(("cells", "expected"), [
+    (["1.25", "1.5", "1.75"], [1.25, 1.5, 1.75]),          # two digits after the point
+    (["1.2345", "1.3", "1.4"], [1.2345, 1.3, 1.4]),        # four digits after the point
+    ([".234", ".3", ".4"], [0.234, 0.3, 0.4]),             # no digit before the point
+])
+def test_points_that_cannot_group_thousands_are_decimals_in_a_semicolon_file(
+        tmp_path, cells, expected):
+    rows = "".join(f"2024Q{q};{c}\n" for q, c in zip((1, 2, 3), cells, strict=True))
+    s = _read(tmp_path, "period;value\n" + rows)
+    np.testing.assert_allclose(s.values, expected, rtol=1e-15)
+
+
 def test_two_currencies_are_refused(tmp_path, capsys):
     text = "period,value\n2024Q1,$100\n2024Q2,€110\n2024Q3,120\n"
     _refused(tmp_path, capsys, "sales.csv", text, "sales.csv, row 3, column 'value'",
