@@ -28,7 +28,7 @@ from __future__ import annotations
 import re
 from dataclasses import dataclass
 
-from bayesgrowth.data.periods import PeriodAxis, PeriodError
+from bayesgrowth.data.periods import PeriodAxis, PeriodError, style_of
 
 __all__ = ["StyledAxis", "month_number", "read_labels", "restyle"]
 
@@ -158,6 +158,27 @@ def _match(label: str) -> tuple[str, re.Match] | None:
     return None
 
 
+def _check_calendar_styles(labels: list[str]) -> None:
+    """Refuse a label written in a style read here after a first label the calendar reads.
+
+    The labels are walked in order up to the first one the calendar does not read
+    itself: if that one is in a style read here (``Q4 2024`` after ``2024Q1``), it
+    is refused as written unlike the first; anything else is left to the calendar.
+    """
+    if not labels or style_of(labels[0]) is None:
+        return
+    for i, label in enumerate(labels):
+        if style_of(label) is not None:
+            continue
+        if _match(label) is not None:
+            raise PeriodError(
+                i,
+                f"period {label!r} is not written like the first period {labels[0]!r}; "
+                "write every period of a series the same way",
+            )
+        return
+
+
 def read_labels(labels: list[str], fiscal_start: int | None = None) -> tuple[list[str], dict]:
     """Free-form labels in the calendar's canonical style, and how to write them back.
 
@@ -180,11 +201,13 @@ def read_labels(labels: list[str], fiscal_start: int | None = None) -> tuple[lis
     Raises
     ------
     PeriodError
-        A label in another style than the first, a month that does not exist,
+        A label in another style than the first (either way round: ``Q4 2024``
+        after ``2024Q1``, or ``2024Q4`` after ``Q1 2024``), a month that does not exist,
         or fiscal labels without ``fiscal_start``.
     """
     found = _match(labels[0]) if labels else None
     if found is None:
+        _check_calendar_styles(labels)
         return labels, {}
     kind, first = found
     if kind == "fiscal" and fiscal_start is None:

@@ -57,7 +57,14 @@ class PeriodError(ValueError):
         self.position = position
 
 
-def _style_of(label: str) -> str | None:
+def style_of(label: str) -> str | None:
+    """The style (``"quarter"``, ``"date"``, ``"month"``, ``"integer"``) of a label, or ``None``.
+
+    Examples
+    --------
+    >>> style_of("2024Q1"), style_of("2024-01"), style_of("Q1 2024")
+    ('quarter', 'month', None)
+    """
     if _QUARTER.match(label):
         return "quarter"
     if _DATE.match(label):
@@ -227,7 +234,7 @@ def _styles(labels: list[str]) -> str:
     """The one label style of all ``labels``, or a :class:`PeriodError` at the first misfit."""
     styles = []
     for i, label in enumerate(labels):
-        style = _style_of(label)
+        style = style_of(label)
         if style is None:
             raise PeriodError(
                 i,

@@ -236,6 +236,28 @@ def test_mixed_label_styles_are_refused(tmp_path, capsys):
              "'2024-03' is not written like the first period 'Jan 2024'")
 
 
+@pytest.mark.parametrize(("labels", "odd", "first"), [
+    (["2024Q1", "2024Q2", "2024Q3", "Q4 2024"], "Q4 2024", "2024Q1"),
+    (["Q1 2024", "Q2 2024", "Q3 2024", "2024Q4"], "2024Q4", "Q1 2024"),
+    (["2024-01", "2024-02", "Mar 2024"], "Mar 2024", "2024-01"),
+    (["2024-01", "2024-02", "03/2024"], "03/2024", "2024-01"),
+])
+def test_a_second_label_style_is_refused_either_way_round(tmp_path, capsys, labels, odd, first):
+    rows = "".join(f"{label},{10 + i}\n" for i, label in enumerate(labels))
+    message = _refused(tmp_path, capsys, "sales.csv", "period,value\n" + rows,
+                       f"sales.csv, row {labels.index(odd) + 2}, column 'period'",
+                       f"period {odd!r} is not written like the first period {first!r}",
+                       "write every period of a series the same way")
+    assert "is not a quarter" not in message
+
+
+def test_unreadable_label_before_a_second_style_is_named_first(tmp_path):
+    text = "period,value\n2024Q1,1\nsoon,2\nQ3 2024,3\n"
+    with pytest.raises(InputError, match=r"row 3, column 'period': period 'soon' is not a "
+                       r"quarter"):
+        _read(tmp_path, text)
+
+
 def test_month_that_does_not_exist_is_refused(tmp_path):
     with pytest.raises(InputError, match=r"row 3, column 'period': period '13/2024'"):
         _read(tmp_path, "period,value\n12/2024,1\n13/2024,2\n01/2025,3\n")
