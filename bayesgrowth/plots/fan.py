@@ -75,7 +75,10 @@ def _probability_at_least(forecast, target: float) -> float:
 
 
 def _title(forecast) -> str:
-    return f"{literal(forecast.fit.series.name)}\nForecast: {describe_model(forecast)}"
+    title = f"{literal(forecast.fit.series.name)}\nForecast: {describe_model(forecast)}"
+    if getattr(forecast, "calibration", None) is not None:  # a RecalibratedForecast
+        title += "\nBands recalibrated by a backtest"
+    return title
 
 
 def _draw_fit(ax: Axes, forecast, level: int) -> None:

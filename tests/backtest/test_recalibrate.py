@@ -240,3 +240,16 @@ def test_recalibration_restores_coverage_on_held_out_periods(rng):
     assert table.loc[80, "coverage_after"] > table.loc[80, "coverage_before"] + 0.2
     for side in ("below", "above"):
         assert table.loc[80, f"{side}_after"] < table.loc[80, f"{side}_before"] - 0.05
+
+
+def test_fan_chart_title_says_the_bands_were_recalibrated(trend_forecast, rng):
+    import matplotlib.pyplot as plt
+
+    from bayesgrowth.plots.fan import plot_fan
+
+    fixed = apply_map(trend_forecast, _skewed_map(rng), {"where": "test"})
+    ax = plot_fan(fixed)
+    assert ax.get_title().splitlines()[-1] == "Bands recalibrated by a backtest"
+    plain = plot_fan(trend_forecast)
+    assert "recalibrated" not in plain.get_title()
+    plt.close("all")
