@@ -11,7 +11,13 @@ from pathlib import Path
 import pandas as pd
 
 from bayesgrowth.data.excel import EXCEL_SUFFIXES, read_excel_file
-from bayesgrowth.data.formats import check_header, detect_separator
+from bayesgrowth.data.formats import (
+    check_header,
+    detect_separator,
+    title_line,
+    title_message,
+    title_rows,
+)
 from bayesgrowth.data.series import InputError
 
 __all__ = ["read_csv_file", "separator_of"]
@@ -51,9 +57,13 @@ def separator_of(path: str | Path) -> str:
         When the header does not tell (see :func:`bayesgrowth.data.formats.detect_separator`).
     """
     path = Path(path)
+    return detect_separator(_head(path), path.name)
+
+
+def _head(path: Path) -> str:
+    """The start of a file as text (enough for the header and the first rows)."""
     with open(path, encoding="utf-8-sig", newline="") as handle:
-        head = handle.read(64 * 1024)
-    return detect_separator(head, path.name)
+        return handle.read(64 * 1024)
 
 
 def read_csv_file(path: str | Path) -> pd.DataFrame:
@@ -70,13 +80,18 @@ def read_csv_file(path: str | Path) -> pd.DataFrame:
     -------
     pandas.DataFrame
         One column per header name, every cell a ``str`` (empty cells are ``""``).
+        ``attrs["separator"]`` is the separator; ``attrs["title_line"]`` says
+        whether the first line looks like a title above the header (see
+        :func:`bayesgrowth.data.formats.title_line`), for the message when a
+        column is missing.
 
     Raises
     ------
     InputError
         With one line naming the file (and the row, where there is one) and the fix:
         missing, a folder, not readable, not UTF-8 text, empty, ragged rows, an open
-        quote, or a column named twice in the header.
+        quote, or a column named twice in the header; ragged rows under a line
+        that looks like a title above the header are refused as that title line.
     """
     path = Path(path)
     source = path.name
@@ -90,7 +105,8 @@ def read_csv_file(path: str | Path) -> pd.DataFrame:
         raise InputError(f"{source}: an old-style Excel file (.xls); open it in a spreadsheet "
                          "and save it as .xlsx or as CSV")
     try:
-        sep = separator_of(path)
+        head = _head(path)
+        sep = detect_separator(head, source)
         frame = pd.read_csv(path, dtype=str, keep_default_na=False, skipinitialspace=True,
                             sep=sep)
         _check_header(path, source, sep)
@@ -102,6 +118,9 @@ def read_csv_file(path: str | Path) -> pd.DataFrame:
     except pd.errors.EmptyDataError:
         raise InputError(f"{source}: the file is empty") from None
     except pd.errors.ParserError as exc:
+        title = title_line(title_rows(head))
+        if title and title["fits"]:
+            raise InputError(title_message(source, title)) from None
         raise InputError(_parser_problem(source, exc)) from None
     except OSError as exc:
         raise InputError(
@@ -110,4 +129,5 @@ def read_csv_file(path: str | Path) -> pd.DataFrame:
         ) from None
     frame.columns = [str(c).strip() for c in frame.columns]
     frame.attrs["separator"] = sep
+    frame.attrs["title_line"] = title_line(title_rows(head))
     return frame

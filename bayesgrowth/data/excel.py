@@ -15,7 +15,7 @@ from pathlib import Path
 
 import pandas as pd
 
-from bayesgrowth.data.formats import check_header
+from bayesgrowth.data.formats import check_header, title_line
 from bayesgrowth.data.series import InputError
 
 __all__ = ["EXCEL_SUFFIXES", "read_excel_file"]
@@ -83,4 +83,5 @@ def read_excel_file(path: Path) -> pd.DataFrame:
     check_header(header, path.name)
     body = cells.iloc[1:].reset_index(drop=True)
     body.columns = header
+    body.attrs["title_line"] = title_line(cells.iloc[:3].values.tolist())
     return body

@@ -28,7 +28,8 @@ from collections.abc import Sequence
 
 from bayesgrowth.data.series import InputError
 
-__all__ = ["DECIMAL_CHOICES", "amount", "check_header", "decimal_mark", "detect_separator"]
+__all__ = ["DECIMAL_CHOICES", "amount", "check_header", "decimal_mark", "detect_separator",
+           "title_line", "title_message", "title_rows"]
 
 #: Values of ``--decimal``: tell the mark from the column, or state it.
 DECIMAL_CHOICES = ("auto", ".", ",")
@@ -309,3 +310,59 @@ header (columns 1 and 3); rename or delete one of them
             )
         seen.setdefault(name, i)
 
+
+def title_rows(text: str) -> list[list[str]]:
+    """The first non-blank lines of a CSV file as cells, for :func:`title_line`.
+
+    The separator is told from the lines after the first, since a title line
+    holds none. Empty when those lines do not tell it.
+    """
+    lines = [line for line in text.splitlines()[:40] if line.strip()][:21]
+    if len(lines) < 2:
+        return []
+    try:
+        sep = detect_separator("\n".join(lines[1:]), "")
+    except InputError:
+        return []
+    return list(csv.reader(io.StringIO("\n".join(lines)), delimiter=sep))
+
+
+def title_line(rows: Sequence[Sequence[str]]) -> dict | None:
+    """A title line above the header, as spreadsheets put one, or ``None``.
+
+    The first row must hold one non-empty cell and the second at least two; the
+    second row is then likely the header. ``fits`` also asks that no cell of the
+    second row is a plain number, as no column name is and many data cells are.
+
+    Parameters
+    ----------
+    rows : sequence of sequences of str
+        The first rows of the file, as cells.
+
+    Returns
+    -------
+    dict or None
+        ``title`` (the first row's cell), ``header`` (the second row's cells,
+        stripped, empty ones left out) and ``fits`` (whether the next row has as
+        many non-empty cells as the second, as data rows under a header do).
+
+    Examples
+    --------
+    >>> title_line([["Sales (EUR k)", ""], ["period", "value"], ["2024Q1", "10"]])
+    {'title': 'Sales (EUR k)', 'header': ['period', 'value'], 'fits': True}
+    >>> title_line([["period", "value"], ["2024Q1", "10"]]) is None
+    True
+    """
+    filled = [[str(c).strip() for c in row if str(c).strip()] for row in rows[:3]]
+    if len(filled) < 2 or len(filled[0]) != 1 or len(filled[1]) < 2:
+        return None
+    fits = (len(filled) == 3 and len(filled[2]) == len(filled[1])
+            and not any(_PLAIN.fullmatch(c) for c in filled[1]))
+    return {"title": filled[0][0], "header": filled[1], "fits": fits}
+
+
+def title_message(source: str, title: dict) -> str:
+    """The one-line message for a file that starts with ``title`` (from :func:`title_line`)."""
+    return (f"{source}, row 1: the file seems to start with a title line ({title['title']!r}) "
+            f"above the header ({', '.join(title['header'])}); delete that line so the header "
+            "is row 1")

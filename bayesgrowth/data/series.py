@@ -344,9 +344,24 @@ def read_series(
 
 
 def require_columns(frame: pd.DataFrame, source: str, columns) -> None:
-    """Refuse a table without one of ``columns`` (pairs of name and the option that sets it)."""
+    """Refuse a table without one of ``columns`` (pairs of name and the option that sets it).
+
+    When the file seems to start with a title line above the header (its
+    ``attrs["title_line"]``, set by the file readers, with the missing column in
+    the next line or that line as wide as the rows under it, and the title not one
+    of ``columns``), the message says to delete that line rather than to name
+    another column.
+    """
+    from bayesgrowth.data.formats import title_message
+
+    title = frame.attrs.get("title_line")
+    columns = list(columns)
+    if title and title["title"] in {col for col, _ in columns}:
+        title = None  # a header naming one column only, not a title
     for col, option in columns:
         if col not in frame.columns:
+            if title and (col in title["header"] or title["fits"]):
+                raise InputError(title_message(source, title))
             have = ", ".join(repr(str(c)) for c in frame.columns)
             raise InputError(
                 f"{source}: no column {col!r} (columns are {have}); name the right one with "

@@ -282,6 +282,61 @@ def test_fiscal_forecast_end_to_end(tmp_path, capsys):
     assert periods[1:] == ["FY25 Q1", "FY25 Q2"]
 
 
+# --- title lines ----------------------------------------------------------------------------
+
+@pytest.mark.parametrize(("name", "text", "header"), [
+    ("sales.csv", "Quarterly sales (EUR k)\nperiod,value\n2024Q1,10\n2024Q2,12\n2024Q3,15\n",
+     "period, value"),
+    # a spreadsheet pads the title to the table's width; a comma inside quotes
+    ("sales.csv", '"Sales, by quarter",,\nperiod,value,note\n2024Q1,10,\n2024Q2,12,x\n'
+     "2024Q3,15,y\n", "period, value, note"),
+    # semicolons: read with the title's (absent) separator the rows are ragged
+    ("sales.csv", "Sales\nperiod;value\n2024Q1;10,5\n2024Q2;12\n2024Q3;15\n",
+     "period, value"),
+    # other column names: the header is as wide as the rows under it
+    ("sales.csv", "Sales\nquarter,revenue\n2024Q1,10\n2024Q2,12\n2024Q3,15\n",
+     "quarter, revenue"),
+])
+def test_title_line_above_the_header_is_named(tmp_path, capsys, name, text, header):
+    title = text.split("\n")[0].split(",,")[0].strip('"')
+    message = _refused(tmp_path, capsys, name, text,
+                       f"{name}, row 1: the file seems to start with a title line ({title!r})",
+                       f"above the header ({header}); delete that line")
+    assert "--period-col" not in message
+
+
+@pytest.mark.parametrize(("text", "fragment"), [
+    ("period,\n2024Q1,10\n2024Q2,12\n2024Q3,15\n", "no column 'value'"),
+    ("value\n1\n2\n3\n", "no column 'period'"),
+    ("Sales\nquarter,revenue\n2024Q1,\n2024Q2,12\n2024Q3,15\n", "no column 'period'"),
+])
+def test_headers_that_are_not_under_a_title_keep_the_column_message(tmp_path, text, fragment):
+    # a header naming only the period column, a one-column file, and a second
+    # line that neither names the column nor is as wide as the next row
+    with pytest.raises(InputError, match=fragment) as info:
+        _read(tmp_path, text)
+    assert "title line" not in str(info.value)
+
+
+def test_title_line_above_a_panel_and_a_workbook(tmp_path):
+    path = tmp_path / "group.csv"
+    path.write_text("Group sales\nseries,period,value\na,2024Q1,10\na,2024Q2,12\n"
+                    "a,2024Q3,15\n")
+    with pytest.raises(InputError, match=r"^group.csv, row 1: the file seems to start with a "
+                       r"title line \('Group sales'\) above the header \(series, period, "
+                       r"value\)"):
+        read_panel(path)
+    pytest.importorskip("openpyxl")
+    import pandas as pd
+
+    book = tmp_path / "sales.xlsx"
+    pd.DataFrame([["Sales (EUR k)", None], ["period", "value"], ["2024Q1", 10],
+                  ["2024Q2", 12], ["2024Q3", 15]]).to_excel(book, index=False, header=False)
+    with pytest.raises(InputError, match=r"^sales.xlsx, row 1: the file seems to start with a "
+                       r"title line \('Sales \(EUR k\)'\)"):
+        read_series(book)
+
+
 # --- panels and workbooks -------------------------------------------------------------------
 
 def test_panel_reads_formats_per_series(tmp_path):
