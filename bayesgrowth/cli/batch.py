@@ -91,8 +91,6 @@ def run(args) -> int:
     from bayesgrowth.batch.work import BatchSettings
     from bayesgrowth.data.panel import quiet_read_panel
 
-    if args.seed < 0:
-        raise UsageError(f"--seed {args.seed}: must be 0 or more")
     if args.min_train is not None and not args.recalibrate:
         raise UsageError("--min-train: only with --recalibrate")
     panel, bad, notes = quiet_read_panel(

@@ -48,14 +48,28 @@ def _probability(text: str) -> float:
     return value
 
 
-def _positive_int(text: str) -> int:
+def _whole_number(text: str, least: int, words: str) -> int:
     try:
         value = int(text)
     except ValueError:
         raise argparse.ArgumentTypeError(f"{text!r} is not a whole number") from None
-    if value < 1:
-        raise argparse.ArgumentTypeError(f"{text!r} must be at least 1")
+    if value < least:
+        raise argparse.ArgumentTypeError(f"{text!r} must be {words}")
     return value
+
+
+def _positive_int(text: str) -> int:
+    return _whole_number(text, 1, "at least 1")
+
+
+def _seed(text: str) -> int:
+    return _whole_number(text, 0, "0 or more")
+
+
+def add_seed_option(p: argparse.ArgumentParser) -> None:
+    """``--seed``: a whole number of 0 or more, refused at parsing otherwise (exit code 2)."""
+    p.add_argument("--seed", type=_seed, default=1, metavar="N",
+                   help="random seed, 0 or more; same seed, same output [1]")
 
 
 def whole_range(low: int, high: int) -> str:
@@ -151,7 +165,7 @@ def _add_run_options(p: argparse.ArgumentParser, horizon_required: bool) -> None
         f"exponential curve with normal noise, independent or AR(1) errors, seasonal "
         f"factors or not); nuts: PyMC sampler, every model [{DEFAULT_ENGINE}]",
     )
-    p.add_argument("--seed", type=int, default=1, help="random seed; same seed, same output [1]")
+    add_seed_option(p)
     p.add_argument(
         "--levels",
         type=_levels,

@@ -17,6 +17,7 @@ from bayesgrowth.cli.common import (
     _levels,
     _positive_int,
     add_input,
+    add_seed_option,
     priors_from_args,
     say,
 )
@@ -52,7 +53,7 @@ def add_parser(sub) -> None:
     add_force_option(p)
     p.add_argument("--levels", type=_levels, default=DEFAULT_LEVELS,
                    help="credible band levels in percent, comma-separated [50,80,95]")
-    p.add_argument("--seed", type=int, default=1, help="random seed; same seed, same output [1]")
+    add_seed_option(p)
     p.add_argument("--draws", type=_positive_int, default=1000, help="draws per chain [1000]")
     p.add_argument("--tune", type=_positive_int, default=1000,
                    help="warm-up iterations per chain [1000]")

@@ -234,3 +234,32 @@ def test_one_recommended_default_in_the_api_and_the_cli(tmp_path):
     assert summary["engine"] == "exact"
     assert summary["model_options"] == expected
     assert 0 < summary["growth_fades"]["probability"] <= 1
+
+
+def _commands_with(option: str) -> list[str]:
+    import argparse
+
+    from bayesgrowth.cli.main import build_parser
+
+    sub = next(a for a in build_parser()._actions if isinstance(a, argparse._SubParsersAction))
+    return [name for name, p in sub.choices.items() if option in p._option_string_actions]
+
+
+def test_every_command_refuses_a_negative_seed_at_parsing(tmp_path, good_csv, capsys,
+                                                           monkeypatch):
+    import bayesgrowth.inference.run as run
+
+    commands = _commands_with("--seed")
+    assert {"forecast", "compare", "backtest", "report", "batch", "pool"} <= set(commands)
+    monkeypatch.setattr(run, "fit_series", lambda *a, **k: pytest.fail("fitted"))
+    out = tmp_path / "out"
+    for command in commands:
+        given = [] if command == "demo" else [str(good_csv), "-H", "2", "--min-train", "3"]
+        rc = _run([command, *given, "--out", str(out), "--seed", "-1"])
+        err = capsys.readouterr().err.strip()
+        assert rc == 2 and err.count("\n") == 0, (command, err)
+        assert "argument --seed: '-1' must be 0 or more" in err, (command, err)
+        assert not out.exists()
+    monkeypatch.undo()
+    assert _run(["forecast", str(good_csv), "-H", "2", "--out", str(out), "--seed", "0",
+                 "--quiet"]) == 0
