@@ -12,6 +12,7 @@ from bayesgrowth.cli.common import (
     UsageError,
     add_input,
     add_model_options,
+    check_ceiling,
     checked_model_options,
     model_options_from_args,
     priors_from_args,
@@ -193,6 +194,7 @@ def _choices(args):
 def run(args) -> int:
     """Run the backtest subcommand; returns the exit code."""
     choices, sampler = _choices(args)
+    check_ceiling(args, [c.options["model"] for c in choices if c.bayesian])
     series = read_input(args)
     _check_settings(args, series.n)
     names = output_files([c.name for c in choices])

@@ -263,3 +263,43 @@ def test_every_command_refuses_a_negative_seed_at_parsing(tmp_path, good_csv, ca
     monkeypatch.undo()
     assert _run(["forecast", str(good_csv), "-H", "2", "--out", str(out), "--seed", "0",
                  "--quiet"]) == 0
+
+
+@pytest.mark.parametrize(("extra", "says", "python_spelling"), [
+    (["--noise-dist", "student-t"], "use --noise-dist normal with it", "noise='normal'"),
+    (["--errors", "ar1"], "use nuts instead of exact (--engine nuts)", "engine="),
+    (["--ceiling", "100"], "--ceiling 100: applies only to the curves with a ceiling "
+     "(--model logistic or --model gompertz), not to the local-trend model",
+     "not above the largest observed value"),
+    (["--ceiling", "1e6"], "leave --ceiling out", "ceiling="),
+])
+def test_model_option_errors_speak_the_command_line(tmp_path, capsys, extra, says,
+                                                    python_spelling):
+    out = tmp_path / "out"
+    rc = _run(["forecast", str(demo_path()), "-H", "2", "--out", str(out), "--quiet", *extra])
+    err = capsys.readouterr().err.strip()
+    assert rc == 2 and err.count("\n") == 0, err
+    assert says in err and python_spelling not in err, err
+    assert not out.exists()
+
+
+def test_cli_spelling_names_the_options():
+    from bayesgrowth.cli.common import cli_spelling
+
+    text = ("use noise='normal', errors=\"ar1\", engine='nuts', drift='random-walk', "
+            "model='logistic' or seasonal=False; noise is kept")
+    assert cli_spelling(text) == ("use --noise-dist normal, --errors ar1, --engine nuts, "
+                                  "--drift random-walk, --model logistic or --seasonal no; "
+                                  "noise is kept")
+
+
+def test_a_ceiling_with_a_ceiling_curve_is_checked_against_the_data(tmp_path, capsys):
+    out = tmp_path / "out"
+    rc = _run(["backtest", str(demo_path()), "-H", "1", "--min-train", "18", "--out", str(out),
+               "--quiet", "--ceiling", "100"])
+    err = capsys.readouterr().err
+    assert rc == 2 and "not to the local-trend or exponential models" in err
+    rc = _run(["backtest", str(demo_path()), "-H", "1", "--min-train", "18", "--out", str(out),
+               "--quiet", "--ceiling", "100", "--models", "naive"])
+    assert rc == 2 and "no model of this run has one" in capsys.readouterr().err
+    assert not out.exists()
