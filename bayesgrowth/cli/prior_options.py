@@ -50,7 +50,9 @@ def add_common_priors(g) -> None:
         type=float,
         default=0.0,
         metavar="PCT",
-        help="central growth per period in percent [0]",
+        help="central growth per period in percent: of the curves, the rate they carry "
+        "forward; of the local trend (the default model), the growth at the first "
+        "observation, which then drifts or fades [0]",
     )
     g.add_argument(
         "--growth-give-or-take",
