@@ -49,6 +49,9 @@ __all__ = [
 
 #: The models a backtest compares unless told otherwise.
 DEFAULT_MODELS = ("default", "exponential", "log-linear")
+#: When ``seasonal="auto"`` fits seasonal factors (see
+#: :func:`bayesgrowth.models.spec.resolve_seasonal`), in a description's words.
+AUTO_SEASONS = "seasonal factors when the calendar has two full years"
 
 
 
@@ -105,8 +108,23 @@ class ModelChoice:
         """Whether the model is fitted by a Bayesian engine (and has sampling diagnostics)."""
         return self.method in BAYESIAN
 
-    def describe(self) -> str:
-        """The model in words, e.g. ``"exponential, independent errors, ... (exact engine)"``."""
+    def describe(self, series=None, splitter=None) -> str:
+        """The model in words, e.g. ``"exponential, independent errors, ... (exact engine)"``.
+
+        Parameters
+        ----------
+        series : GrowthSeries, optional
+            The backtested series: seasonal factors left to the calendar
+            (``seasonal="auto"``) are decided on it as the fits decide them. Without
+            it the description says when they are fitted.
+        splitter : RollingOrigin, optional
+            The backtest's origins, whose training sets the exact engine decides
+            seasons on (each fit on its own); by default the whole series.
+
+        Returns
+        -------
+        str
+        """
         if not self.bayesian:
             return {"log-linear": "least squares on the log values",
                     "log-linear, anchored": "least squares on the log values, through the "
@@ -114,7 +132,37 @@ class ModelChoice:
                     "revenue-scale": "least squares on the values (point forecast)",
                     "naive": "last value carried forward (random walk on the log scale)",
                     }[self.method]
-        return f"{_spec(self.options).label()} ({self.method} engine)"
+        return f"{self._label(series, splitter)} ({self.method} engine)"
+
+    def _label(self, series, splitter) -> str:
+        """The model's label, with the seasonal factors that ``"auto"`` gives its fits."""
+        from bayesgrowth.models.spec import resolve_seasonal
+
+        spec = _spec(self.options)
+        if self.options.get("seasonal") != "auto" or not spec.family.auto_seasonal:
+            return spec.label()
+        seasonal = _spec({**self.options, "seasonal": True}).label()
+        if series is None:
+            return f"{spec.label()}; {AUTO_SEASONS}"
+        train_sets = [t for t, _ in splitter.split(series.n)] if (
+            splitter is not None and not self._seasons_on_whole_series()) else [
+            range(series.n)]
+        on = [bool(resolve_seasonal("auto", series.axis, series.t[list(t)], spec.model))
+              for t in train_sets]
+        if all(on):
+            return seasonal
+        if not any(on):
+            return spec.label()
+        first = series.labels[train_sets[on.index(True)][-1]]
+        return f"{spec.label()}; seasonal factors from origin {first} on (two full years)"
+
+    def _seasons_on_whole_series(self) -> bool:
+        """Whether "auto" seasons are decided once on the whole series (a NUTS refit)."""
+        if self.method != "nuts":
+            return False
+        from bayesgrowth.inference import refit
+
+        return refit.supports(self.options)
 
 
 def _spec(options: Mapping):

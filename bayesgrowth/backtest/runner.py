@@ -175,7 +175,7 @@ def backtest(
         "n_origins": int(forecasts["origin"].nunique()),
         "model_options": dict(model_options or {}),
         "models": [{"name": c.name, "method": c.method, "options": dict(c.options),
-                    "description": c.describe()} for c in choices],
+                    "description": c.describe(series, splitter)} for c in choices],
     }
     return BacktestResult(forecasts=forecasts, scores=score_table(forecasts, levels),
                           diagnostics=diagnostics, series=series, levels=levels,

@@ -193,3 +193,39 @@ def test_model_figure_is_labelled_by_model(three):
     plt.close(point)
     with pytest.raises(ValueError, match="not in the backtest"):
         model_figure(three, "naive")
+
+
+def test_the_default_describes_the_seasons_its_fits_use():
+    from bayesgrowth.backtest.models import AUTO_SEASONS
+    from bayesgrowth.backtest.split import RollingOrigin
+    from bayesgrowth.data.demo import load_demo
+    from bayesgrowth.inference.run import fit_series
+
+    demo = load_demo()  # quarterly: two full years after 8 points
+    default = parse_model("default")
+    assert default.describe().endswith(f"; {AUTO_SEASONS} (exact engine)")
+    assert default.describe(demo, RollingOrigin(4, 8)).endswith(
+        "normal noise, seasonal factors (exact engine)")
+    assert "seasonal" not in default.describe(demo.head(7))
+    mixed = default.describe(demo, RollingOrigin(4, 5))
+    first = demo.labels[7]
+    assert f"seasonal factors from origin {first} on (two full years)" in mixed
+    options = {k: v for k, v in default.options.items() if k not in ("draws", "chains")}
+    assert not fit_series(demo.head(7), **options).spec.seasonal  # what the fits do
+    assert fit_series(demo.head(8), **options).spec.seasonal
+    for text in ("default/no-seasons", "exponential"):
+        assert "seasonal" not in parse_model(text).describe(demo)
+    assert parse_model("default/seasonal").describe(demo.head(5)).endswith(
+        "seasonal factors (exact engine)")
+
+
+def test_a_backtest_labels_the_default_with_its_seasons():
+    from bayesgrowth.data.demo import load_demo
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        result = backtest(load_demo(), horizon=1, min_train=18, models=["default", "naive"],
+                          n_draws=200)
+    assert result.descriptions["default"] == (
+        "local-trend (mean-reverting), independent errors, normal noise, seasonal factors "
+        "(exact engine)")
