@@ -83,11 +83,15 @@ class BatchSettings:
     draws: int = DEFAULT_DRAWS
     chains: int = DEFAULT_CHAINS
     tune: int = DEFAULT_TUNE
-    model_options: dict = field(default_factory=lambda: dict(DEFAULT_MODEL))
+    model_options: dict = field(default_factory=dict)
     padded_length: int = 0
     posterior_dir: str | None = None
     threads: int = 1
     recalibration: dict | None = None
+
+    def __post_init__(self) -> None:
+        # the recommended model fills in what the options leave out, once for every use
+        object.__setattr__(self, "model_options", {**DEFAULT_MODEL, **self.model_options})
 
     def to_record(self) -> dict:
         """The settings that decide the results, JSON-ready (to check a resumed run)."""
@@ -99,7 +103,7 @@ class BatchSettings:
             "priors": None if self.priors is None else asdict(self.priors),
             "draws": self.draws, "chains": self.chains,
             "tune": self.tune if self.engine == "nuts" else None,
-            "model_options": dict(sorted({**DEFAULT_MODEL, **self.model_options}.items())),
+            "model_options": dict(sorted(self.model_options.items())),
         }
         if self.recalibration is not None:  # the maps' fingerprints: same maps, same results
             record["recalibration"] = {freq: qmap.fingerprint() for freq, (qmap, _)
@@ -115,7 +119,7 @@ class BatchSettings:
         from bayesgrowth.models.spec import ModelSpec
 
         plain = ("model", "errors", "noise")
-        options = {**DEFAULT_MODEL, **self.model_options}
+        options = self.model_options
         try:  # the compiled model is the exponential family's plain model
             spec = ModelSpec(**{k: options[k] for k in plain if k in options})
         except ValueError:
@@ -165,7 +169,7 @@ def _fit(series: GrowthSeries, settings: BatchSettings, seed: int):
             return model.fit(series, resolved, seed)
     from bayesgrowth.inference.run import fit_series
 
-    options = {**DEFAULT_MODEL, **settings.model_options}
+    options = dict(settings.model_options)
     if settings.engine == "nuts":
         options.setdefault("progressbar", False)
         options.setdefault("cores", 1)
