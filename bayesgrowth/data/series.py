@@ -346,11 +346,8 @@ def read_series(
 def require_columns(frame: pd.DataFrame, source: str, columns) -> None:
     """Refuse a table without one of ``columns`` (pairs of name and the option that sets it).
 
-    When the file seems to start with a title line above the header (its
-    ``attrs["title_line"]``, set by the file readers, with the missing column in
-    the next line or that line as wide as the rows under it, and the title not one
-    of ``columns``), the message says to delete that line rather than to name
-    another column.
+    A file that seems to start with a title line above the header (``attrs["title_line"]``,
+    :func:`bayesgrowth.data.formats.title_line`) is told to delete that line instead.
     """
     from bayesgrowth.data.formats import title_message
 
