@@ -132,7 +132,10 @@ def prior_lines(prior) -> list[str]:
         lines.append(f"  reading: the priors allow the observed values; a wide band "
                      f"in {last['period']} is expected (the data narrow it), but a band "
                      "reaching values you find absurd calls for a narrower prior")
-    return lines
+    from bayesgrowth.forecast.means import mean_caution
+
+    means = mean_caution(tab, prior.levels)  # the csv's mean column, empty where too large
+    return lines + ([f"caution: {means}"] if means else [])
 
 
 def run_priors(args) -> int:

@@ -12,6 +12,8 @@ from collections.abc import Sequence
 import numpy as np
 import pandas as pd
 
+from bayesgrowth.forecast.means import mean_of_draws
+
 __all__ = ["band_columns", "band_probabilities", "check_horizon", "draws_table",
            "interval_summary", "prob_at_least"]
 
@@ -73,7 +75,7 @@ def draws_table(periods: Sequence[str], draws: np.ndarray, curve_draws: np.ndarr
     return pd.DataFrame({
         "period": list(periods),
         "step": np.arange(1, len(periods) + 1),
-        "mean": draws.mean(axis=0),
+        "mean": mean_of_draws(draws),
         "median": np.median(draws, axis=0),
         **band_columns(draws, levels),
         "curve_median": np.median(curve_draws, axis=0),

@@ -17,6 +17,7 @@ from bayesgrowth.forecast.bands import (
     interval_summary,
     prob_at_least,
 )
+from bayesgrowth.forecast.means import finite_means
 from bayesgrowth.forecast.summaries import forecast_html, forecast_summary, forecast_text
 from bayesgrowth.inference.fit import Fit
 from bayesgrowth.inference.mixture import mixture_cdf, mixture_mean_exp, mixture_quantiles
@@ -151,7 +152,7 @@ class Forecast:
             e = self.exact
             value = self._mixture_bands("value_sd")
             curve = self._mixture_bands("curve_sd", prefix="curve_")
-            frame["mean"] = mixture_mean_exp(e["weight"], e["mean"], e["value_sd"])
+            frame["mean"] = finite_means(mixture_mean_exp(e["weight"], e["mean"], e["value_sd"]))
             frame["median"] = value.pop("median")
             frame.update(value)
             frame.update(curve)

@@ -20,6 +20,7 @@ import pandas as pd
 from bayesgrowth.config import DEFAULT_LEVELS, DEFAULT_MODEL, PREDICTIVE_DRAWS, check_levels
 from bayesgrowth.data.series import GrowthSeries
 from bayesgrowth.forecast.bands import band_columns
+from bayesgrowth.forecast.means import mean_of_draws
 from bayesgrowth.forecast.prior_draws import sample_prior
 from bayesgrowth.models import exponential, general
 from bayesgrowth.models.spec import ModelSpec, resolve_seasonal, season_index
@@ -84,8 +85,7 @@ class PriorPredictive:
         ``history`` or ``forecast`` and ``observed`` the value where there is one.
         """
         observed = pd.Series(self.series.values, index=self.series.t).reindex(self.t)
-        with np.errstate(over="ignore"):
-            mean = self.draws.mean(axis=0)
+        mean = mean_of_draws(self.draws)
         return pd.DataFrame({
             "period": self.periods,
             "t": self.t,

@@ -28,6 +28,7 @@ import pandas as pd
 
 from bayesgrowth.forecast.bands import band_probabilities
 from bayesgrowth.forecast.forecast import Forecast
+from bayesgrowth.forecast.means import mean_of_draws
 from bayesgrowth.forecast.recalibration_map import QuantileMap
 from bayesgrowth.inference.mixture import mixture_quantiles
 
@@ -117,7 +118,7 @@ class RecalibratedForecast(Forecast):
         for level in self.levels:
             probs += band_probabilities(level)
         q = base_quantiles(self.base, self._probs(probs))
-        frame["mean"] = self.draws.mean(axis=0)
+        frame["mean"] = mean_of_draws(self.draws)
         frame["median"] = q[0]
         for i, level in enumerate(self.levels):
             frame[f"lower_{level}"] = q[1 + 2 * i]

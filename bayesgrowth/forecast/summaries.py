@@ -8,6 +8,7 @@ import numpy as np
 
 from bayesgrowth.display import fmt_interval, fmt_number, html_summary, text_summary
 from bayesgrowth.forecast.bands import interval_summary
+from bayesgrowth.forecast.means import mean_caution
 from bayesgrowth.inference.fit import Fit
 from bayesgrowth.seeds import stream
 
@@ -87,7 +88,8 @@ def forecast_summary(fc, target: float | None = None, target_probability: float 
     if target is not None:
         out.update(_target(fc, target, target_probability))
     out.update(_provenance(fit))
-    out["cautions"] = [c for c in (model_caution(fit), fc.caution, CAUTION) if c]
+    means = mean_caution(fc.table, fc.levels)
+    out["cautions"] = [c for c in (model_caution(fit), fc.caution, means, CAUTION) if c]
     return out
 
 
@@ -113,11 +115,17 @@ def _parameters(fc) -> dict:
 
 
 def _final_period(fc) -> dict:
-    """The last forecast period: median, mean and bands (the exact mixture's, if any)."""
-    out = {"period": fc.periods[-1], **interval_summary(fc.draws[:, -1], fc.levels)}
+    """The last forecast period: median, mean and bands (the exact mixture's, if any).
+
+    A mean that is not finite is ``None``: :func:`~bayesgrowth.forecast.means.mean_caution`
+    says why among the cautions.
+    """
+    last = fc.table.iloc[-1]
+    with np.errstate(over="ignore", invalid="ignore"):
+        out = {"period": fc.periods[-1], **interval_summary(fc.draws[:, -1], fc.levels)}
     if fc.exact is not None:  # the exact mixture's numbers, as in the table
-        last = fc.table.iloc[-1]
         out.update({k: float(last[k]) for k in out if k != "period" and k in last.index})
+    out["mean"] = _finite(float(last["mean"])) if "mean" in last.index else None
     return out
 
 
