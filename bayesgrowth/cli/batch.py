@@ -22,6 +22,7 @@ from bayesgrowth.cli.common import (
     add_model_options,
     checked_model_options,
     model_options_from_args,
+    note,
     priors_from_args,
     say,
 )
@@ -97,8 +98,8 @@ def run(args) -> int:
         args.file, series_col=args.series_col, period_col=args.period_col,
         value_col=args.value_col, decimal=args.decimal, fiscal_start=args.fiscal_start,
     )
-    for note in notes:
-        say(args, f"note: {note}")
+    for text in notes:
+        note(text)
     if panel:  # the longest series, in every worker at once
         from bayesgrowth.batch.executors import available_cores
         from bayesgrowth.cli.limits import check_run_size

@@ -20,6 +20,7 @@ from bayesgrowth.cli.prior_options import (
     add_curve_priors,
     add_season_drift_prior,
 )
+from bayesgrowth.cli.progress import add_quiet_option, note, say  # noqa: F401 - also from here
 from bayesgrowth.config import DEFAULT_ENGINE, DEFAULT_LEVELS, DEFAULT_MODEL, check_levels
 from bayesgrowth.data.series import GrowthSeries, read_series
 
@@ -133,7 +134,7 @@ def add_model_options(p: argparse.ArgumentParser, *, horizon_required: bool = Tr
     add_common_priors(g)
     add_curve_priors(g)
     add_season_drift_prior(g)
-    p.add_argument("--quiet", action="store_true", help="no progress output")
+    add_quiet_option(p)
     add_accept_option(p)
 
 
@@ -239,12 +240,6 @@ def _add_model_choice(p: argparse.ArgumentParser) -> None:
     )
 
 
-def say(args, message: str) -> None:
-    """Progress message on stderr, unless ``--quiet``."""
-    if not getattr(args, "quiet", False):
-        print(message, file=sys.stderr, flush=True)
-
-
 def read_input(args) -> GrowthSeries:
     """Read the input series; data warnings (gaps) become notes on stderr."""
     with warnings.catch_warnings(record=True) as caught:
@@ -253,7 +248,7 @@ def read_input(args) -> GrowthSeries:
                              decimal=getattr(args, "decimal", "auto"),
                              fiscal_start=getattr(args, "fiscal_start", None))
     for w in caught:
-        say(args, f"note: {w.message}")
+        note(str(w.message))
     from bayesgrowth.cli.limits import check_run_size
 
     check_run_size(args, series.n)  # before any work: the memory the options ask for

@@ -12,7 +12,7 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
-from bayesgrowth.cli.common import UsageError, _positive_int, say, whole_range
+from bayesgrowth.cli.common import UsageError, _positive_int, note, say, whole_range
 from bayesgrowth.config import PREDICTIVE_DRAWS
 from bayesgrowth.data.series import MIN_OBSERVATIONS
 
@@ -247,8 +247,8 @@ def panel_recalibration(args, panel: dict, settings, executor) -> dict:
             else:
                 rows.setdefault(panel[name].axis.frequency, []).append(got)
     if failed:
-        say(args, f"note: {len(failed)} series gave no backtest (first {failed[0]!r}); "
-            "the others' maps apply to them")
+        note(f"{len(failed)} series gave no backtest (first {failed[0]!r}); the others' maps "
+             "apply to them")
     maps = {}
     for freq, frames in rows.items():
         pooled = pd.concat(frames, ignore_index=True)

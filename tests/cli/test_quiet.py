@@ -1,0 +1,38 @@
+"""``--quiet`` drops progress messages, never a note about the user's data."""
+
+from __future__ import annotations
+
+import pytest
+
+from bayesgrowth.cli import main
+from bayesgrowth.cli.progress import QUIET_HELP
+
+GAP = "period,value\n2024Q1,100\n2024Q2,110\n2024Q4,130\n2025Q1,140\n2025Q2,150\n2025Q3,161\n"
+
+
+@pytest.mark.parametrize("quiet", [[], ["--quiet"]])
+def test_a_missing_period_is_noted_with_or_without_quiet(tmp_path, capsys, quiet):
+    path = tmp_path / "gap.csv"
+    path.write_text(GAP)
+    assert main(["forecast", str(path), "-H", "2", "--out", str(tmp_path / "o"), *quiet]) == 0
+    err = capsys.readouterr().err
+    assert "note: gap.csv: 1 missing period(s) (2024Q3)" in err
+    assert ("fitting gap" in err) is not bool(quiet)  # the progress message alone goes
+
+
+def test_batch_notes_a_missing_period_with_quiet(tmp_path, capsys):
+    rows = [f"{name},{line}" for name in ("A", "B") for line in GAP.splitlines()[1:]
+            if not (name == "B" and line.startswith("2024Q4"))]
+    path = tmp_path / "panel.csv"
+    path.write_text("series,period,value\n" + "\n".join(rows) + "\n")
+    assert main(["batch", str(path), "-H", "1", "--out", str(tmp_path / "o"), "--quiet",
+                 "--workers", "1"]) == 0
+    err = capsys.readouterr().err
+    assert "note:" in err and "2024Q3" in err and "2024Q4" in err
+
+
+@pytest.mark.parametrize("command", ["forecast", "batch", "pool", "backtest", "report"])
+def test_quiet_help_says_notes_and_cautions_stay(command, capsys):
+    with pytest.raises(SystemExit):
+        main([command, "--help"])
+    assert " ".join(capsys.readouterr().out.split()).count(" ".join(QUIET_HELP.split())) == 1
