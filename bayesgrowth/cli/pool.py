@@ -17,7 +17,9 @@ from bayesgrowth.cli.common import (
     _levels,
     _positive_int,
     add_input,
+    add_quiet_option,
     add_seed_option,
+    note,
     priors_from_args,
     say,
 )
@@ -75,7 +77,7 @@ def add_parser(sub) -> None:
                    "PCT%% [50]")
     g.add_argument("--noise", type=float, default=30.0, metavar="PCT",
                    help="typical deviation from each curve in percent [30]")
-    p.add_argument("--quiet", action="store_true", help="no progress output")
+    add_quiet_option(p)
     add_accept_option(p)
     p.set_defaults(run=run, initial_value=None, reference_period=None)
 
@@ -87,8 +89,8 @@ def _read(args):
         args.file, series_col=args.series_col, period_col=args.period_col,
         value_col=args.value_col, decimal=args.decimal, fiscal_start=args.fiscal_start,
     )
-    for note in notes:
-        say(args, f"note: {note}")
+    for text in notes:
+        note(text)
     if bad:
         name, why = bad[0]
         raise UsageError(f"{args.file}: series {name!r} cannot be pooled ({why}); fix or "
@@ -136,6 +138,22 @@ def _lines(fit, pf, axis) -> list[str]:
     return lines
 
 
+def _cautions(pf) -> list[str]:
+    """Series that end earlier than the others, and means too large to be useful (once)."""
+    from bayesgrowth.forecast.means import mean_caution
+
+    out = [pf.ends_note] if pf.ends_note else []
+    tables = ([("group total", pf.total)] if pf.total is not None else []) + [
+        (repr(name), fc.table) for name, fc in pf.forecasts.items()]
+    levels = next(iter(pf.forecasts.values())).levels
+    means = [(where, text) for where, table in tables
+             if (text := mean_caution(table, levels)) is not None]
+    if means:
+        more = f" (and {len(means) - 1} more)" if len(means) > 1 else ""
+        out.append(f"{means[0][0]}{more}: {means[0][1]}")
+    return out
+
+
 def run(args) -> int:
     """Run ``pool``; returns the exit code."""
     import warnings
@@ -171,6 +189,8 @@ def run(args) -> int:
         print(line)
     if not fit.diagnostics.ok:
         print("  sampling checks: FAILED - " + "; ".join(fit.diagnostics.problems))
+    for caution in _cautions(pf):
+        print(f"caution: {caution}")
     print(f"caution: {CAUTION}")
     written = [n for n in NAMES if n != "group_total.csv" or pf.total is not None]
     print(f"wrote {', '.join(written)} to {args.out}")

@@ -4,11 +4,19 @@ Each series' forecast is the single-series forecast of its marginal posterior
 (:meth:`~bayesgrowth.inference.pooled.PooledFit.fit_for`), with its own seed
 (:func:`bayesgrowth.seeds.series_seed`). The group total sums the series'
 predictive draws draw by draw: bands of a sum are not sums of bands.
+
+The total covers the ``horizon`` periods after the latest last observation of any
+series, and adds the series period by period on the one calendar. A series whose
+history ends earlier is forecast further, through the total's last period, so that
+every series has a forecast for every period of the total (and its table shows those
+periods); :attr:`PooledForecast.ends_note` says which series end earlier and when. Series
+on different calendars (quarters and months, or quarters taken in different months) get
+no total, and :attr:`PooledForecast.note` says why.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 
 import numpy as np
 import pandas as pd
@@ -17,6 +25,7 @@ from bayesgrowth.config import DEFAULT_LEVELS, check_levels
 from bayesgrowth.display import fmt_interval, fmt_number, html_summary, text_summary
 from bayesgrowth.forecast.bands import band_columns, check_horizon
 from bayesgrowth.forecast.forecast import forecast
+from bayesgrowth.forecast.means import mean_of_draws
 from bayesgrowth.forecast.summaries import forecast_headline
 from bayesgrowth.inference.pooled import PooledFit
 from bayesgrowth.seeds import series_seed
@@ -31,7 +40,8 @@ class PooledForecast:
     Attributes
     ----------
     forecasts : dict of str to Forecast
-        Each series' forecast (its next ``horizon`` periods), as for one series.
+        Each series' forecast, as for one series: its next ``horizon`` periods, and as many
+        more as its history ends before the latest series' (through the total's last period).
     total : pandas.DataFrame or None
         The group total for the ``horizon`` periods after the latest last
         observation: ``period``, ``step``, ``mean``, ``median``, ``lower_L``,
@@ -43,6 +53,9 @@ class PooledForecast:
         ``total_draws`` is their sum, draw by draw.
     note : str or None
         Why there is no total, if there is none.
+    ends_note : str or None
+        Which series end before the latest one and how far they are forecast so that
+        the total covers the same periods for every series; ``None`` when all end together.
     """
 
     forecasts: dict
@@ -50,10 +63,12 @@ class PooledForecast:
     total_draws: np.ndarray | None
     aligned: dict | None = None
     note: str | None = None
+    ends_note: str | None = None
 
     def _summary(self) -> tuple[str, str]:
         first = next(iter(self.forecasts.values()))
-        title = f"Pooled forecast of {len(self.forecasts)} series, {first.horizon} periods"
+        horizon = first.horizon if self.total is None else len(self.total)
+        title = f"Pooled forecast of {len(self.forecasts)} series, {horizon} periods"
         if self.total is None:
             return title, f"no group total: {self.note}"
         last, level = self.total.iloc[-1], max(first.levels)
@@ -77,7 +92,7 @@ class PooledForecast:
         """Every series' forecast table, one below the other, with a ``series`` column."""
         parts = []
         for name, fc in self.forecasts.items():
-            t = fc.table
+            t = fc.table.copy()  # the forecast's own table stays as it is
             t.insert(0, "series", name)
             parts.append(t)
         return pd.concat(parts, ignore_index=True)
@@ -88,7 +103,7 @@ class PooledForecast:
 
 
 def _centre_and_bands(draws: np.ndarray, levels: tuple[int, ...]) -> dict:
-    return {"mean": draws.mean(axis=0), "median": np.median(draws, axis=0),
+    return {"mean": mean_of_draws(draws), "median": np.median(draws, axis=0),
             **band_columns(draws, levels)}
 
 
@@ -116,30 +131,67 @@ def forecast_pooled(
     """
     horizon, levels = check_horizon(horizon), check_levels(levels)
     seed = fit.seed if seed is None else int(seed)
-    axes = {(s.axis.style, s.axis.step) for s in fit.series.values()}
-    ordinal = {n: s.axis.origin + s.t_last * s.axis.step for n, s in fit.series.items()}
-    shared = len(axes) == 1
-    step = next(iter(axes))[1]
-    latest = max(ordinal.values())
+    behind, note = periods_behind(fit.series)
     forecasts, aligned = {}, {}
     for name in fit.series:
-        behind = (latest - ordinal[name]) // step if shared else 0
-        full = forecast(fit.fit_for(name), horizon + behind, levels=levels,
-                        seed=series_seed(seed, name))
-        forecasts[name] = replace(
-            full, horizon=horizon, periods=full.periods[:horizon], t=full.t[:horizon],
-            draws=full.draws[:, :horizon], curve_draws=full.curve_draws[:, :horizon],
-        )
-        if shared:
-            aligned[name] = full.draws[:, behind:behind + horizon]
-            periods = full.periods[behind:behind + horizon]
-    if not shared:
-        note = ("the series are on different calendars "
-                f"({', '.join(sorted(f'{a}/{b}' for a, b in axes))}); no group total")
+        extra = 0 if behind is None else behind[name]
+        forecasts[name] = forecast(fit.fit_for(name), horizon + extra, levels=levels,
+                                   seed=series_seed(seed, name))
+        if behind is not None:
+            aligned[name] = forecasts[name].draws[:, extra:]
+            periods = forecasts[name].periods[extra:]
+    if behind is None:
         return PooledForecast(forecasts, None, None, None, note)
     total_draws = np.sum(list(aligned.values()), axis=0)
     total = pd.DataFrame({"period": periods, "step": np.arange(1, horizon + 1),
                           **_centre_and_bands(total_draws, levels)})
-    return PooledForecast(forecasts, total, total_draws, aligned)
+    return PooledForecast(forecasts, total, total_draws, aligned,
+                          ends_note=_ends_note(fit.series, behind, periods))
+
+
+def periods_behind(series: dict) -> tuple[dict | None, str | None]:
+    """How many periods each series' history ends before the latest one, on a shared calendar.
+
+    Parameters
+    ----------
+    series : dict of str to GrowthSeries
+
+    Returns
+    -------
+    behind : dict of str to int, or None
+        ``None`` when the series do not share one calendar: different label styles or
+        steps, or periods of one step that fall in different months (quarters taken in
+        January, April, ... and in February, May, ...), which cannot be added up.
+    note : str or None
+        Why there is no shared calendar, if there is none.
+    """
+    axes = {(s.axis.style, s.axis.step) for s in series.values()}
+    if len(axes) > 1:
+        return None, ("the series are on different calendars "
+                      f"({', '.join(sorted(f'{a}/{b}' for a, b in axes))}); no group total")
+    step = next(iter(axes))[1]
+    ordinal = {n: s.axis.origin + s.t_last * s.axis.step for n, s in series.items()}
+    latest = max(ordinal, key=ordinal.get)
+    off = [n for n in series if (ordinal[latest] - ordinal[n]) % step]
+    if off:
+        return None, (f"the periods of {off[0]!r} (last {series[off[0]].labels[-1]}) and "
+                      f"{latest!r} (last {series[latest].labels[-1]}) fall in different "
+                      "months, so no period is shared to add them up; no group total")
+    return {n: (ordinal[latest] - o) // step for n, o in ordinal.items()}, None
+
+
+def _ends_note(series: dict, behind: dict, periods: list[str]) -> str | None:
+    """Which series end before the latest one, and how far they are forecast for the total."""
+    early = [n for n in series if behind[n] > 0]
+    if not early:
+        return None
+    latest = next(n for n in series if behind[n] == 0)
+    first = early[0]
+    more = f" (and {len(early) - 1} more series)" if len(early) > 1 else ""
+    return (f"{first!r} ends in {series[first].labels[-1]}, {behind[first]} period(s) before "
+            f"the latest series ({series[latest].labels[-1]}){more}: the group total covers "
+            f"{periods[0]} to {periods[-1]}, so such a series is forecast from its own last "
+            f"period through {periods[-1]}, and its forecast is longer and wider than the "
+            "others'")
 
 

@@ -45,3 +45,30 @@ def test_pool_forecasts_every_series_and_their_total(tmp_path, panel_csv, capsys
     assert (same["median"] < last["median"]).all()
     printed = capsys.readouterr().out
     assert "group growth per quarter" in printed and "not investment advice" in printed
+
+
+def test_pool_total_covers_periods_every_series_has_a_forecast_for(tmp_path, monkeypatch,
+                                                                   capsys):
+    # The fit is written down (tests/written_pooled.py), so no sampling: what is checked is
+    # which periods the command adds up and writes, with one series ending sooner.
+    from written_pooled import quarters, written_pooled_fit
+
+    import bayesgrowth.inference.pooled as pooled
+
+    rows = [("late", p, 100.0 * 1.05**i) for i, p in enumerate(quarters(2022, 16))]
+    rows += [("early", p, 400.0 * 1.05**i) for i, p in enumerate(quarters(2022, 13))]
+    path = tmp_path / "panel.csv"
+    pd.DataFrame(rows, columns=["series", "period", "value"]).to_csv(path, index=False)
+    monkeypatch.setattr(pooled, "fit_pooled", lambda panel, priors, **_: written_pooled_fit(
+        dict(panel)))
+    out = tmp_path / "p"
+    assert main(["pool", str(path), "-H", "3", "--out", str(out), "--quiet"]) == 0
+    total = pd.read_csv(out / "group_total.csv")
+    assert total["period"].tolist() == ["2026Q1", "2026Q2", "2026Q3"]
+    fc = pd.read_csv(out / "pooled_forecast.csv")
+    for name in ("late", "early"):
+        assert set(total["period"]) <= set(fc.loc[fc["series"] == name, "period"]), name
+    assert fc.loc[fc["series"] == "early", "period"].iloc[0] == "2025Q2"
+    printed = capsys.readouterr().out
+    assert "caution: 'early' ends in 2025Q1, 3 period(s) before the latest series (2025Q4)" \
+        in printed  # a caution about the result: --quiet keeps it
