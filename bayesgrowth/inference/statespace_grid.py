@@ -69,11 +69,23 @@ class Branch:
     def __post_init__(self) -> None:
         self.log = [True] * len(self.dims)
 
-    def nodes(self, k: int, box=None) -> tuple[np.ndarray, np.ndarray]:
-        """Cell midpoints ``(G, D)`` of a ``k``-per-dimension grid, and the cell widths ``(G, D)``.
+    def nodes(self, k: int, box=None) -> tuple[dict, np.ndarray, dict]:
+        """The nodes of a ``k``-per-dimension grid: parameters, log cell volumes, cell widths.
 
-        Even in the box, or even in each dimension's mapped coordinate once :func:`remap`
-        has set :attr:`maps` (then only within :attr:`box`).
+        Each node is the midpoint of its cell: even in the box, or even in each
+        dimension's mapped coordinate once :func:`remap` has set :attr:`maps` (then only
+        within :attr:`box`). Everything separable (values, log priors, widths) is worked
+        out per dimension and then spread over the ``G = k^D`` nodes, the last dimension
+        running fastest.
+
+        Returns
+        -------
+        params : dict
+            Natural-scale parameters ``(G,)`` and ``log_prior``, their prior log density.
+        log_volume : numpy.ndarray, shape (G,)
+            The log of each cell's volume in grid coordinates.
+        cells : dict
+            See :meth:`cells`.
         """
         box = box or [d.span(lg) for d, lg in zip(self.dims, self.log, strict=True)]
         if self.maps is None:
@@ -82,37 +94,32 @@ class Branch:
             v = np.linspace(0.0, 1.0, k + 1)
             edges = [np.interp(v, *m) for m in self.maps]
         self.axes = [(0.5 * (e[1:] + e[:-1]), np.diff(e)) for e in edges]
-        mesh = np.meshgrid(*[a for a, _ in self.axes], indexing="ij")
-        widths = np.meshgrid(*[w for _, w in self.axes], indexing="ij")
-        return (np.stack([m.ravel() for m in mesh], axis=1),
-                np.stack([w.ravel() for w in widths], axis=1))
-
-    def params(self, u: np.ndarray) -> dict:
-        """Natural-scale parameters of the nodes (and their log prior)."""
-        out = {"sigma_level": np.zeros(u.shape[0])}
-        log_prior = np.zeros(u.shape[0])
-        for i, (d, lg) in enumerate(zip(self.dims, self.log, strict=True)):
-            out[d.name] = d.value(u[:, i], lg)
-            log_prior += d.log_prior(u[:, i], lg)
-        out["rho"] = rho_of(out["half_life"]) if self.fades else np.ones(u.shape[0])
+        shape = tuple(c.size for c, _ in self.axes)
+        pairs = list(zip(self.dims, self.log, self.axes, strict=True))
+        out = {"sigma_level": np.zeros(math.prod(shape))}
+        for i, (d, lg, (centre, _)) in enumerate(pairs):
+            out[d.name] = _spread(d.value(centre, lg), i, shape)
+        out["rho"] = rho_of(out["half_life"]) if self.fades else np.ones(math.prod(shape))
         if not self.fades:
-            out["half_life"] = np.full(u.shape[0], np.inf)
-        out["log_prior"] = log_prior
-        return out
+            out["half_life"] = np.full(math.prod(shape), np.inf)
+        out["log_prior"] = _outer_sum([d.log_prior(c, lg) for d, lg, (c, _) in pairs], shape)
+        log_volume = _outer_sum([np.log(w) for _, w in self.axes], shape)
+        return out, log_volume, self.cells(shape)
 
-    def cells(self, widths: np.ndarray) -> dict:
+    def cells(self, shape: tuple[int, ...]) -> dict:
         """Each node's cell width per parameter, in its grid coordinate (0 off the grid).
 
         ``cell_<name>`` is the width, ``cell_log_<name>`` whether the coordinate is the
         log of the parameter; the same keys for every branch, so nodes concatenate.
+        ``shape`` is the grid's points per dimension (of the last :meth:`nodes`).
         """
-        g = widths.shape[0]
+        g = math.prod(shape)
         out = {}
         for name in CELL_NAMES:
             out[f"cell_{name}"] = np.zeros(g)
             out[f"cell_log_{name}"] = np.zeros(g, dtype=bool)
-        for i, (d, lg) in enumerate(zip(self.dims, self.log, strict=True)):
-            out[f"cell_{d.name}"][:] = widths[:, i]
+        for i, (d, lg, (_, width)) in enumerate(zip(self.dims, self.log, self.axes, strict=True)):
+            out[f"cell_{d.name}"][:] = _spread(width, i, shape)
             out[f"cell_log_{d.name}"][:] = lg
         return out
 
@@ -126,10 +133,26 @@ class Branch:
                 self.log[i] = False
 
 
+def _spread(values: np.ndarray, axis: int, shape: tuple[int, ...]) -> np.ndarray:
+    """One dimension's values ``(shape[axis],)`` at every node of the grid, ``(prod(shape),)``."""
+    at = [1] * len(shape)
+    at[axis] = shape[axis]
+    return np.broadcast_to(values.reshape(at), shape).ravel()
+
+
+def _outer_sum(terms: list[np.ndarray], shape: tuple[int, ...]) -> np.ndarray:
+    """Per node, the sum of one term per dimension (added in the dimensions' order)."""
+    total = np.zeros(1)
+    for axis, term in enumerate(terms):
+        at = [1] * len(shape)
+        at[axis] = shape[axis]
+        total = total + term.reshape(at)
+    return np.broadcast_to(total, shape).ravel()
+
+
 def locate(branch: Branch, ctx: Context, k: int) -> list[tuple[float, float]]:
     """The box of ``u`` holding the posterior mass, from a coarse grid over the prior range."""
-    u, _ = branch.nodes(k)
-    p = branch.params(u)
+    p, _, _ = branch.nodes(k)
     lp = evaluate(ctx, p)["loglik"] + p["log_prior"]
     lp = lp.reshape((k,) * len(branch.dims))
     best = lp.max()
@@ -199,12 +222,10 @@ def on_grid(ctx, branches, k_of) -> tuple[dict, np.ndarray, dict, float, list]:
     """Evaluate every branch on its grid; node weights, branch weights, log evidence."""
     parts, logw, log_ev, within = [], [], {}, []
     for b in branches:
-        u, widths = b.nodes(k_of(b), b.box)
-        p = b.params(u)
+        p, log_volume, cells = b.nodes(k_of(b), b.box)
         ev = evaluate(ctx, p)
-        lw = ev["loglik"] + p["log_prior"] + np.log(widths).sum(axis=1) + math.log(b.prior_mass)
-        parts.append({**{k: v for k, v in p.items() if k != "log_prior"}, **ev,
-                      **b.cells(widths)})
+        lw = ev["loglik"] + p["log_prior"] + log_volume + math.log(b.prior_mass)
+        parts.append({**{k: v for k, v in p.items() if k != "log_prior"}, **ev, **cells})
         logw.append(lw)
         top = lw.max()
         within.append(np.exp(lw - top))

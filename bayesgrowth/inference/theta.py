@@ -21,6 +21,7 @@ the same question.
 
 from __future__ import annotations
 
+import functools
 import math
 from dataclasses import dataclass
 
@@ -120,6 +121,7 @@ def _gamma2_cdf(u: float) -> float:
     return total
 
 
+@functools.lru_cache(maxsize=64)  # a grid asks for the same two tail quantiles many times
 def _gamma2_quantile(q: float) -> float:
     """``u`` with ``P(U <= u) = q`` for ``U ~ Gamma(2, 1)``, by Newton steps.
 
