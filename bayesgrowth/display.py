@@ -16,7 +16,7 @@ from collections.abc import Sequence
 from decimal import ROUND_CEILING, ROUND_FLOOR, ROUND_HALF_UP, Decimal
 
 __all__ = ["MISSING", "SIGNIFICANT", "fmt_interval", "fmt_number", "fmt_percent",
-           "fmt_probability", "html_summary", "text_summary"]
+           "fmt_probability", "fmt_weight", "html_summary", "observations", "text_summary"]
 
 #: Most table rows an HTML summary shows; longer tables show their first and last rows.
 HTML_ROWS = 12
@@ -124,6 +124,38 @@ def fmt_probability(p) -> str:
     if p < 0.005:
         return "< 1%"
     return f"{min(99, max(1, math.floor(100 * p + 0.5)))}%"
+
+
+def fmt_weight(w) -> str:
+    """A weight between 0 and 1 (a model's stacking weight) in two decimals, never a rounded 0 or 1.
+
+    An optimiser leaves a weight it drives to zero at 1e-17 or so: that prints as "< 0.01",
+    as a weight just short of one prints "> 0.99"; exactly 0 and 1 print as "0.00" and "1.00".
+
+    Examples
+    --------
+    >>> fmt_weight(1.3e-17), fmt_weight(0.4567), fmt_weight(0.9999), fmt_weight(1.0)
+    ('< 0.01', '0.46', '> 0.99', '1.00')
+    """
+    if _missing(w):
+        return MISSING
+    w = float(w)
+    if w <= 0 or w >= 1:
+        return "0.00" if w <= 0 else "1.00"
+    return "< 0.01" if w < 0.005 else "> 0.99" if w >= 0.995 else f"{w:.2f}"
+
+
+def observations(n: int, frequency: str) -> str:
+    """``n`` observations with their frequency: "20 quarterly observations", "20 observations".
+
+    Plain numbered periods have no calendar frequency ("per period"), so none is named.
+
+    Examples
+    --------
+    >>> observations(20, "quarterly"), observations(20, "per period")
+    ('20 quarterly observations', '20 observations')
+    """
+    return f"{n} {frequency} observations" if frequency != "per period" else f"{n} observations"
 
 
 def fmt_percent(x, decimals: int = 1) -> str:

@@ -9,7 +9,7 @@ import pytest
 
 import bayesgrowth as bg
 from bayesgrowth.comparison import compare_to_forecast
-from bayesgrowth.display import HTML_ROWS, fmt_interval, fmt_number
+from bayesgrowth.display import HTML_ROWS, fmt_interval, fmt_number, fmt_weight
 from bayesgrowth.priors import GrowthPrior, Priors
 from bayesgrowth.select import compare_models
 
@@ -95,7 +95,8 @@ def test_model_comparison_repr_names_the_best_and_its_weight(demo):
     comp = compare_models(fits)
     text = repr(comp)
     _short(text)
-    assert f"best by PSIS-LOO: {comp.best} (stacking weight {comp.weights[comp.best]:.2f})" in text
+    weight = fmt_weight(comp.weights[comp.best])
+    assert f"best by PSIS-LOO: {comp.best} (stacking weight {weight})" in text
     assert comp._repr_html_().count("<tr>") == 3
 
 

@@ -354,5 +354,6 @@ def recalibrate_panel(forecasts: Sequence[Forecast], results: Sequence, *,
 
 def pooled_source(frequency: str, n_series: int, pit, levels) -> dict:
     """How a pooled map was learned, for the ``recalibrated`` entry of each forecast."""
-    return {"where": f"backtests of {n_series} {frequency} series pooled",
+    kind = "" if frequency == "per period" else f"{frequency} "
+    return {"where": f"backtests of {n_series} {kind}series pooled",
             "series_pooled": int(n_series), "backtest_coverage": pit_coverage(pit, levels)}

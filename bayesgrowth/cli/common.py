@@ -23,6 +23,7 @@ from bayesgrowth.cli.prior_options import (
 from bayesgrowth.cli.progress import add_quiet_option, note, say  # noqa: F401 - also from here
 from bayesgrowth.config import DEFAULT_ENGINE, DEFAULT_LEVELS, DEFAULT_MODEL, check_levels
 from bayesgrowth.data.series import GrowthSeries, read_series
+from bayesgrowth.display import observations
 
 PROG = "bayesgrowth"
 
@@ -370,7 +371,7 @@ def fit_from_args(args, series):
         options["cores"] = min(getattr(args, "cores", 1), os.cpu_count() or 1)
     say(
         args,
-        f"fitting {series.name} ({series.n} {series.axis.frequency} observations) "
+        f"fitting {series.name} ({observations(series.n, series.axis.frequency)}) "
         f"with the {args.engine} engine ({spec.label()}) ...",
     )
     with warnings.catch_warnings(record=True) as caught:

@@ -19,11 +19,14 @@ from bayesgrowth.cli.common import (
 from bayesgrowth.cli.output import add_force_option, staged_output
 from bayesgrowth.cli.text import add_unit_option, unit_from_args
 from bayesgrowth.data.export import write_csv
+from bayesgrowth.display import fmt_weight
 from bayesgrowth.report.words import band_phrases
 
 __all__ = ["add_parser", "run"]
 
 NAMES = ["model_comparison.csv", "averaged_forecast.csv", "models.png"]
+#: Columns of model_comparison.csv written to three decimals.
+WEIGHT_COLUMNS = ("weight", "weight_lower_90", "weight_upper_90")
 
 #: Printed with every comparison: what LOO weights do and do not measure.
 CURVE_CAUTION = (
@@ -165,10 +168,11 @@ def _table_lines(table) -> list[str]:
     lines = [head]
     for r in table.itertuples():
         flag = "" if r.diagnostics_ok else "  (diagnostics failed)"
-        spread = f"({r.weight_lower_90:.2f} to {r.weight_upper_90:.2f})"
+        spread = f"({fmt_weight(r.weight_lower_90)} to {fmt_weight(r.weight_upper_90)})"
         lines.append(
             f"{r.rank:<5}{r.model:<14}{r.elpd_loo:>10.1f}{r.se:>7.1f}{r.elpd_diff:>11.1f}"
-            f"{r.dse:>7.1f}{r.p_loo:>7.1f}{r.weight:>8.2f}{spread:>16}{r.max_pareto_k:>7.2f}"
+            f"{r.dse:>7.1f}{r.p_loo:>7.1f}{fmt_weight(r.weight):>8}{spread:>16}"
+            f"{r.max_pareto_k:>7.2f}"
             f"{flag}"
         )
     return lines
@@ -202,7 +206,8 @@ def run(args) -> int:
                           on_fit=progress, **spec_options, **settings)
         ma = model_average(fits, args.horizon, levels=args.levels, seed=args.seed)
         table = ma.comparison.table
-        write_csv(table, stage / "model_comparison.csv")
+        # weights to 3 decimals: an optimiser's 1e-17 for "none" is no figure to read
+        write_csv(table.round({c: 3 for c in WEIGHT_COLUMNS}), stage / "model_comparison.csv")
         write_csv(ma.averaged.table, stage / "averaged_forecast.csv")
         _save_plot(ma, stage / "models.png", level=_plot_level(args.levels),
                    unit=unit_from_args(args))

@@ -111,7 +111,7 @@ def plot_coverage(
     ax.set_ylabel("Outcomes inside the band (%)")
     title_step = "all steps" if str(step) == ALL_STEPS else f"step {step}"
     ax.set_title(f"Band coverage, {title_step} (bars: 95% binomial interval)", fontsize=10)
-    legend(ax, loc="best")
+    legend(ax)
     return ax
 
 
@@ -167,5 +167,5 @@ def plot_pit_histogram(
     ax.set_ylabel("Number of forecasts")
     title = "PIT histogram" + (f": {label}" if label else "") + f" (n={n})"
     ax.set_title(title, fontsize=10)
-    legend(ax, loc="upper center", frameon=False)
+    legend(ax, ncol=3, columnspacing=1.2)
     return ax

@@ -181,5 +181,5 @@ def plot_fan(forecast, ax: Axes | None = None, *, show_curve: bool = False,
     ax.set_xlabel(f"Period ({series.axis.frequency})" if series.axis.frequency != "per period"
                   else "Period")
     ax.set_title(title or _title(forecast), fontsize=11)
-    legend_in_reading_order(ax)
+    legend_in_reading_order(ax, ncol=3)
     return ax

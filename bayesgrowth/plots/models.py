@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from bayesgrowth.display import fmt_weight
 from bayesgrowth.plots.plain import literal
 from bayesgrowth.plots.style import (
     BAND_SHADES,
@@ -94,11 +95,12 @@ def plot_model_bands(forecasts, averaged=None, *, weights=None, level: int = 80,
         color = MODEL_COLORS[i % len(MODEL_COLORS)]
         dash = MODEL_DASHES[i % len(MODEL_DASHES)]
         tab = fc.table
-        share = "" if weights is None else f" (weight {weights.get(name, 0.0):.2f})"
+        share = "" if weights is None else f" (weight {fmt_weight(weights.get(name, 0.0))})"
         if comparison is not None and name in set(comparison.table["model"]):
             row = comparison.table.set_index("model").loc[name]
-            share = (f" (weight {row['weight']:.2f}, 90% interval "
-                     f"{row['weight_lower_90']:.2f} to {row['weight_upper_90']:.2f})")
+            share = (f" (weight {fmt_weight(row['weight'])}, 90% interval "
+                     f"{fmt_weight(row['weight_lower_90'])} to "
+                     f"{fmt_weight(row['weight_upper_90'])})")
         ax.plot(x, joined("median", tab), color=color, lw=1.6, ls=dash, zorder=5,
                 label=f"{name}{share}: median")
         for col in (f"lower_{level}", f"upper_{level}"):
@@ -206,7 +208,7 @@ def plot_sensitivity(result, axes=None, *, title: str | None = None):
     axes[0].plot([], [], "o", mfc="white", mec=HISTORY, label="other settings")
     if not tab["diagnostics_ok"].all():
         axes[0].plot([], [], "X", mfc="white", mec=HISTORY, label="sampling diagnostics failed")
-    legend(axes[0], loc="best", fontsize=7.5)
+    legend(axes[0], ncol=1, fontsize=7.5)
     fig.suptitle(title or f"{literal(result.series_name)}: prior sensitivity of the forecast for "
                  f"{result.period}\n{result.model}", fontsize=11)
     return axes

@@ -73,7 +73,7 @@ def draw_scenario(ax: Axes, scenario_fc, description: str, *, level: int | None 
                   key=lambda hl: _reading_rank(*hl))
     scen = [p for p in pairs if p[1].startswith("Scenario")]
     ordered = base + scen
-    legend(ax, [h for h, _ in ordered], [lab for _, lab in ordered])
+    legend(ax, [h for h, _ in ordered], [lab for _, lab in ordered], ncol=3)
     return ax
 
 

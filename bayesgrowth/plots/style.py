@@ -23,6 +23,7 @@ from collections.abc import Sequence
 import numpy as np
 from matplotlib.axes import Axes
 from matplotlib.ticker import Formatter, FuncFormatter, NullFormatter
+from matplotlib.transforms import ScaledTranslation, Transform
 
 from bayesgrowth.display import fmt_number
 from bayesgrowth.plots.plain import literal
@@ -253,28 +254,45 @@ def draw_target(ax: Axes, value: float, label: str):
                       zorder=4, label=label)
 
 
-def legend(ax: Axes, handles=None, labels=None, *, where: str = "inside", **kwargs):
-    """The package's legend: small text, inside on a white panel, to the right, or below.
+def _under_the_axis(ax: Axes) -> Transform:
+    """Axes coordinates moved down past the x axis' tick labels and label, whatever their size.
+
+    The drop is measured in inches on the text as drawn (rotated period labels reach further
+    down), so it holds when a constrained layout later resizes the axes or the figure is
+    saved at another resolution.
+    """
+    fig = ax.figure
+    box = ax.xaxis.get_tightbbox()  # tick labels and axis label, in display pixels
+    drop = 0.0 if box is None else max(0.0, ax.get_window_extent().y0 - box.y0) / fig.dpi
+    return ax.transAxes + ScaledTranslation(0.0, -(drop + 0.08), fig.dpi_scale_trans)
+
+
+def legend(ax: Axes, handles=None, labels=None, *, where: str = "below", **kwargs):
+    """The package's legend: small text, below the axes, to the right, or inside.
 
     Parameters
     ----------
     ax : Axes
     handles, labels : list, optional
         Default: the labelled artists of ``ax``.
-    where : {"inside", "right", "below"}
-        Inside (upper left), the panel hides the lines behind it, so a target
-        line or a band never runs through the legend's text; "below" spreads
-        the entries over two columns under the axes.
+    where : {"below", "right", "inside"}
+        Outside the plotting area, the legend covers no data, band or target
+        whatever the series does: "below" spreads the entries over columns
+        (``ncol``, default 2) under the x axis' labels, "right" lists them beside
+        the axes. "inside" (upper left, on a white panel) hides what is behind it:
+        only for charts whose corner is known to be empty.
     **kwargs
-        Passed to :meth:`matplotlib.axes.Axes.legend`.
+        Passed to :meth:`matplotlib.axes.Axes.legend`. Call it once the x axis'
+        ticks and label are set: "below" is placed under them.
     """
     style = {"fontsize": 8.5, "labelcolor": HISTORY, "handlelength": 2.2}
     if where == "right":
         style.update(loc="upper left", bbox_to_anchor=(1.01, 1.0), borderaxespad=0.0,
                      frameon=False)
     elif where == "below":
-        style.update(loc="upper center", bbox_to_anchor=(0.5, -0.14), borderaxespad=0.0,
-                     frameon=False, ncol=2, columnspacing=2.0)
+        style.update(loc="upper center", bbox_to_anchor=(0.5, 0.0),
+                     bbox_transform=_under_the_axis(ax), borderaxespad=0.0, frameon=False,
+                     ncol=2, columnspacing=2.0)
     elif where == "inside":
         style.update(loc="upper left", frameon=True, facecolor="white", edgecolor="none",
                      framealpha=1.0)

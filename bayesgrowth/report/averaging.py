@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import pandas as pd
 
+from bayesgrowth.display import fmt_weight
 from bayesgrowth.report.words import band_phrases, fmt_number
 
 __all__ = ["models_note", "models_table"]
@@ -29,7 +30,7 @@ def models_table(comparison) -> pd.DataFrame:
         "Below the best": [f"{d:.1f} (se {s:.1f})" for d, s in zip(t["elpd_diff"], t["dse"],
                                                                     strict=True)],
         "Stacking weight (90% interval)": [
-            f"{w:.2f} ({lo:.2f} to {hi:.2f})" for w, lo, hi in zip(
+            f"{fmt_weight(w)} ({fmt_weight(lo)} to {fmt_weight(hi)})" for w, lo, hi in zip(
                 t["weight"], t["weight_lower_90"], t["weight_upper_90"], strict=True)],
         "Largest Pareto k": t["max_pareto_k"].map(lambda v: f"{v:.2f}"),
         "Sampling checks": t["diagnostics_ok"].map({True: "passed", False: "FAILED"}),

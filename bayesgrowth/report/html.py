@@ -348,6 +348,11 @@ def _reproduce(p: ReportParts, summary: dict) -> str:
     return _table(rows, {"Value": lambda v: f"<code>{_e(v)}</code>"})
 
 
+def _periods_words(frequency: str) -> str:
+    """"; quarterly periods" for the table's heading; nothing for plain numbered periods."""
+    return "" if frequency == "per period" else f"; {_e(frequency)} periods"
+
+
 def render_report(p: ReportParts) -> str:
     """The whole HTML page as a string."""
     fc = p.forecast
@@ -359,8 +364,8 @@ def render_report(p: ReportParts) -> str:
                       f"<figcaption>{_fan_caption(p)}</figcaption></figure>"
                       + outlook_html(fc, summary, figure_data_uri)),
         "forecast-table": (
-            f"Forecast table ({_e(p.unit or 'values in the input’s units')}; "
-            f"{_e(fc.fit.series.axis.frequency)} periods)",
+            f"Forecast table ({_e(p.unit or 'values in the input’s units')}"
+            f"{_periods_words(fc.fit.series.axis.frequency)})",
             _intervals_note() + _forecast_table(fc),
         ),
         "comparison": ("Least-squares comparison", _comparison(p)),

@@ -19,7 +19,7 @@ import pandas as pd
 
 from bayesgrowth.config import DEFAULT_LEVELS
 from bayesgrowth.data.series import GrowthSeries
-from bayesgrowth.display import html_summary, text_summary
+from bayesgrowth.display import fmt_weight, html_summary, text_summary
 from bayesgrowth.forecast.bands import draws_table, prob_at_least
 from bayesgrowth.forecast.summaries import forecast_headline, forecast_html, forecast_text
 from bayesgrowth.seeds import stream
@@ -327,7 +327,7 @@ class ModelAverage:
         return f"Model average of {len(avg.models)} models of {avg.series.name!r}"
 
     def _headline(self) -> str:
-        weights = ", ".join(f"{m} {w:.2f}" for m, w in self.averaged.weights.items())
+        weights = ", ".join(f"{m} {fmt_weight(w)}" for m, w in self.averaged.weights.items())
         return f"stacking weights {weights}; {forecast_headline(self.averaged)}"
 
     def __repr__(self) -> str:

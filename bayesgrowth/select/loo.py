@@ -22,7 +22,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from bayesgrowth.display import html_summary, text_summary
+from bayesgrowth.display import fmt_weight, html_summary, text_summary
 from bayesgrowth.select.stacking import bootstrap_stacking_weights, stacking_weights
 
 __all__ = [
@@ -179,10 +179,11 @@ class ModelComparison:
 
     def _rows(self) -> list[list[str]]:
         return [[r.model, f"{r.elpd_loo:.1f}", f"{r.elpd_diff:.1f}", f"{r.dse:.1f}",
-                 f"{r.weight:.2f}"] for r in self.table.itertuples()]
+                 fmt_weight(r.weight)] for r in self.table.itertuples()]
 
     def _headline(self) -> str:
-        return f"best by PSIS-LOO: {self.best} (stacking weight {self.weights[self.best]:.2f})"
+        weight = fmt_weight(self.weights[self.best])
+        return f"best by PSIS-LOO: {self.best} (stacking weight {weight})"
 
     def __repr__(self) -> str:
         title = f"Model comparison of {len(self.table)} models"
@@ -227,8 +228,8 @@ class ModelComparison:
 
     def weight_phrases(self) -> list[str]:
         """Each model's stacking weight with its 90% bootstrap interval, in words."""
-        return [f"{r.model} {r.weight:.2f} (90% interval {r.weight_lower_90:.2f} to "
-                f"{r.weight_upper_90:.2f})" for r in self.table.itertuples()]
+        return [f"{r.model} {fmt_weight(r.weight)} (90% interval {fmt_weight(r.weight_lower_90)} "
+                f"to {fmt_weight(r.weight_upper_90)})" for r in self.table.itertuples()]
 
     def weights_reading(self) -> str:
         """One line: the weights with their uncertainty, and which models are indistinguishable."""

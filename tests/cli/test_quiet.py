@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import numpy as np
 import pytest
 
 from bayesgrowth.cli import main
@@ -36,3 +37,19 @@ def test_quiet_help_says_notes_and_cautions_stay(command, capsys):
     with pytest.raises(SystemExit):
         main([command, "--help"])
     assert " ".join(capsys.readouterr().out.split()).count(" ".join(QUIET_HELP.split())) == 1
+
+
+def test_plain_numbered_periods_are_counted_without_a_frequency(tmp_path, capsys):
+    from bayesgrowth.backtest.recalibrate import pooled_source
+    from bayesgrowth.report.html import _periods_words
+
+    path = tmp_path / "numbered.csv"
+    path.write_text("period,value\n" + "".join(f"{i},{100 * 1.05**i:.2f}\n"
+                                               for i in range(1, 21)))
+    assert main(["forecast", str(path), "-H", "2", "--out", str(tmp_path / "o")]) == 0
+    err = capsys.readouterr().err
+    assert "fitting numbered (20 observations)" in err and "per period" not in err
+    assert _periods_words("per period") == "" and _periods_words("quarterly") == (
+        "; quarterly periods")
+    assert pooled_source("per period", 3, np.array([0.5]), (80,))["where"] == (
+        "backtests of 3 series pooled")

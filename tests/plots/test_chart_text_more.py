@@ -73,6 +73,7 @@ def test_sensitivity_chart_text(demo):
 
 
 def test_models_chart_legend_gives_each_weight_with_its_interval(demo):
+    from bayesgrowth.display import fmt_weight
     from bayesgrowth.inference import fit_series
     from bayesgrowth.plots.models import plot_model_bands
     from bayesgrowth.priors import InitialValuePrior, Priors
@@ -85,8 +86,9 @@ def test_models_chart_legend_gives_each_weight_with_its_interval(demo):
     ax = plot_model_bands(ma.forecasts, ma.averaged, comparison=ma.comparison, unit="Revenue")
     texts = _legend_texts(ax)
     for row in ma.comparison.table.itertuples():
-        assert (f"{row.model} (weight {row.weight:.2f}, 90% interval {row.weight_lower_90:.2f} "
-                f"to {row.weight_upper_90:.2f}): median") in texts
+        assert (f"{row.model} (weight {fmt_weight(row.weight)}, 90% interval "
+                f"{fmt_weight(row.weight_lower_90)} to {fmt_weight(row.weight_upper_90)}): "
+                "median") in texts
     assert texts[0] == "Observed history" and "Model average: 80% band" in texts
     assert ax.get_ylabel() == "Revenue" and ax.get_xlabel() == "Period"
     assert "stacking average" in ax.get_title()

@@ -1,11 +1,13 @@
 """The report's model comparison section, filled from a model average (exact engine)."""
 
+import html
 import re
 
 import pytest
 
 from bayesgrowth.cli import main
 from bayesgrowth.data.demo import demo_path
+from bayesgrowth.display import fmt_weight
 from bayesgrowth.inference import fit_series
 from bayesgrowth.priors import InitialValuePrior, Priors
 from bayesgrowth.report import build_report
@@ -33,8 +35,8 @@ def test_report_shows_ranks_weights_with_intervals_and_the_models_chart(demo, av
     assert "Stacking weight (90% interval)" in models
     for row in table.itertuples():
         assert f"<td>{row.rank}</td>" in models  # ranks from 1
-        assert f"{row.weight:.2f} ({row.weight_lower_90:.2f} to {row.weight_upper_90:.2f})" in (
-            models)
+        assert (f"{fmt_weight(row.weight)} ({fmt_weight(row.weight_lower_90)} to "
+                f"{fmt_weight(row.weight_upper_90)})") in html.unescape(models)
     assert "<td>0</td>" not in models
     assert models.count("<img") == 1
     avg_last = average.averaged.table.iloc[-1]

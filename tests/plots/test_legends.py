@@ -1,0 +1,61 @@
+"""Legends sit outside the plotting area, so they cover no data, band or target whatever the
+series does; weights too small to print in two decimals read "< 0.01"."""
+
+from __future__ import annotations
+
+import matplotlib
+
+matplotlib.use("Agg")
+
+import numpy as np  # noqa: E402
+import pandas as pd  # noqa: E402
+import pytest  # noqa: E402
+
+import bayesgrowth as bg  # noqa: E402
+from bayesgrowth.data.series import read_series  # noqa: E402
+from bayesgrowth.plots.backtest import calibration_figure, fans_figure  # noqa: E402
+from bayesgrowth.plots.fan import plot_fan  # noqa: E402
+from bayesgrowth.plots.models import plot_model_bands  # noqa: E402
+
+
+def _declining():
+    # an invented series falling from 5,000: its history fills the upper left corner
+    values = 5000 * 0.93 ** np.arange(16) * np.exp(0.03 * np.sin(np.arange(16)))
+    labels = [f"{2021 + i // 4}Q{i % 4 + 1}" for i in range(16)]
+    return read_series(pd.DataFrame({"period": labels, "value": values}), name="falling")
+
+
+def _clear_of_the_plot(ax) -> None:
+    """The legend overlaps neither the plotting area nor the x axis' labels."""
+    ax.figure.canvas.draw()
+    box = ax.get_legend().get_window_extent()
+    assert not box.overlaps(ax.get_window_extent()), ax.get_title()
+    labels = ax.xaxis.get_tightbbox()
+    assert labels is None or not box.overlaps(labels), ax.get_title()
+
+
+@pytest.mark.parametrize("horizon", [4, 60])
+def test_fan_legend_covers_nothing_drawn(horizon):
+    fc = bg.forecast(bg.fit_series(_declining(), engine="exact", seed=1), horizon)
+    _clear_of_the_plot(plot_fan(fc, target=3000.0))
+
+
+def test_backtest_legends_cover_nothing_drawn(demo):
+    result = bg.backtest(demo, horizon=2, min_train=16, seed=1, methods=["exact", "naive"])
+    for fig in (fans_figure(result), calibration_figure(result)):
+        for ax in fig.axes:
+            if ax.get_legend() is not None:
+                _clear_of_the_plot(ax)
+
+
+def test_models_chart_legend_covers_nothing_and_writes_a_tiny_weight_readably(demo):
+    fits = {"default": bg.fit_series(demo, engine="exact", seed=2),
+            "exponential": bg.fit_series(demo, engine="exact", seed=2, model="exponential")}
+    forecasts = {name: bg.forecast(fit, 4) for name, fit in fits.items()}
+    # an optimiser leaves a weight it drives to zero at about 1e-17, not at 0
+    ax = plot_model_bands(forecasts, weights={"default": 0.998, "exponential": 1.3e-17})
+    texts = [t.get_text() for t in ax.get_legend().get_texts()]
+    assert "exponential (weight < 0.01): median" in texts
+    assert "default (weight > 0.99): median" in texts
+    assert not any("e-" in t for t in texts)
+    _clear_of_the_plot(ax)
