@@ -23,10 +23,10 @@ from __future__ import annotations
 
 import calendar
 import datetime as dt
-import math
 import re
 from dataclasses import dataclass
-from functools import reduce
+
+from bayesgrowth.data.dategrid import date_step
 
 __all__ = ["PeriodAxis", "parse_periods", "PeriodError", "MAX_SPAN", "LAST_YEAR"]
 
@@ -299,14 +299,9 @@ def parse_periods(labels: list[str]) -> tuple[PeriodAxis, list[int]]:
         style = "year"
     origin = min(ordinals)
     if style == "date":
-        diffs = [o - origin for o in ordinals if o != origin]
-        step = reduce(math.gcd, diffs, 0) or 1
-        if step not in (1, 3, 12):
-            # Irregular spacing: fall back to months, the finest calendar step.
-            step = 1
-        for i, o in enumerate(ordinals):
-            if (o - origin) % step:
-                raise PeriodError(i, f"period {labels[i]!r} is off the {step}-month grid")
+        step, misfit = date_step(ordinals, labels)
+        if misfit is not None:
+            raise PeriodError(*misfit)
         month_end = all(
             d == calendar.monthrange(o // 12, o % 12 + 1)[1]
             for o, d in zip(ordinals, days, strict=True)

@@ -43,6 +43,11 @@ class GrowthSeries:
         A display name for the series.
     source : str
         Where the series came from (a file name, or ``"DataFrame"``).
+    gaps : tuple of str
+        Labels of the periods between the first and last observation without a value.
+    notes : tuple of str
+        What the reader noted about the input, one sentence each, as it warned them: the
+        sheet read, missing periods, dates placed in a period, values far out of line.
     """
 
     values: np.ndarray
@@ -51,6 +56,7 @@ class GrowthSeries:
     name: str = "series"
     source: str = "DataFrame"
     gaps: tuple[str, ...] = field(default=())
+    notes: tuple[str, ...] = field(default=())
 
     @property
     def n(self) -> int:
@@ -114,14 +120,12 @@ class GrowthSeries:
         labels = self.labels
         if wanted in labels:
             return labels.index(wanted)
-        try:
-            _, t = parse_periods([labels[0], wanted])
+        try:  # read with every label, so the step is the series' own
+            _, t = parse_periods([*labels, wanted])
         except PeriodError:
             t = None
-        if t is not None:
-            hits = np.flatnonzero(self.t - self.t[0] == t[1] - t[0])
-            if hits.size:
-                return int(hits[0])
+        if t is not None and t[-1] in t[:-1]:
+            return t.index(t[-1])
         raise InputError(
             f"period {label!r} is not in the series (first {labels[0]}, last {labels[-1]})"
         )
@@ -160,15 +164,6 @@ class GrowthSeries:
         return pd.DataFrame({"period": self.labels, "t": self.t, "value": self.values})
 
 
-def _where(source: str, row: int | None, column: str | None) -> str:
-    parts = [source]
-    if row is not None:
-        parts.append(f"row {row}")
-    if column is not None:
-        parts.append(f"column {column!r}")
-    return ", ".join(parts)
-
-
 def _from_columns(
     periods: list[str],
     raw_values: list[str],
@@ -181,17 +176,28 @@ def _from_columns(
     decimal: str = "auto",
     fiscal_start: int | None = None,
     separator: str = ",",
+    notes: tuple[str, ...] = (),
 ) -> GrowthSeries:
     """Validate raw cells and build a series; ``rows`` are the rows as the user counts them.
 
     ``decimal`` and ``fiscal_start`` are as in :func:`read_series`; ``separator`` is
-    the file's column separator (see :func:`bayesgrowth.data.formats.decimal_mark`).
+    the file's column separator (see :func:`bayesgrowth.data.formats.decimal_mark`);
+    ``notes`` are the file's own (the sheet read), warned before the series' notes
+    (:mod:`bayesgrowth.data.checks`).
     """
-    values = _values(raw_values, rows, source=source, value_col=value_col, decimal=decimal,
-                     separator=separator)
+    from bayesgrowth.data.checks import (
+        placement_note,
+        time_axis,
+        unusual_notes,
+        values_of,
+        where,
+    )
+
+    values = values_of(raw_values, rows, source=source, value_col=value_col, decimal=decimal,
+                       separator=separator)
     for label, row in zip(periods, rows, strict=True):
         if str(label).strip() == "":
-            raise InputError(f"{_where(source, row, period_col)}: period is missing")
+            raise InputError(f"{where(source, row, period_col)}: period is missing")
     if len(values) < MIN_OBSERVATIONS:
         raise InputError(
             f"{source}: {len(values)} observation(s); a growth curve needs at least "
@@ -203,79 +209,26 @@ def _from_columns(
             "series that never changes has no growth to fit and would get bands of zero "
             "width; check that this is the right column"
         )
-    axis, t_sorted, order = _time_axis(periods, rows, source=source, period_col=period_col,
-                                       fiscal_start=fiscal_start)
+    axis, t_sorted, order = time_axis(periods, rows, source=source, period_col=period_col,
+                                      fiscal_start=fiscal_start)
+    said = list(notes)
     missing = sorted(set(range(int(t_sorted[-1]) + 1)) - set(t_sorted.tolist()))
     gaps = tuple(axis.labels(missing))
     if gaps:
         shown = ", ".join(gaps[:5]) + (" ..." if len(gaps) > 5 else "")
-        warnings.warn(
-            f"{source}: {len(gaps)} missing period(s) ({shown}); they keep their place in time "
-            "and are not filled",
-            stacklevel=3,
-        )
-    return GrowthSeries(
-        values=np.asarray(values, dtype=float)[order],
-        t=t_sorted,
-        axis=axis,
-        name=name,
-        source=source,
-        gaps=gaps,
-    )
-
-
-def _values(raw_values: list[str], rows: list[int], *, source: str, value_col: str,
-            decimal: str, separator: str) -> list[float]:
-    """The cells as numbers above zero (decimal mark and currency read once for all)."""
-    from bayesgrowth.data.formats import amount, decimal_mark
-
-    wheres = [_where(source, row, value_col) for row in rows]
-    mark = decimal_mark([str(v).strip() for v in raw_values], wheres, decimal, separator)
-    currencies: dict[str, str] = {}
-    values = []
-    for raw, where in zip(raw_values, wheres, strict=True):
-        text = str(raw).strip()
-        if text == "" or text.lower() in ("nan", "na", "none", "null"):
-            raise InputError(f"{where}: value is missing; fill it in or delete the row")
-        value = amount(text, mark, where, currencies)
-        if value <= 0:
-            raise InputError(
-                f"{where}: value {text} is not above zero; the growth "
-                "model works on the log scale and needs every value > 0"
-            )
-        if value > MAX_VALUE:
-            raise InputError(
-                f"{where}: value {text} is above {MAX_VALUE:g}, too "
-                "close to the largest number a computer holds to forecast from; express the "
-                "values in larger units (divide them all by the same power of ten)"
-            )
-        values.append(value)
-    return values
-
-
-def _time_axis(periods: list[str], rows: list[int], *, source: str, period_col: str,
-               fiscal_start: int | None):
-    """The calendar, the sorted time indices and the order that sorts the rows."""
-    from bayesgrowth.data.fiscal import read_labels, restyle
-
-    try:
-        canonical, style = read_labels([str(p).strip() for p in periods], fiscal_start)
-        axis, t = parse_periods(canonical)
-    except PeriodError as exc:
-        raise InputError(f"{_where(source, rows[exc.position], period_col)}: {exc}") from None
-    axis = restyle(axis, style)
-    t_arr = np.asarray(t, dtype=int)
-    order = np.argsort(t_arr, kind="stable")
-    t_sorted = t_arr[order]
-    dup = np.flatnonzero(np.diff(t_sorted) == 0)
-    if dup.size:
-        first, second = order[dup[0]], order[dup[0] + 1]
-        lo, hi = sorted((rows[first], rows[second]))
-        raise InputError(
-            f"{_where(source, hi, period_col)}: period {periods[second]!r} repeats row {lo}; "
-            "keep one value per period"
-        )
-    return axis, t_sorted, order
+        said.append(f"{source}: {len(gaps)} missing period(s) ({shown}); they keep their "
+                    "place in time and are not filled")
+    t_input = np.empty_like(t_sorted)
+    t_input[order] = t_sorted
+    said.append(placement_note(periods, rows, t_input, axis, source))
+    sorted_values = np.asarray(values, dtype=float)[order]
+    said += unusual_notes(sorted_values, t_sorted, axis, [rows[i] for i in order],
+                          [raw_values[i] for i in order], source)
+    said = [n for n in said if n]
+    for note in said:
+        warnings.warn(note, stacklevel=3)
+    return GrowthSeries(values=sorted_values, t=t_sorted, axis=axis, name=name, source=source,
+                        gaps=gaps, notes=tuple(said))
 
 
 def read_series(
@@ -308,7 +261,9 @@ def read_series(
     Returns
     -------
     GrowthSeries
-        The validated series, sorted by period.
+        The validated series, sorted by period. What the reader noted (the sheet read,
+        missing periods, dates placed in a period, values far out of line with their
+        neighbours; :mod:`bayesgrowth.data.checks`) is warned and kept in ``notes``.
 
     Raises
     ------
@@ -390,6 +345,7 @@ def _frame_to_series(
         decimal=decimal,
         fiscal_start=fiscal_start,
         separator=frame.attrs.get("separator", ","),
+        notes=tuple(frame.attrs.get("notes", ())),
     )
 
 

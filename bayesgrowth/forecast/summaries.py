@@ -155,6 +155,7 @@ def _provenance(fit: Fit) -> dict:
             "n_observations": fit.series.n,
             "first_period": fit.series.labels[0],
             "missing_periods": list(fit.series.gaps),
+            "notes": list(fit.series.notes),  # what the reader noted, as the terminal said it
             "fingerprint_sha256": fit.series.fingerprint(),
         },
         "bayesgrowth_version": fit.attrs()["bayesgrowth_version"],
