@@ -32,6 +32,7 @@ from bayesgrowth.cli.recalibration import (
     panel_recalibration,
     recalibration_line,
 )
+from bayesgrowth.cli.sheet import add_sheet_option
 from bayesgrowth.cli.signals import Terminated, exit_code
 
 __all__ = ["add_parser", "EXIT_SOME_FAILED"]
@@ -51,6 +52,7 @@ def add_parser(subparsers) -> argparse.ArgumentParser:
         "failures.csv); 2: bad input or usage.",
     )
     add_input(p, panel=True)
+    add_sheet_option(p)
     add_model_options(p)
     p.add_argument("--out", type=Path, required=True, help="output folder (resumed if it "
                    "holds an interrupted batch with the same options)")
@@ -97,6 +99,7 @@ def run(args) -> int:
     panel, bad, notes = quiet_read_panel(
         args.file, series_col=args.series_col, period_col=args.period_col,
         value_col=args.value_col, decimal=args.decimal, fiscal_start=args.fiscal_start,
+        sheet=args.sheet,
     )
     for text in notes:
         note(text)

@@ -21,6 +21,7 @@ from bayesgrowth.cli.prior_options import (
     add_season_drift_prior,
 )
 from bayesgrowth.cli.progress import add_quiet_option, note, say  # noqa: F401 - also from here
+from bayesgrowth.cli.sheet import add_sheet_option
 from bayesgrowth.config import DEFAULT_ENGINE, DEFAULT_LEVELS, DEFAULT_MODEL, check_levels
 from bayesgrowth.data.series import GrowthSeries, read_series
 from bayesgrowth.display import observations
@@ -125,6 +126,8 @@ def add_input(p: argparse.ArgumentParser, *, panel: bool = False) -> None:
     p.add_argument("--period-col", default="period", help="name of the period column [period]")
     p.add_argument("--value-col", default="value", help="name of the value column [value]")
     add_format_options(p)
+    if not panel:  # batch adds it itself
+        add_sheet_option(p)
 
 
 def add_model_options(p: argparse.ArgumentParser, *, horizon_required: bool = True) -> None:
@@ -247,7 +250,8 @@ def read_input(args) -> GrowthSeries:
         warnings.simplefilter("always")
         series = read_series(args.file, period_col=args.period_col, value_col=args.value_col,
                              decimal=getattr(args, "decimal", "auto"),
-                             fiscal_start=getattr(args, "fiscal_start", None))
+                             fiscal_start=getattr(args, "fiscal_start", None),
+                             sheet=getattr(args, "sheet", None))
     for w in caught:
         note(str(w.message))
     from bayesgrowth.cli.limits import check_run_size

@@ -66,15 +66,18 @@ def _head(path: Path) -> str:
         return handle.read(64 * 1024)
 
 
-def read_csv_file(path: str | Path) -> pd.DataFrame:
+def read_csv_file(path: str | Path, sheet: str | None = None) -> pd.DataFrame:
     """The cells of a CSV file with a header row, all as text, column names stripped.
 
     The separator (comma, semicolon or tab) is told from the header line; an
-    ``.xlsx`` workbook is read from its first sheet (with the optional Excel reader).
+    ``.xlsx`` workbook is read from the sheet named, by default its first (with the
+    optional Excel reader; :func:`bayesgrowth.data.excel.read_excel_file`).
 
     Parameters
     ----------
     path : str or pathlib.Path
+    sheet : str, optional
+        The sheet of a workbook to read; refused for a CSV file, which has none.
 
     Returns
     -------
@@ -91,7 +94,8 @@ def read_csv_file(path: str | Path) -> pd.DataFrame:
         With one line naming the file (and the row, where there is one) and the fix:
         missing, a folder, not readable, not UTF-8 text, empty, ragged rows, an open
         quote, or a column named twice in the header; ragged rows under a line
-        that looks like a title above the header are refused as that title line.
+        that looks like a title above the header are refused as that title line; a
+        sheet named for a CSV file.
     """
     path = Path(path)
     source = path.name
@@ -100,10 +104,13 @@ def read_csv_file(path: str | Path) -> pd.DataFrame:
     if path.is_dir():
         raise InputError(f"{path}: is a folder, not a CSV file")
     if path.suffix.lower() in EXCEL_SUFFIXES:
-        return read_excel_file(path)
+        return read_excel_file(path, sheet)
     if path.suffix.lower() == ".xls":
         raise InputError(f"{source}: an old-style Excel file (.xls); open it in a spreadsheet "
                          "and save it as .xlsx or as CSV")
+    if sheet is not None:
+        raise InputError(f"--sheet {sheet!r}: {source} is not an .xlsx workbook and has no "
+                         "sheets; leave --sheet out")
     try:
         head = _head(path)
         sep = detect_separator(head, source)

@@ -66,6 +66,7 @@ def read_panel(
     value_col: str = "value",
     decimal: str = "auto",
     fiscal_start: int | None = None,
+    sheet: str | None = None,
 ) -> tuple[Panel, list[tuple[str, str]]]:
     """Read many series from a long-format CSV file or DataFrame.
 
@@ -79,6 +80,9 @@ def read_panel(
     decimal, fiscal_start
         The values' decimal mark and the fiscal-year start month, as in
         :func:`bayesgrowth.data.series.read_series`.
+    sheet : str, optional
+        The sheet of an ``.xlsx`` workbook to read, as in
+        :func:`~bayesgrowth.data.series.read_series`.
 
     Returns
     -------
@@ -111,7 +115,9 @@ def read_panel(
         frame, source, offset = data, "DataFrame", 0
     else:
         path = Path(data)
-        frame, source, offset = read_csv_file(path), path.name, 2
+        frame, source, offset = read_csv_file(path, sheet=sheet), path.name, 2
+        for note in frame.attrs.get("notes", ()):  # the sheet read: once, not per series
+            warnings.warn(note, stacklevel=2)
     require_columns(frame, source, ((series_col, "--series-col"),
                                     (period_col, "--period-col"), (value_col, "--value-col")))
     if len(frame) == 0:

@@ -239,6 +239,7 @@ def read_series(
     name: str | None = None,
     decimal: str = "auto",
     fiscal_start: int | None = None,
+    sheet: str | None = None,
 ) -> GrowthSeries:
     """Read one growth series from a CSV or Excel file, a DataFrame or a Series.
 
@@ -257,6 +258,9 @@ def read_series(
     fiscal_start : int, optional
         Month (1-12) the fiscal year starts in, for labels like ``FY24 Q1``; FY24
         is the fiscal year ending in 2024 (see :mod:`bayesgrowth.data.fiscal`).
+    sheet : str, optional
+        The sheet of an ``.xlsx`` workbook to read; by default the first, named in a
+        note when the workbook has several (see :mod:`bayesgrowth.data.excel`).
 
     Returns
     -------
@@ -293,7 +297,7 @@ def read_series(
     from bayesgrowth.data.csvfile import read_csv_file
 
     path = Path(data)
-    frame = read_csv_file(path)
+    frame = read_csv_file(path, sheet=sheet)
     return _frame_to_series(frame, path.name, period_col, value_col, name or path.stem, 2,
                             decimal=decimal, fiscal_start=fiscal_start)
 
