@@ -18,8 +18,10 @@ The rule, on the log scale (a Hampel identifier, Hampel 1974; Pearson 2002):
 4. **Seasons.** For quarterly or monthly data with more than a year of year-on-year changes
    (at least nine quarters, 25 months), the same rule is applied with the same season in
    the neighbouring years (changes over a year for the scale), and a value is out of line
-   only when it is in both: a strong fourth quarter is in line with earlier fourth
-   quarters, a value keyed a hundred times too large is in line with nothing.
+   when it is out of line there and also at least :data:`LEAST_LOG` from the level of its
+   neighbouring periods (whose changes are mostly the seasons' swings, so their scale is
+   not used): a strong fourth quarter is in line with earlier fourth quarters, a value
+   keyed a hundred times too large is in line with nothing.
 
 The check runs on series of :data:`MIN_LENGTH` observations or more.
 """
@@ -63,7 +65,7 @@ def _view(y: np.ndarray, t: np.ndarray, lag: int,
     ``None`` when fewer than ``least_pairs`` pairs of observations are ``lag`` periods apart.
     """
     where = {int(ti): i for i, ti in enumerate(t)}
-    pairs = [(where[int(ti)], i) for i, ti in enumerate(t) if int(ti) - lag in where]
+    pairs = [(where[int(ti) - lag], i) for i, ti in enumerate(t) if int(ti) - lag in where]
     if len(pairs) < least_pairs:
         return None
     changes = np.array([y[i] - y[j] for j, i in pairs])
@@ -123,5 +125,7 @@ def unusual_values(values, t, season_length: int | None = None) -> list[tuple[in
     if season_length and season_length > 1:
         year = _view(y, t, season_length, least_pairs=season_length + 1)
         if year is not None:
-            flagged &= _out_of_line(year)
+            # the changes from one period to the next are mostly the seasons' swings,
+            # so their scale says little there: the floor alone applies to them
+            flagged = _out_of_line(year) & (np.abs(near[0]) >= LEAST_LOG)
     return [(int(i), float(math.exp(near[0][i]))) for i in np.flatnonzero(flagged)]

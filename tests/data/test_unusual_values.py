@@ -110,3 +110,15 @@ def test_real_quarterly_series_are_quiet_and_slips_are_caught(quarterly_records)
     # measured when the rule was set: M1 172 of 174 quiet, Tourism 349 of 403
     assert np.mean(quiet["M1"]) >= 0.97
     assert np.mean(quiet["Tourism"]) >= 0.85
+
+
+@pytest.mark.parametrize("growth", [1.3, 10.0, 1e10])
+def test_steady_growth_of_any_speed_is_in_line(growth):
+    # each value is judged against its neighbours carried by the series' own change per
+    # period: a steady geometric series, however steep, has nothing out of line
+    values = [100.0 * growth**i for i in range(7)]
+    assert unusual_values(values, range(7)) == []
+    for k in (0, 3, 6):  # and a slip anywhere in it is the only value named
+        slipped = list(values)
+        slipped[k] *= 100
+        assert [i for i, _ in unusual_values(slipped, range(7))] == [k]
