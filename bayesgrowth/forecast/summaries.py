@@ -117,15 +117,19 @@ def _parameters(fc) -> dict:
 def _final_period(fc) -> dict:
     """The last forecast period: median, mean and bands (the exact mixture's, if any).
 
-    A mean that is not finite is ``None``: :func:`~bayesgrowth.forecast.means.mean_caution`
-    says why among the cautions.
+    A mean too large to compute (left empty in the table) is infinite here, so the JSON
+    writer lists it among the numbers not available, with that reason;
+    :func:`~bayesgrowth.forecast.means.mean_caution` says among the cautions what to read
+    instead.
     """
     last = fc.table.iloc[-1]
     with np.errstate(over="ignore", invalid="ignore"):
         out = {"period": fc.periods[-1], **interval_summary(fc.draws[:, -1], fc.levels)}
     if fc.exact is not None:  # the exact mixture's numbers, as in the table
         out.update({k: float(last[k]) for k in out if k != "period" and k in last.index})
-    out["mean"] = _finite(float(last["mean"])) if "mean" in last.index else None
+    if "mean" in last.index:
+        mean = float(last["mean"])
+        out["mean"] = mean if math.isfinite(mean) else math.inf
     return out
 
 
