@@ -48,6 +48,10 @@ def _round_sig(v: float, sig: int, direction: str = "nearest") -> Decimal:
     return d.quantize(quantum, rounding=_ROUNDING[direction])
 
 
+#: From this size on, numbers are written with a power of ten (a thousand trillion).
+HUGE = 1e15
+
+
 def fmt_number(v, sig: int = SIGNIFICANT, *, direction: str = "nearest") -> str:
     """A value for people: ``sig`` significant figures with thousands separators.
 
@@ -67,7 +71,8 @@ def fmt_number(v, sig: int = SIGNIFICANT, *, direction: str = "nearest") -> str:
     -------
     str
         For example ``9,800``, ``10,600``, ``123,000``, ``4.57``, ``0.0123``, ``42``
-        (at most ``sig`` figures: trailing zeros after the point are dropped).
+        (at most ``sig`` figures: trailing zeros after the point are dropped);
+        ``3.01e288`` from :data:`HUGE` on.
 
     Examples
     --------
@@ -75,6 +80,8 @@ def fmt_number(v, sig: int = SIGNIFICANT, *, direction: str = "nearest") -> str:
     '9,800'
     >>> fmt_number(0.012345)
     '0.0123'
+    >>> fmt_number(3.006e288)
+    '3.01e288'
     """
     if _missing(v):
         return MISSING
@@ -82,7 +89,13 @@ def fmt_number(v, sig: int = SIGNIFICANT, *, direction: str = "nearest") -> str:
         raise ValueError(f"sig must be at least 1, got {sig}")
     if direction not in ("nearest", "down", "up"):
         raise ValueError(f"direction must be nearest, down or up, got {direction!r}")
-    text = f"{_round_sig(float(v), sig, direction):,f}"
+    rounded = _round_sig(float(v), sig, direction)
+    if abs(rounded) >= HUGE:  # "3.01e288", not 289 digits with 95 separators
+        mantissa, exponent = f"{rounded:.{sig - 1}e}".split("e")
+        if "." in mantissa:
+            mantissa = mantissa.rstrip("0").rstrip(".")
+        return f"{mantissa}e{int(exponent)}"
+    text = f"{rounded:,f}"
     if "." in text:  # at most ``sig`` figures: 42, not 42.0
         text = text.rstrip("0").rstrip(".")
     return "0" if text in ("-0", "0") else text

@@ -160,3 +160,12 @@ def test_model_average_reprs_name_the_weights_and_the_last_band(demo):
     last = avg.averaged.table.iloc[-1]
     assert f"median {fmt_number(last['median'])}" in text and "median" in repr(avg.averaged)
     assert avg.averaged._repr_html_().count("<tr>") == 1 + 4
+
+
+def test_huge_numbers_are_written_with_a_power_of_ten():
+    # a steep series' far periods: 289 digits with separators read as nothing; the power of
+    # ten keeps three significant figures, rounded outwards for an interval
+    assert fmt_number(3.006e288) == "3.01e288"
+    assert fmt_number(999e12) == "999,000,000,000,000"
+    assert fmt_number(1e15) == "1e15"
+    assert fmt_interval(1.1234e266, 1.1011e303) == "1.12e266 to 1.11e303"

@@ -132,7 +132,9 @@ class Forecast:
         probs = [0.5]
         for level in self.levels:
             probs += band_probabilities(level)
-        q = np.exp(mixture_quantiles(e["weight"], e["mean"], e[sd_key], probs))
+        with np.errstate(over="ignore"):  # beyond 1.8e308 a band's end is inf: the writers
+            # leave it out and say so
+            q = np.exp(mixture_quantiles(e["weight"], e["mean"], e[sd_key], probs))
         cols = {f"{prefix}median": q[0]}
         for i, level in enumerate(self.levels):
             cols[f"{prefix}lower_{level}"] = q[1 + 2 * i]

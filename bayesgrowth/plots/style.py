@@ -25,7 +25,7 @@ from matplotlib.axes import Axes
 from matplotlib.ticker import Formatter, FuncFormatter, NullFormatter
 from matplotlib.transforms import ScaledTranslation, Transform
 
-from bayesgrowth.display import fmt_number
+from bayesgrowth.display import HUGE, fmt_number
 from bayesgrowth.plots.plain import literal
 
 __all__ = [
@@ -125,6 +125,8 @@ class ValueFormatter(Formatter):
 
     def __call__(self, x, pos=None):  # noqa: D102 - a matplotlib Formatter
         locs = self._ticks
+        if locs.size and np.max(np.abs(locs)) >= HUGE:  # with a power of ten, as printed
+            return fmt_number(x, 3)
         step = np.min(np.diff(np.sort(locs))) if locs.size > 1 else abs(x) or 1.0
         decimals = 0 if step >= 1 else int(np.ceil(-np.log10(step) - 1e-9))
         text = f"{x:,.{decimals}f}"
