@@ -32,7 +32,6 @@ from bayesgrowth.cli.recalibration import (
     panel_recalibration,
     recalibration_line,
 )
-from bayesgrowth.cli.sheet import add_sheet_option
 from bayesgrowth.cli.signals import Terminated, exit_code
 
 __all__ = ["add_parser", "EXIT_SOME_FAILED"]
@@ -52,7 +51,6 @@ def add_parser(subparsers) -> argparse.ArgumentParser:
         "failures.csv); 2: bad input or usage.",
     )
     add_input(p, panel=True)
-    add_sheet_option(p)
     add_model_options(p)
     p.add_argument("--out", type=Path, required=True, help="output folder (resumed if it "
                    "holds an interrupted batch with the same options)")

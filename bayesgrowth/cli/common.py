@@ -126,8 +126,7 @@ def add_input(p: argparse.ArgumentParser, *, panel: bool = False) -> None:
     p.add_argument("--period-col", default="period", help="name of the period column [period]")
     p.add_argument("--value-col", default="value", help="name of the value column [value]")
     add_format_options(p)
-    if not panel:  # batch adds it itself
-        add_sheet_option(p)
+    add_sheet_option(p)
 
 
 def add_model_options(p: argparse.ArgumentParser, *, horizon_required: bool = True) -> None:

@@ -88,6 +88,7 @@ def _read(args):
     panel, bad, notes = quiet_read_panel(
         args.file, series_col=args.series_col, period_col=args.period_col,
         value_col=args.value_col, decimal=args.decimal, fiscal_start=args.fiscal_start,
+        sheet=args.sheet,
     )
     for text in notes:
         note(text)

@@ -77,3 +77,20 @@ def test_batch_reads_the_sheet_named(tmp_path):
     assert main(["batch", str(src), "-H", "1", "--out", str(out), "--quiet", "--workers", "1",
                  "--sheet", "Data"]) == 0
     assert sorted(pd.read_csv(out / "forecast.csv")["series"].unique()) == ["a", "b"]
+
+
+def test_pool_reads_the_sheet_named(tmp_path, capsys):
+    # the named sheet holds one series, the first sheet two: refused for pooling one
+    # series proves the named sheet was read (before any sampling)
+    src = tmp_path / "panel.xlsx"
+    two = pd.DataFrame({"series": ["a"] * 4 + ["b"] * 4, "period": QUARTERS * 2,
+                        "value": [1, 2, 3, 4, 10, 11, 12, 13]})
+    with pd.ExcelWriter(src) as writer:
+        two.to_excel(writer, sheet_name="Both", index=False)
+        two.iloc[:4].to_excel(writer, sheet_name="One", index=False)
+    out = tmp_path / "out"
+    assert main(["pool", str(src), "-H", "1", "--out", str(out), "--sheet", "One"]) == 2
+    assert "pooling needs at least 2 series" in capsys.readouterr().err
+    assert main(["pool", str(src), "-H", "1", "--out", str(out), "--sheet", "Neither"]) == 2
+    assert "its sheets are 'Both', 'One'" in capsys.readouterr().err
+    assert not out.exists()
