@@ -326,7 +326,9 @@ def _extrapolation_item(p: ReportParts) -> str:
 
 
 def _cautions(p: ReportParts, summary: dict) -> str:
-    items = [c for c in summary["cautions"] if c != CAUTION]
+    # notes about the input first (a value far out of line, a date moved into its period)
+    items = [f"About the data: {n}" for n in summary["input"].get("notes", [])]
+    items += [c for c in summary["cautions"] if c != CAUTION]
     items.append(_extrapolation_item(p))
     items.append("Calibration evidence from a short history is weak: a backtest on a few "
                  "origins cannot prove bands honest, only show when they were not.")

@@ -195,3 +195,16 @@ def test_an_exact_fit_reports_no_sampling_checks_it_did_not_make(page):
     assert "Computed exactly: no sampling" in section
     assert "R-hat" not in section and "Divergent" not in section
     assert "Independent draws" in section
+
+
+def test_notes_about_the_data_are_among_the_cautions():
+    # invented: twelve quarters of 4% growth, one keyed a hundred times too large
+    values = [1000 * 1.04**i for i in range(12)]
+    values[6] *= 100
+    frame = pd.DataFrame({"period": [f"{2022 + i // 4}Q{i % 4 + 1}" for i in range(12)],
+                          "value": values})
+    with pytest.warns(UserWarning, match="100 times"):
+        s = read_series(frame)
+    html_text = build_report(s, 2, engine="exact", seed=1, with_backtest=False, timestamp="t")
+    cautions = html_text[html_text.index('id="cautions"'):]
+    assert "About the data:" in cautions and "2023Q3" in cautions
