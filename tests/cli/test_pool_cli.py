@@ -36,9 +36,14 @@ def test_pool_forecasts_every_series_and_their_total(tmp_path, panel_csv, capsys
         [MANIFEST, "pooled_forecast.csv", "pooled_growth.csv", "group_total.csv"])
     fc = pd.read_csv(out / "pooled_forecast.csv")
     assert sorted(set(fc["series"])) == ["s0001", "s0002", "s0003"]
-    assert (fc.groupby("series").size() == 3).all()
     total = pd.read_csv(out / "group_total.csv")
     assert len(total) == 3
+    # every series has a forecast for each period the total adds (one that ends sooner is
+    # forecast further), and the series ending last exactly the three asked for
+    sizes = fc.groupby("series").size()
+    assert (fc[fc["period"].isin(total["period"])].groupby("series").size() == 3).all()
+    assert sizes.min() == 3
+    assert (fc.groupby("series")["period"].last() == total["period"].iloc[-1]).all()
     # The total's median exceeds every series' median in the same period (values > 0).
     last = total.iloc[-1]
     same = fc[fc["period"] == last["period"]]

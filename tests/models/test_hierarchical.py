@@ -146,7 +146,11 @@ def test_group_total_sums_draws_not_bands(pooled_runs):
     widths = sum(v[1] - v[0] for v in q.values())
     total_width = (fc.total["upper_95"] - fc.total["lower_95"]).to_numpy()
     assert (total_width < widths).all()
-    assert len(fc.table) == 3 * len(pooled.names)
+    # each series is forecast from its own next period through the total's last one
+    for name, series in pooled.series.items():
+        rows = fc.table[fc.table["series"] == name]
+        assert len(rows) == 3 + last - (series.axis.origin + series.t_last), name
+        assert rows["period"].iloc[-1] == fc.total["period"].iloc[-1]
 
 
 def _marginal_growth_prior(b, m, s, tau_scale):
