@@ -81,7 +81,7 @@ def _plain_marginal(post, p: dict, state, state_cov, beta_mean, beta_cov, jf, st
     """
     ctx, rho = post._ctx, p["rho"]
     # growth loadings as (H, G): per-node terms then broadcast along rows
-    w, u = (growth_loading(rho, np.asarray(j, dtype=float)).T for j in (jf, steps))
+    w, u = np.split(growth_loading(rho, np.concatenate([jf, steps]).astype(float)).T, 2)
     k = beta_mean.shape[1]
     v = np.zeros(k)
     v[1] = 1.0
@@ -94,7 +94,7 @@ def _plain_marginal(post, p: dict, state, state_cov, beta_mean, beta_cov, jf, st
         c[:, k - season.shape[1]:] = season
     ay, a, b1 = state[:, :, 0], -state[:, 0, 1:], state[:, 1, 1:]
     a[:, 0] += 1.0
-    ba, bb = (np.einsum("gpq,gq->gp", beta_cov, x) for x in (a, b1))
+    ba, bb = np.moveaxis(beta_cov @ np.stack([a, b1], axis=-1), -1, 0)
     bv = (beta_cov.reshape(-1, k) @ v).reshape(-1, k)
 
     def dot(x, y):
@@ -138,14 +138,19 @@ def shock_terms(p: dict, steps: np.ndarray, seasons: int = 0) -> list:
     Growth drift and level shocks ``(G, H)`` for the node parameters ``p``, then, with
     drifting seasons (``sigma_season`` in ``p``, ``seasons`` of them), the seasonal shocks.
     """
-    # a growth shock k steps before h loads (1 - rho^k) / (1 - rho) on the level, so the
-    # shocks add a cumulative sum; worked out as (H, G) arrays, returned as (G, H) views
-    r = p["rho"][None, :]
+    # a growth shock k steps before h loads 1 + rho + ... + rho^(k-1) on the level, so the
+    # shocks add a cumulative sum of its squares; worked out as (H, G) arrays, returned as
+    # (G, H) views
+    rho = p["rho"]
     s = steps.astype(float)
-    k = np.arange(1, int(s.max()) + 1, dtype=float)[:, None]
-    with np.errstate(divide="ignore", invalid="ignore"):
-        load = np.where(r == 1.0, k, (1 - r**k) / (1 - r))
-    shocks = np.cumsum(load**2, axis=0)[steps - 1]
+    squares = np.empty((int(s.max()), rho.size))
+    load, total = np.ones(rho.size), np.zeros(rho.size)
+    for k in range(squares.shape[0]):
+        if k:
+            load = 1.0 + rho * load
+        total = total + load * load
+        squares[k] = total
+    shocks = squares[steps - 1]
     out = [(p["sigma_growth"] ** 2 * shocks).T, (p["sigma_level"] ** 2 * s[:, None]).T]
     if "sigma_season" in p:
         psi2 = np.cumsum(impulse(seasons, int(s.max())) ** 2)[steps - 1]
