@@ -288,13 +288,18 @@ def end_process(code: int) -> None:
     pandas and matplotlib are loaded, a fifth of a forecast's command. The command's files
     are in place when it returns, so with no other thread running the exit handlers run
     (what an ordinary exit runs first: logging, temporary folders), the printed output is
-    flushed and the process ends at once. With other threads (a Dask cluster, a pool) it
-    exits as usual, which waits for them.
+    flushed and the process ends at once. With other threads that an ordinary exit waits
+    for (not daemon threads: a Dask cluster, a pool) it exits as usual. Daemon threads,
+    such as a progress bar's monitor, do not hold it back (an ordinary exit ends the
+    process under them too): after a Ctrl-C the command had handled, the ordinary exit
+    sometimes ended a backtest with signal 2 instead of 130 under load, Python re-sending
+    SIGINT to itself when it counts an interrupt as unhandled.
     """
     import atexit
     import threading
 
-    if threading.active_count() > 1:
+    main = threading.main_thread()
+    if any(t is not main and not t.daemon for t in threading.enumerate()):
         sys.exit(code)
     atexit._run_exitfuncs()
     for stream in (sys.stdout, sys.stderr):

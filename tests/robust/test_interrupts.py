@@ -224,3 +224,24 @@ def test_a_sampler_that_stopped_early_is_never_taken_as_done():
         check_complete(Idata, chains=4, draws=5)
     with pytest.raises(KeyboardInterrupt, match="5 of 6 draws"):
         check_complete(Idata, chains=3, draws=6)
+
+
+def test_a_daemon_thread_does_not_hold_back_the_quick_exit():
+    # A progress bar's monitor is a daemon thread: the command still ends at once with its
+    # code, skipping the interpreter's teardown (which would run the __del__ below). Under
+    # load, the ordinary exit it took before sometimes ended a backtest stopped by Ctrl-C
+    # with signal 2 instead of 130 (Python re-sends SIGINT to itself at the end of a
+    # program run with -m when it saw an interrupt it counts as unhandled).
+    code = (
+        "import threading, time\n"
+        "class Torn:\n"
+        "    def __del__(self):\n"
+        "        print('torn down', flush=True)\n"
+        "kept = Torn()\n"
+        "threading.Thread(target=time.sleep, args=(60,), daemon=True).start()\n"
+        "from bayesgrowth.cli.main import end_process\n"
+        "end_process(130)\n")
+    proc = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                          timeout=60)
+    assert proc.returncode == 130, proc.stderr[-2000:]
+    assert "torn down" not in proc.stdout
