@@ -14,7 +14,8 @@ The rule, on the log scale (a Hampel identifier, Hampel 1974; Pearson 2002):
 2. **Scale.** :data:`MAD_TO_SD` times the median absolute deviation of the series' log
    changes from one period to the next (observations one period apart).
 3. **Out of line** when the deviation exceeds :data:`THRESHOLD` scales and is at least
-   :data:`LEAST_LOG` (a factor of about 3.16 either way).
+   :data:`LEAST_LOG` (a factor of about 3.16 either way; :data:`END_LOG`, a factor of 10,
+   for the first and the last observation, judged from one side).
 4. **Seasons.** For quarterly or monthly data with more than a year of year-on-year changes
    (at least nine quarters, 25 months), the same rule is applied with the same season in
    the neighbouring years (changes over a year for the scale), and a value is out of line
@@ -32,7 +33,8 @@ import math
 
 import numpy as np
 
-__all__ = ["LEAST_LOG", "MAD_TO_SD", "MIN_LENGTH", "REACH", "THRESHOLD", "unusual_values"]
+__all__ = ["END_LOG", "LEAST_LOG", "MAD_TO_SD", "MIN_LENGTH", "REACH", "THRESHOLD",
+           "unusual_values"]
 
 #: Consistency constant of the median absolute deviation: 1.4826 MAD estimates the standard
 #: deviation of normal data (1 / the normal's 75% quantile; Rousseeuw & Croux 1993, Journal
@@ -50,6 +52,14 @@ THRESHOLD = 3.0
 #: the units makes it; a business's own swings (a strong season in a short series, a
 #: calm series' one rough quarter) stay below it. Chosen here, not a published constant.
 LEAST_LOG = 0.5 * math.log(10)
+
+#: The least deviation noted for the first and the last observation: a power of ten. Their
+#: neighbours lie on one side only, so the level they give is an extrapolation through
+#: growth that changes: a young business's first quarters often grew several-fold (2, 15,
+#: 40, 80, ... puts the first value at 1/8 of the level the later ones give). A slip of
+#: the units (a hundred times, a thousandth) is still far beyond it. Chosen here, not a
+#: published constant.
+END_LOG = math.log(10)
 
 #: Neighbours taken on each side.
 REACH = 2
@@ -82,9 +92,16 @@ def _view(y: np.ndarray, t: np.ndarray, lag: int,
     return deviation, scale
 
 
+def _floor(n: int) -> np.ndarray:
+    """The least deviation noted at each of ``n`` positions: :data:`END_LOG` at the ends."""
+    floor = np.full(n, LEAST_LOG)
+    floor[[0, -1]] = END_LOG
+    return floor
+
+
 def _out_of_line(view: tuple[np.ndarray, float]) -> np.ndarray:
     deviation, scale = view
-    return np.abs(deviation) > max(THRESHOLD * scale, LEAST_LOG)
+    return np.abs(deviation) > np.maximum(THRESHOLD * scale, _floor(deviation.size))
 
 
 def unusual_values(values, t, season_length: int | None = None) -> list[tuple[int, float]]:
@@ -127,5 +144,5 @@ def unusual_values(values, t, season_length: int | None = None) -> list[tuple[in
         if year is not None:
             # the changes from one period to the next are mostly the seasons' swings,
             # so their scale says little there: the floor alone applies to them
-            flagged = _out_of_line(year) & (np.abs(near[0]) >= LEAST_LOG)
+            flagged = _out_of_line(year) & (np.abs(near[0]) >= _floor(y.size))
     return [(int(i), float(math.exp(near[0][i]))) for i in np.flatnonzero(flagged)]
