@@ -172,9 +172,20 @@ def observations(n: int, frequency: str) -> str:
 
 
 def fmt_percent(x, decimals: int = 1) -> str:
-    """A rate such as growth (0.366 is 36.6%); "–" when missing."""
+    """A rate such as growth (0.366 is 36.6%); "–" when missing.
+
+    From a thousand times (100,000%) on, three significant figures: ``538,000,000%``, not
+    ``538,079,768.6%`` (and a power of ten as :func:`fmt_number` writes it).
+
+    Examples
+    --------
+    >>> fmt_percent(0.366), fmt_percent(5380797.686)
+    ('36.6%', '538,000,000%')
+    """
     if _missing(x):
         return MISSING
+    if abs(float(x)) >= 1000:
+        return f"{fmt_number(100 * float(x))}%"
     return f"{100 * float(x):,.{decimals}f}%"
 
 
