@@ -149,7 +149,8 @@ def off_day_positions(labels: Sequence[str]) -> list[int]:
 
     The others' day is the month's end when most dates are within :data:`DAY_SLACK`
     days of it, else the most common day; a date more than :data:`DAY_SLACK` days from
-    it is out of line.
+    it is out of line. When fewer than half the dates are near either, the dates share no
+    day (a date each month, on any day): none is out of line.
 
     Parameters
     ----------
@@ -173,4 +174,6 @@ def off_day_positions(labels: Sequence[str]) -> list[int]:
     modal = Counter(day for day, _ in days).most_common(1)[0][0]
     near_day = [abs(day - modal) <= DAY_SLACK for day, _ in days]
     fits = near_end if sum(near_end) >= sum(near_day) else near_day
+    if 2 * sum(fits) < len(fits):  # no day most dates share: each is simply in its month
+        return []
     return [i for i, ok in enumerate(fits) if not ok]

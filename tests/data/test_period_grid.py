@@ -96,3 +96,14 @@ def test_another_day_of_a_month_finds_that_month_in_a_monthly_series():
     s = read_series(_frame(["2024-01-31", "2024-02-29", "2024-03-31", "2024-04-30"]))
     # read with the first label alone, April was one quarter on, so February
     assert s.index_of("2024-04-15") == 3 and s.index_of("2024-03-01") == 2
+
+
+def test_dates_on_any_day_of_each_month_are_monthly_without_a_note():
+    # a date each month on no shared day: each is simply in its month, and a note naming
+    # most of the rows as "on another day than the others" would name no real slip
+    days = [5, 19, 2, 27, 3, 9, 4, 22, 14, 1, 25, 8]
+    dates = [f"2022-{m:02d}-{d:02d}" for m, d in enumerate(days, start=1)]
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")  # no note at all
+        s = read_series(_frame(dates))
+    assert s.axis.frequency == "monthly" and s.n == 12 and s.notes == ()
