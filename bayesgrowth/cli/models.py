@@ -164,14 +164,14 @@ def _check_models(names: list[str], series, priors, spec_options: dict, engine: 
 
 def _table_lines(table) -> list[str]:
     head = (f"{'rank':<5}{'model':<14}{'elpd_loo':>10}{'se':>7}{'elpd_diff':>11}{'dse':>7}"
-            f"{'p_loo':>7}{'weight':>8}{'(90% interval)':>16}{'max k':>7}")
+            f"{'p_loo':>7}{'weight':>8}{'(90% interval)':>20}{'max k':>7}")
     lines = [head]
     for r in table.itertuples():
         flag = "" if r.diagnostics_ok else "  (diagnostics failed)"
         spread = f"({fmt_weight(r.weight_lower_90)} to {fmt_weight(r.weight_upper_90)})"
         lines.append(
             f"{r.rank:<5}{r.model:<14}{r.elpd_loo:>10.1f}{r.se:>7.1f}{r.elpd_diff:>11.1f}"
-            f"{r.dse:>7.1f}{r.p_loo:>7.1f}{fmt_weight(r.weight):>8}{spread:>16}"
+            f"{r.dse:>7.1f}{r.p_loo:>7.1f}{fmt_weight(r.weight):>8}{spread:>20}"
             f"{r.max_pareto_k:>7.2f}"
             f"{flag}"
         )

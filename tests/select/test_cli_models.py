@@ -121,3 +121,18 @@ def test_progress_names_the_engine_each_model_is_fitted_with():
     if "local-trend" in registered_models():
         assert engine_of("local-trend", demo, plain, "auto") == "exact"
         assert engine_of("local-trend", demo, {**plain, "errors": "ar1"}, "auto") == "nuts"
+
+
+def test_the_printed_table_keeps_its_columns_whatever_the_weights():
+    # the widest weight intervals ("< 0.01 to > 0.99") stay in their column
+    from bayesgrowth.cli.models import _table_lines
+
+    table = pd.DataFrame({
+        "rank": [1, 2], "model": ["exponential", "local-trend"], "elpd_loo": [-125.8, -130.0],
+        "se": [3.8, 5.6], "elpd_diff": [0.0, 4.2], "dse": [0.0, 3.6], "p_loo": [2.5, 7.0],
+        "weight": [0.999, 1e-17], "weight_lower_90": [0.38, 1e-17],
+        "weight_upper_90": [0.9999, 0.62], "max_pareto_k": [0.43, 0.91],
+        "diagnostics_ok": [True, True]})
+    head, *rows = _table_lines(table)
+    assert all(len(row) == len(head) for row in rows)
+    assert all(" (" in row for row in rows)  # the interval is set apart from the weight
