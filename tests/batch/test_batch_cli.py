@@ -61,3 +61,22 @@ def test_command_line_entry_point_exit_code(tmp_path, panel_csv):
     )
     assert proc.returncode == 3, proc.stderr
     assert "Traceback" not in proc.stderr
+
+
+def test_cautions_printed_with_the_forecasts(tmp_path, good_csv, capsys):
+    # The invented series have 9 to 14 quarters: a horizon of 3 is within half of every
+    # history, a horizon of 5 more than half of those shorter than 10 quarters only.
+    from bayesgrowth.forecast.forecast import CAUTION
+
+    assert _batch(good_csv, "-H", 3, "--out", tmp_path / "short") == 0
+    out = capsys.readouterr().out
+    assert f"caution: {CAUTION}" in out
+    assert "more than half the history" not in out
+    spans = pd.read_csv(good_csv).groupby("series").size()
+    long = sorted(spans[spans < 10].index)
+    assert long and len(long) < len(spans)
+    assert _batch(good_csv, "-H", 5, "--out", tmp_path / "long") == 0
+    line = [x for x in capsys.readouterr().out.splitlines() if "more than half" in x]
+    assert len(line) == 1
+    assert f"history of {len(long)} of {len(spans)} series" in line[0]
+    assert all(repr(str(name)) in line[0] for name in long)
