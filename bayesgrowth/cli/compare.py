@@ -45,9 +45,10 @@ def run(args) -> int:
     """Run ``compare``; returns the exit code."""
     from pathlib import Path
 
+    from bayesgrowth.cli.cautions import forecast_cautions, print_cautions
     from bayesgrowth.cli.common import UsageError
     from bayesgrowth.comparison import compare_to_forecast
-    from bayesgrowth.forecast.forecast import CAUTION, forecast
+    from bayesgrowth.forecast.forecast import forecast
     from bayesgrowth.leastsq import LeastSquaresError
 
     series = read_input(args)
@@ -75,7 +76,7 @@ def run(args) -> int:
                        *band_phrases(last.to_dict(), fc.levels)]))
     if not fit.diagnostics.ok:
         print("diagnostics: FAILED - " + "; ".join(fit.diagnostics.problems), file=sys.stderr)
-    print(f"caution: {CAUTION}")
+    print_cautions(forecast_cautions(series, args.horizon, fit.spec.model, fit.spec.errors))
     print(f"wrote {', '.join(names)} to {args.out}")
     return diagnostics_exit(args, fit.diagnostics.problems, args.out)
 

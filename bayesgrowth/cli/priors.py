@@ -235,6 +235,9 @@ def run_sensitivity(args) -> int:
         _save(plot_sensitivity(result), stage / "prior_sensitivity.png")
     for line in sensitivity_lines(result):
         print(line)
+    from bayesgrowth.cli.cautions import forecast_cautions, print_cautions
+
+    print_cautions(forecast_cautions(series, args.horizon, options["model"], options["errors"]))
     print(f"wrote {', '.join(SENSITIVITY_NAMES)} to {args.out}")
     from bayesgrowth.cli.acceptance import diagnostics_exit
 

@@ -158,6 +158,26 @@ def test_compare_writes_contract(tmp_path):
     assert (out / "comparison.png").exists()
 
 
+@pytest.mark.parametrize(("model", "horizon"), [((), 12), (("--model", "exponential"), 4)])
+def test_commands_showing_a_forecast_print_the_forecasts_cautions(tmp_path, capsys, model,
+                                                                   horizon):
+    # The demo has 20 quarters: a horizon of 12 is more than half of them, 4 is not; the
+    # exponential curve (independent errors) has its own caution.
+    def cautions(command, *extra):
+        out = tmp_path / f"{command}-{horizon}"
+        assert _run([command, str(demo_path()), "-H", str(horizon), "--out", str(out),
+                     "--quiet", *model, *extra]) == 0
+        return [line.removeprefix("caution: ") for line in capsys.readouterr().out.splitlines()
+                if line.startswith("caution: ")], out
+
+    _, out = cautions("forecast")
+    expected = json.loads((out / "summary.json").read_text())["cautions"]
+    assert any("more than half the history" in c for c in expected) == (horizon == 12)
+    assert any("fixed curve" in c for c in expected) == bool(model)
+    assert cautions("compare")[0] == expected
+    assert cautions("sensitivity")[0] == expected
+
+
 def test_help_documents_every_option(capsys):
     with pytest.raises(SystemExit) as exc:
         main(["forecast", "--help"])
