@@ -14,6 +14,7 @@ from bayesgrowth.plots.style import (
     FORECAST,
     TARGET,
     draw_history,
+    fit_to_figure_width,
     format_value_axis,
     legend,
     set_period_ticks,
@@ -198,5 +199,6 @@ def model_figure(result, method: str, level: int = 80, unit: str | None = None) 
         plot_pit_histogram(pit.to_numpy(dtype=float), ax=axes["pit"], label=method)
     about = result.descriptions.get(method)
     title = f"{literal(result.series.name)}: backtest of {literal(method)}"
-    fig.suptitle(title + (f"\n{literal(about)}" if about else ""), fontsize=11)
+    made = fig.suptitle(title + (f"\n{literal(about)}" if about else ""), fontsize=11)
+    fit_to_figure_width(made)
     return fig

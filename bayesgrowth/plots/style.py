@@ -18,6 +18,7 @@ calibration and model charts read as one family:
 from __future__ import annotations
 
 import re
+import textwrap
 from collections.abc import Sequence
 
 import numpy as np
@@ -303,7 +304,39 @@ def legend(ax: Axes, handles=None, labels=None, *, where: str = "below", **kwarg
     style.update(kwargs)
     made = ax.legend(**style) if handles is None else ax.legend(handles, labels, **style)
     made.set_zorder(10)
+    if where == "below":
+        _wrap_to_width(made.get_texts(), made.get_window_extent, ax.figure)
     return made
+
+
+def fit_to_figure_width(text) -> None:
+    """Wrap a text of a figure (a title) into lines until it fits the figure's width.
+
+    Parameters
+    ----------
+    text : matplotlib.text.Text
+        A text placed in its figure, such as the return of ``Figure.suptitle``.
+    """
+    _wrap_to_width([text], text.get_window_extent, text.figure)
+
+
+def _wrap_to_width(texts, extent, fig, *, share: float = 0.97, shortest: int = 16) -> None:
+    """Wrap the longest line of ``texts`` until ``extent()`` fits ``share`` of the figure.
+
+    A long label (a scenario described in words, a model's description) would
+    otherwise run off the saved image's edges. Each round wraps the lines of the
+    text with the longest line at three quarters of that line's length.
+    """
+    for _ in range(16):
+        if extent().width <= share * fig.bbox.width:
+            return
+        text = max(texts, key=lambda t: max(map(len, t.get_text().splitlines() or [""])))
+        longest = max(map(len, text.get_text().splitlines() or [""]))
+        if longest <= shortest:
+            return
+        width = max(shortest, int(longest * 0.75))
+        text.set_text("\n".join(textwrap.fill(line, width) if len(line) > width else line
+                                for line in text.get_text().splitlines()))
 
 
 _LEVEL = re.compile(r"(\d+(?:\.\d+)?)% .*band")

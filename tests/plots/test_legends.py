@@ -59,3 +59,34 @@ def test_models_chart_legend_covers_nothing_and_writes_a_tiny_weight_readably(de
     assert "default (weight > 0.99): median" in texts
     assert not any("e-" in t for t in texts)
     _clear_of_the_plot(ax)
+
+
+def _inside_the_figure(artist) -> None:
+    """The artist's box lies within its figure's, left to right (the saved image's edges)."""
+    fig = artist.figure
+    fig.canvas.draw()
+    box = artist.get_window_extent()
+    assert box.x0 >= 0 and box.x1 <= fig.bbox.width, (box, fig.bbox)
+
+
+def test_a_long_scenario_label_is_wrapped_inside_the_figure(demo):
+    from bayesgrowth.forecast.scenario import Scenario, apply_scenario
+    from bayesgrowth.plots.scenario import draw_scenario
+
+    fc = bg.forecast(bg.fit_series(demo, engine="exact", seed=1), 8)
+    sc = Scenario(growth_factor=0.5, growth_from="2027Q1", shock_pct=-10, shock_at="2026Q3")
+    words = sc.describe(fc.periods)
+    ax = draw_scenario(plot_fan(fc, target=9000.0), apply_scenario(fc, sc), words)
+    _inside_the_figure(ax.get_legend())
+    texts = [" ".join(t.get_text().split()) for t in ax.get_legend().get_texts()]
+    assert f"Scenario ({words}): median" in texts  # wrapped, not cut
+
+
+def test_backtest_model_title_is_wrapped_inside_the_figure(demo):
+    from bayesgrowth.plots.backtest import model_figure
+
+    # From origin 6 the default model gains seasonal factors on the way: a long description.
+    result = bg.backtest(demo, models=["default"], horizon=1, min_train=6, seed=1)
+    title = model_figure(result, "default")._suptitle
+    _inside_the_figure(title)
+    assert " ".join(result.descriptions["default"].split()) in " ".join(title.get_text().split())
