@@ -205,9 +205,19 @@ def slowdown_warning(forecast, *, recent: int = RECENT_PERIODS, level: int = 80)
            if s.pace_value < s.lower else
            f"below the model's 50% band, and its median ({_num(s.median)}) runs more than "
            f"{FAR_AHEAD:.0%} ahead of it.")
-        + " The model may be running ahead of a slowdown: compare a model whose "
-        "growth can change (the default damped local trend) and check its bands with a backtest."
+        + " The model may be running ahead of a slowdown: " + _advice(forecast)
     )
+
+
+def _advice(forecast) -> str:
+    """What to do about a flagged slowdown, by whether the model's growth can change."""
+    spec = getattr(forecast.fit, "spec", None)
+    if spec is not None and spec.family.states:  # the local trend: growth already moves
+        return ("its growth rate can change, but it calls this pace unlikely: check that "
+                "the latest values are right and complete, and check the model's bands with "
+                "a backtest.")
+    return ("compare a model whose growth can change (the default damped local trend) and "
+            "check its bands with a backtest.")
 
 
 def misfit_lines(forecast) -> list[str]:

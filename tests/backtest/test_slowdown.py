@@ -134,3 +134,18 @@ def test_a_wide_band_does_not_hide_a_median_far_ahead_of_the_recent_pace():
     assert c.pace_value < c.lower_50 and c.median > 1.1 * c.pace_value  # ... yet far behind
     assert c.flagged and "runs more than 10% ahead" in slowdown_warning(fc)
     assert slowdown_warning(bg.GrowthModel(seed=1).fit(s).forecast(4)) is None
+
+
+def test_the_advice_fits_the_model_it_is_given_for():
+    # Three years of about 10% growth, then the value falls to a twelfth (invented): the
+    # default local trend is flagged too, and must not be told to try itself.
+    from bayesgrowth.data.periods import PeriodAxis
+    from bayesgrowth.data.series import GrowthSeries
+
+    s = GrowthSeries(values=np.array([100.0, 110.0, 120.0, 10.0]), t=np.arange(4),
+                     axis=PeriodAxis(style="year", step=1, origin=2024), name="drop")
+    default = slowdown_warning(_forecast(s, **DEFAULT_MODEL))
+    assert default is not None and "(the default damped local trend)" not in default
+    assert "its growth rate can change" in default
+    curve = slowdown_warning(_forecast(s, model="exponential"))
+    assert curve is not None and "(the default damped local trend)" in curve
