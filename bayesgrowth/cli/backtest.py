@@ -21,6 +21,7 @@ from bayesgrowth.cli.common import (
     whole_range,
 )
 from bayesgrowth.cli.output import add_force_option, check_output, staged_output
+from bayesgrowth.cli.reference import check_reference_period
 from bayesgrowth.cli.text import add_unit_option, unit_from_args
 from bayesgrowth.data.export import write_csv
 
@@ -200,7 +201,9 @@ def run(args) -> int:
     names = output_files([c.name for c in choices])
     check_output(args.out, names, [args.file], force=args.force)
     priors = priors_from_args(args)
-    priors.resolve(series.head(args.min_train))  # a bad --reference-period fails here, early
+    check_reference_period(args, series, first_train=args.min_train,
+                           models=[c.options["model"] for c in choices if c.bayesian])
+    priors.resolve(series.head(args.min_train))  # bad priors fail here, early
     from bayesgrowth.backtest.runner import BACKTEST_CAUTION, backtest
 
     say(args, f"backtesting {', '.join(c.name for c in choices)} on {series.name} "

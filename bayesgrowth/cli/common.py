@@ -254,8 +254,10 @@ def read_input(args) -> GrowthSeries:
     for w in caught:
         note(str(w.message))
     from bayesgrowth.cli.limits import check_run_size
+    from bayesgrowth.cli.reference import check_reference_period
 
     check_run_size(args, series.n)  # before any work: the memory the options ask for
+    check_reference_period(args, series)
     return series
 
 

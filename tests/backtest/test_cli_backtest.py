@@ -132,7 +132,11 @@ def test_bad_models_exit_2_with_one_line(tmp_path, capsys, extra, needle):
         (["--engine", "nuts"], "--engine"),
         (["--levels", "80,150"], "--levels"),
         (["--growth-give-or-take", "-1"], "prior options"),
-        (["--reference-period", "1999Q1"], "1999Q1"),
+        (["--reference-period", "1999Q1"], "--reference-period 1999Q1"),
+        # in the series, but after the first training set (10 of 20 quarters)
+        (["--reference-period", "2025Q1"], "no observation of the backtest's first training set"),
+        # the default model anchors its level at the first observation (2021Q1)
+        (["--reference-period", "2021Q2"], "the local-trend model anchors its level"),
     ],
 )
 def test_bad_options_exit_2_with_one_line_and_no_files(tmp_path, capsys, extra, needle):

@@ -104,7 +104,7 @@ def test_bad_input_one_line_exit_2_no_files(tmp_path, case, command):
         (["forecast", "{f}", "-H", "3", "--out", "{o}", "--engine", "gibbs"], "--engine"),
         (["forecast", "{f}", "-H", "3", "--out", "{o}", "--noise", "-3"], "noise"),
         (["forecast", "{f}", "-H", "3", "--out", "{o}", "--reference-period", "1999Q1"],
-         "1999Q1"),
+         "--reference-period 1999Q1: no observation of"),
         (["forecast", "{f}", "-H", "3", "--out", "{o}", "--value-col", "sales"], "--value-col"),
         (["forecast", "{f}", "-H", "3", "--out", "{o}", "--target", "-5"], "--target"),
         (["forecast", "{f}", "-H", "3", "--out", "{o}", "--model", "exponential", "--seasonal",
