@@ -121,6 +121,7 @@ def read_excel_file(path: Path, sheet: str | None = None) -> pd.DataFrame:
     body.columns = header
     body.attrs["title_line"] = title_line(cells.iloc[:3].values.tolist())
     body.attrs["sheet"] = name
+    body.attrs["sheets"] = names
     if sheet is None and len(names) > 1:
         listed = ", ".join(repr(n) for n in names)
         body.attrs["notes"] = [f"{path.name}: read the sheet {name!r}, the first of "

@@ -118,8 +118,8 @@ def read_panel(
         frame, source, offset = read_csv_file(path, sheet=sheet), path.name, 2
         for note in frame.attrs.get("notes", ()):  # the sheet read: once, not per series
             warnings.warn(note, stacklevel=2)
-    require_columns(frame, source, ((series_col, "--series-col"),
-                                    (period_col, "--period-col"), (value_col, "--value-col")))
+    frame = require_columns(frame, source, ((series_col, "--series-col"), (period_col,
+                                            "--period-col"), (value_col, "--value-col")))
     if len(frame) == 0:
         raise InputError(f"{source}: no rows below the header; add one row per series and period")
     names = _series_names(frame, path, series_col, source, offset)

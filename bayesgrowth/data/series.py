@@ -302,11 +302,21 @@ def read_series(
                             decimal=decimal, fiscal_start=fiscal_start)
 
 
-def require_columns(frame: pd.DataFrame, source: str, columns) -> None:
+def require_columns(frame: pd.DataFrame, source: str, columns) -> pd.DataFrame:
     """Refuse a table without one of ``columns`` (pairs of name and the option that sets it).
 
-    A file that seems to start with a title line above the header (``attrs["title_line"]``,
-    :func:`bayesgrowth.data.formats.title_line`) is told to delete that line instead.
+    A column named alike but for case and surrounding spaces (``Period`` for
+    ``period``), when only one is, is taken for it. A file that seems to start with a
+    title line above the header (``attrs["title_line"]``,
+    :func:`bayesgrowth.data.formats.title_line`) is told to delete that line instead;
+    a workbook of several sheets (``attrs["sheets"]``) is told which sheet was read
+    and that ``--sheet`` names another.
+
+    Returns
+    -------
+    pandas.DataFrame
+        ``frame`` with such columns renamed to the names asked for (a new table;
+        ``frame`` itself is left as it is).
     """
     from bayesgrowth.data.formats import title_message
 
@@ -315,14 +325,23 @@ def require_columns(frame: pd.DataFrame, source: str, columns) -> None:
     if title and title["title"] in {col for col, _ in columns}:
         title = None  # a header naming one column only, not a title
     for col, option in columns:
-        if col not in frame.columns:
+        alike = [c for c in frame.columns if str(c).strip().casefold() == col.casefold()]
+        if col not in frame.columns and len(alike) == 1:  # 'Period' for period
+            frame = frame.rename(columns={alike[0]: col})
+        elif col not in frame.columns:
             if title and (col in title["header"] or title["fits"]):
                 raise InputError(title_message(source, title))
             have = ", ".join(repr(str(c)) for c in frame.columns)
+            sheets = frame.attrs.get("sheets", [])
+            where = f" in the sheet {frame.attrs['sheet']!r}" if len(sheets) > 1 else ""
+            other = (f", or another of its {len(sheets)} sheets ("
+                     + ", ".join(repr(n) for n in sheets) + ") with --sheet"
+                     if len(sheets) > 1 else "")
             raise InputError(
-                f"{source}: no column {col!r} (columns are {have}); name the right one with "
-                f"{option}"
+                f"{source}: no column {col!r}{where} (columns are {have}); name the right one "
+                f"with {option}{other}"
             )
+    return frame
 
 
 def _frame_to_series(
@@ -335,7 +354,8 @@ def _frame_to_series(
     decimal: str = "auto",
     fiscal_start: int | None = None,
 ) -> GrowthSeries:
-    require_columns(frame, source, ((period_col, "--period-col"), (value_col, "--value-col")))
+    frame = require_columns(frame, source, ((period_col, "--period-col"),
+                                            (value_col, "--value-col")))
     # Rows as the user counts them: CSV line numbers (header = 1), or DataFrame positions.
     rows = [i + header_offset for i in range(len(frame))]
     return _from_columns(

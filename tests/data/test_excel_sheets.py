@@ -94,3 +94,20 @@ def test_pool_reads_the_sheet_named(tmp_path, capsys):
     assert main(["pool", str(src), "-H", "1", "--out", str(out), "--sheet", "Neither"]) == 2
     assert "its sheets are 'Both', 'One'" in capsys.readouterr().err
     assert not out.exists()
+
+
+def test_a_first_sheet_without_the_columns_points_to_the_others(tmp_path, capsys):
+    src = tmp_path / "book.xlsx"
+    with pd.ExcelWriter(src) as writer:
+        pd.DataFrame({"note": ["invented figures"]}).to_excel(writer, sheet_name="Cover",
+                                                              index=False)
+        pd.DataFrame({"period": QUARTERS, "value": [1, 2, 3, 4]}).to_excel(
+            writer, sheet_name="Revenue", index=False)
+    out = tmp_path / "out"
+    assert main(["forecast", str(src), "-H", "1", "--out", str(out), "--quiet"]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert err == ["bayesgrowth: error: book.xlsx: no column 'period' in the sheet 'Cover' "
+                   "(columns are 'note'); name the right one with --period-col, or another "
+                   "of its 2 sheets ('Cover', 'Revenue') with --sheet"]
+    assert not out.exists()
+

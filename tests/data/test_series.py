@@ -66,6 +66,16 @@ def test_bad_input_names_row_and_column(tmp_path, text, match):
         read_series(_csv(tmp_path, text))
 
 
+def test_columns_named_alike_but_for_case_are_found(tmp_path):
+    s = read_series(_csv(tmp_path, "Period, VALUE \n2024Q1,10\n2024Q2,11\n2024Q3,12\n"))
+    assert s.labels == ["2024Q1", "2024Q2", "2024Q3"] and s.values.tolist() == [10, 11, 12]
+    frame = pd.DataFrame({"Period": ["2024Q1", "2024Q2", "2024Q3"], "Value": [1.0, 2.0, 4.0]})
+    assert read_series(frame).values.tolist() == [1.0, 2.0, 4.0]
+    assert list(frame.columns) == ["Period", "Value"]  # the caller's table is left as it is
+    with pytest.raises(InputError, match=r"no column 'value' \(columns are 'Value', 'VALUE'"):
+        read_series(_csv(tmp_path, "Value,VALUE,period\n1,1,2024Q1\n2,2,2024Q2\n3,3,2024Q3\n"))
+
+
 def test_missing_file(tmp_path):
     with pytest.raises(InputError, match="no such file"):
         read_series(tmp_path / "nope.csv")
