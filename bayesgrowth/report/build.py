@@ -174,16 +174,22 @@ def _add_comparison(parts: ReportParts, fc, unit: str | None) -> None:
 
 def _add_backtest(parts: ReportParts, series: GrowthSeries, settings: tuple[int, int], *,
                   engine: str, seed: int, priors, fit_options: dict | None) -> None:
-    """The calibration section: a backtest of the engine beside two plain methods."""
+    """The calibration section: a backtest of the model beside two plain methods.
+
+    The model is named :data:`~bayesgrowth.report.html.BACKTEST_NAME` in the section's
+    verdicts and chart, whatever its engine.
+    """
     from bayesgrowth.backtest import backtest
     from bayesgrowth.plots.backtest import calibration_figure
+    from bayesgrowth.report.html import BACKTEST_NAME
 
     min_train, bt_h = settings
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
-        result = backtest(series, methods=(engine, "log-linear", "naive"), horizon=bt_h,
-                          min_train=min_train, levels=parts.forecast.levels, seed=seed,
-                          priors=priors, model_options=fit_options)
+        models = {BACKTEST_NAME: {**(fit_options or {}), "engine": engine},
+                  "log-linear": "log-linear", "naive": "naive"}
+        result = backtest(series, models=models, horizon=bt_h, min_train=min_train,
+                          levels=parts.forecast.levels, seed=seed, priors=priors)
     parts.backtest = result
     parts.calibration_chart = figure_data_uri(calibration_figure(result))
 

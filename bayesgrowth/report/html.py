@@ -31,7 +31,10 @@ from bayesgrowth.report.words import (
     period_noun,
 )
 
-__all__ = ["ReportParts", "render_report", "SECTIONS"]
+__all__ = ["BACKTEST_NAME", "ReportParts", "render_report", "SECTIONS"]
+
+#: The reported model's name in the backtest section (its verdicts and chart).
+BACKTEST_NAME = "this model"
 
 #: Section ids, in page order; tests check that each is present.
 SECTIONS = (
@@ -191,7 +194,7 @@ def _headline(p: ReportParts, summary: dict) -> str:
                      f"{_e(fin['period'])}: <strong>{fmt_probability(p_last)}</strong>.")
     out = '<p class="headline">' + " ".join(parts) + "</p>"
     if p.backtest is not None:
-        verdict = p.backtest.verdicts().get(summary["engine"])
+        verdict = p.backtest.verdicts().get(BACKTEST_NAME)
         if verdict and verdict != "calibrated":
             out += (f'<p class="warn">The backtest on this history judged this model\'s bands: '
                     f"<strong>{_e(verdict)}</strong>. Read the band above with that in mind "

@@ -87,6 +87,16 @@ def test_headline_caution_and_reproduction(page):
     assert "bands too narrow" in page or "calibrated" in page
 
 
+def test_backtest_section_names_the_model_not_its_engine(page):
+    # The report's own model is backtested beside two plain methods: its verdict reads as
+    # the model's, in the headline and the section, not as an engine's ("exact: ...").
+    from bayesgrowth.report.html import BACKTEST_NAME
+
+    items = re.findall(r"<li>([^:<]+): ", page.split('id="calibration"')[1].split("</ul>")[0])
+    assert items == [BACKTEST_NAME, "log-linear", "naive"]
+    assert "<li>exact:" not in page
+
+
 def test_user_text_is_escaped():
     evil = "<script>alert(1)</script>"
     frame = pd.DataFrame({"period": ["2024Q1", "2024Q2", "2024Q3", "2024Q4"],
