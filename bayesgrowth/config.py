@@ -44,7 +44,8 @@ def check_levels(levels) -> tuple[int, ...]:
     for level in levels:
         value = float(level)
         if not (0 < value < 100) or value != int(value):
-            raise ValueError(f"band levels must be whole percentages between 1 and 99, got {level}")
+            raise ValueError("band levels must be whole percentages between 1 and 99, got "
+                             f"{value:.15g}")
         out.append(int(value))
     if not out:
         raise ValueError("give at least one band level")

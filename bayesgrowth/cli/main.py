@@ -191,7 +191,7 @@ def _run_forecast(args, series: GrowthSeries | None = None) -> int:
     series = series or read_input(args)
     series.check_horizon(args.horizon)
     if args.target is not None and not (args.target > 0 and math.isfinite(args.target)):
-        raise UsageError(f"--target {args.target}: must be a finite value above 0")
+        raise UsageError(f"--target {args.target:.15g}: must be a finite value above 0")
     if not 0 < args.target_probability < 1:
         raise UsageError(f"--target-probability {args.target_probability}: must be between 0 and 1")
     min_train = check_min_train(args, series.n)

@@ -48,7 +48,7 @@ def run(args) -> int:
 
     series = read_input(args)
     if args.target is not None and not (args.target > 0 and math.isfinite(args.target)):
-        raise UsageError(f"--target {args.target}: must be a finite value above 0")
+        raise UsageError(f"--target {args.target:.15g}: must be a finite value above 0")
     if not 0 < args.target_probability < 1:
         raise UsageError(f"--target-probability {args.target_probability}: must be between 0 "
                          "and 1")
