@@ -78,8 +78,14 @@ def run(args) -> int:
         if not issubclass(w.category, SamplingWarning):
             warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
     fc = parts.forecast
-    for line in forecast_lines(fc, fc.summary(args.target, args.target_probability))[:-1]:
+    summary = fc.summary(args.target, args.target_probability)
+    for line in forecast_lines(fc, summary)[:-1]:
         print(line)  # the page's headline; its sampling checks are in its diagnostics section
     print(f"wrote report.html to {args.out}")
+    from bayesgrowth.forecast.forecast import CAUTION
+
+    for caution in summary["cautions"]:  # the page's own (long horizon, fixed curve, ...)
+        if caution != CAUTION:
+            print(f"caution: {caution}")
     print("caution: the report extrapolates past growth; it is not investment advice")
     return diagnostics_exit(args, failed, args.out)

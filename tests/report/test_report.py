@@ -116,6 +116,21 @@ def test_same_input_and_seed_same_report(demo):
     assert re.sub(r"\d{4}-\d{2}-\d{2} \d{2}:\d{2} UTC", "t", c) == a
 
 
+def test_cli_report_prints_the_pages_cautions(tmp_path, capsys):
+    # The demo has 20 quarters: a horizon of 12 is more than half of them; the page lists
+    # the caution, and the command prints it with the short general one.
+    from bayesgrowth.data.demo import demo_path
+
+    out = tmp_path / "rep"
+    assert main(["report", str(demo_path()), "-H", "12", "--engine", "exact", "--out",
+                 str(out), "--quiet", "--no-backtest"]) == 0
+    cautions = [line for line in capsys.readouterr().out.splitlines()
+                if line.startswith("caution: ")]
+    assert len(cautions) == 2 and "more than half the history (20 periods)" in cautions[0]
+    assert cautions[0].removeprefix("caution: ") in (out / "report.html").read_text()
+    assert cautions[1].endswith("it is not investment advice")
+
+
 def test_cli_report(tmp_path):
     from bayesgrowth.data.demo import demo_path
 
