@@ -75,7 +75,8 @@ def add_parser(sub) -> None:
         "--models",
         default=None,
         metavar="LIST",
-        help=f"comma-separated curves to compare, from {available} [all but "
+        help=f"comma-separated curves to compare, from {available} (default: the default "
+        f"model, with the shared options) [all but "
         f"{', '.join(slow_by_default())}]. With --engine exact the curves an exact engine "
         f"fits ({', '.join(exact_families())}) use it and the others NUTS",
     )
@@ -90,6 +91,7 @@ def exact_families() -> tuple[str, ...]:
 
 
 def _model_list(text: str | None) -> list[str]:
+    from bayesgrowth.config import DEFAULT_MODEL
     from bayesgrowth.models.spec import ModelSpec
     from bayesgrowth.select.averaging import registered_models
 
@@ -101,12 +103,15 @@ def _model_list(text: str | None) -> list[str]:
         raw = raw.strip()
         if not raw:
             continue
+        if raw == "default":  # as in backtest --models: the default model's family
+            raw = DEFAULT_MODEL["model"]
         try:
             name = ModelSpec(model=raw).model
         except ValueError:
             name = raw
         if name not in known:
-            raise UsageError(f"--models: unknown model {raw!r}; available: {', '.join(known)}")
+            raise UsageError(f"--models: unknown model {raw!r}; available: {', '.join(known)} "
+                             f"(default: {DEFAULT_MODEL['model']})")
         if name in names:
             raise UsageError(f"--models: {name} is named twice")
         names.append(name)

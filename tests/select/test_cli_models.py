@@ -33,6 +33,15 @@ def test_models_exact_on_the_demo(tmp_path, capsys):
     assert (out / "models.png").read_bytes()[:4] == b"\x89PNG"
 
 
+def test_models_takes_default_as_backtest_does(tmp_path):
+    # backtest --models names the default model "default"; models takes the same name
+    out = tmp_path / "out"
+    assert main(["models", str(demo_path()), "-H", "3", "--out", str(out), "--engine", "exact",
+                 "--models", "default,exponential", "--quiet"]) == 0
+    comp = pd.read_csv(out / "model_comparison.csv")
+    assert sorted(comp["model"]) == ["exponential", "local-trend"]
+
+
 def test_models_same_seed_same_files(tmp_path):
     for name in ("a", "b"):
         assert main(["models", str(demo_path()), "-H", "3", "--out", str(tmp_path / name),
@@ -46,6 +55,7 @@ def _bad_usage_cases():
     cases = [
         (["--models", "exponential,cubic"], "unknown model 'cubic'"),
         (["--models", "exponential,exponential"], "named twice"),
+        (["--models", "default,local-trend"], "local-trend is named twice"),
         (["--models", ","], "name at least one"),
         (["--noise", "-5"], "prior options"),
         (["--horizon", "0"], "horizon"),
