@@ -59,6 +59,7 @@ def test_summary_and_terminal_say_once_from_which_period(long_run):
     assert len(said) == 1 and f"too large to compute from period {first} on" in said[0]
     assert "read the median" in said[0]
     assert printed.count("predictive mean") == 1 and f"caution: {said[0]}" in printed
+    assert "final_period.mean" not in printed  # not said a second time as a missing number
     for word in ("inf", "nan"):
         assert word not in printed.lower().split()
 
