@@ -139,28 +139,6 @@ def run(args) -> int:
     return _report(args, result, order, settings, panel)
 
 
-def _cautions(panel: dict, done, horizon: int) -> list[str]:
-    """The cautions of a batch with forecasts: a long horizon, then the general one.
-
-    ``panel`` maps series names to series, ``done`` names the series forecast. The
-    horizon caution names the series whose history (first to last period) is less than
-    twice the horizon, the rule of ``extrapolation_caution`` in
-    :mod:`bayesgrowth.forecast.forecast`.
-    """
-    from bayesgrowth.forecast.forecast import CAUTION, HORIZON_SHARE
-
-    done = {str(name) for name in done}
-    long = [name for name, s in panel.items() if str(name) in done
-            and horizon > HORIZON_SHARE * (s.t_last - int(s.t[0]) + 1)]
-    out = []
-    if long:
-        shown = ", ".join(repr(name) for name in long[:5]) + (", ..." if len(long) > 5 else "")
-        out.append(f"The horizon ({horizon} periods) is more than half the history of "
-                   f"{len(long)} of {len(done)} series ({shown}): their forecasts are "
-                   "extrapolated far beyond the data, so treat their later periods as scenarios.")
-    return [*out, CAUTION]
-
-
 def _report(args, result, order: list[str], settings, panel: dict) -> int:
     """Print what the run did (counts, recalibration, failures); returns the exit code."""
     from bayesgrowth.batch.store import OUTPUTS
@@ -181,8 +159,12 @@ def _report(args, result, order: list[str], settings, panel: dict) -> int:
     if n_bad > 5:
         print(f"... and {n_bad - 5} more in failures.csv", file=sys.stderr)
     if n_done:
-        for caution in _cautions(panel, result.summary["series"], settings.horizon):
-            print(f"caution: {caution}")
+        from bayesgrowth.cli.cautions import panel_cautions, print_cautions
+
+        options = settings.model_options
+        print_cautions(panel_cautions(panel, settings.horizon, result.summary["series"],
+                                      options.get("model"), options.get("errors",
+                                                                        "independent")))
     print(f"wrote {', '.join(OUTPUTS)} to {args.out}")
     if n_bad:
         return EXIT_SOME_FAILED

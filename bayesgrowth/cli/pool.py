@@ -159,7 +159,6 @@ def run(args) -> int:
     """Run ``pool``; returns the exit code."""
     import warnings
 
-    from bayesgrowth.forecast.forecast import CAUTION
     from bayesgrowth.forecast.pooled import forecast_pooled
     from bayesgrowth.inference.pooled import fit_pooled
     from bayesgrowth.models.hierarchical import GroupPrior
@@ -190,9 +189,12 @@ def run(args) -> int:
         print(line)
     if not fit.diagnostics.ok:
         print("  sampling checks: FAILED - " + "; ".join(fit.diagnostics.problems))
-    for caution in _cautions(pf):
-        print(f"caution: {caution}")
-    print(f"caution: {CAUTION}")
+    from bayesgrowth.cli.cautions import panel_cautions, print_cautions
+
+    last = max(s.t_last for s in panel.values())  # a series ending sooner goes further
+    steps = {name: args.horizon + last - s.t_last for name, s in panel.items()}
+    general = panel_cautions(panel, steps, model="exponential", errors=args.errors)
+    print_cautions([*general[:-1], *_cautions(pf), general[-1]])
     written = [n for n in NAMES if n != "group_total.csv" or pf.total is not None]
     print(f"wrote {', '.join(written)} to {args.out}")
     return diagnostics_exit(args, list(fit.diagnostics.problems), args.out)

@@ -80,3 +80,11 @@ def test_cautions_printed_with_the_forecasts(tmp_path, good_csv, capsys):
     assert len(line) == 1
     assert f"history of {len(long)} of {len(spans)} series" in line[0]
     assert all(repr(str(name)) in line[0] for name in long)
+
+
+def test_a_fixed_curve_batch_gets_its_caution(tmp_path, good_csv, capsys):
+    # as forecast --model exponential prints it (independent errors: bands too narrow)
+    from bayesgrowth.forecast.forecast import FIXED_CURVE_CAUTION
+
+    assert _batch(good_csv, "-H", 3, "--out", tmp_path / "o", "--model", "exponential") == 0
+    assert f"caution: {FIXED_CURVE_CAUTION}" in capsys.readouterr().out

@@ -52,10 +52,8 @@ def test_pool_forecasts_every_series_and_their_total(tmp_path, panel_csv, capsys
     assert "group growth per quarter" in printed and "not investment advice" in printed
 
 
-def test_pool_total_covers_periods_every_series_has_a_forecast_for(tmp_path, monkeypatch,
-                                                                   capsys):
-    # The fit is written down (tests/written_pooled.py), so no sampling: what is checked is
-    # which periods the command adds up and writes, with one series ending sooner.
+def _pool_written(tmp_path, monkeypatch, horizon: int) -> int:
+    """``pool`` on 'late' (16 quarters) and 'early' (13) with the written-down fit, to p/."""
     from written_pooled import quarters, written_pooled_fit
 
     import bayesgrowth.inference.pooled as pooled
@@ -66,8 +64,16 @@ def test_pool_total_covers_periods_every_series_has_a_forecast_for(tmp_path, mon
     pd.DataFrame(rows, columns=["series", "period", "value"]).to_csv(path, index=False)
     monkeypatch.setattr(pooled, "fit_pooled", lambda panel, priors, **_: written_pooled_fit(
         dict(panel)))
+    return main(["pool", str(path), "-H", str(horizon), "--out", str(tmp_path / "p"),
+                 "--quiet"])
+
+
+def test_pool_total_covers_periods_every_series_has_a_forecast_for(tmp_path, monkeypatch,
+                                                                   capsys):
+    # The fit is written down (tests/written_pooled.py), so no sampling: what is checked is
+    # which periods the command adds up and writes, with one series ending sooner.
     out = tmp_path / "p"
-    assert main(["pool", str(path), "-H", "3", "--out", str(out), "--quiet"]) == 0
+    assert _pool_written(tmp_path, monkeypatch, 3) == 0
     total = pd.read_csv(out / "group_total.csv")
     assert total["period"].tolist() == ["2026Q1", "2026Q2", "2026Q3"]
     fc = pd.read_csv(out / "pooled_forecast.csv")
@@ -77,3 +83,19 @@ def test_pool_total_covers_periods_every_series_has_a_forecast_for(tmp_path, mon
     printed = capsys.readouterr().out
     assert "caution: 'early' ends in 2025Q1, 3 period(s) before the latest series (2025Q4)" \
         in printed  # a caution about the result: --quiet keeps it
+
+
+def test_pool_prints_the_cautions_a_forecast_of_its_curves_prints(tmp_path, monkeypatch,
+                                                                  capsys):
+    # The pooled model is the exponential curve: with independent errors its bands get the
+    # fixed curve's caution, as forecast --model exponential does. A horizon of 6 is not
+    # more than half of the 16-quarter series' history; the 13-quarter series ends 3
+    # quarters sooner and is forecast 9 quarters, more than half of its history.
+    from bayesgrowth.forecast.forecast import CAUTION, FIXED_CURVE_CAUTION
+
+    assert _pool_written(tmp_path, monkeypatch, 6) == 0
+    cautions = [line.removeprefix("caution: ") for line in capsys.readouterr().out.splitlines()
+                if line.startswith("caution: ")]
+    assert cautions[0] == FIXED_CURVE_CAUTION and cautions[-1] == CAUTION
+    assert cautions[1].startswith("The horizon (9 periods) is more than half the history "
+                                  "of 1 of 2 series ('early')")
