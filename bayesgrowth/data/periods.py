@@ -230,17 +230,24 @@ def _ordinal(style: str, label: str, compact: bool) -> tuple[int, int]:
     return value, 1
 
 
+#: Labels of a spreadsheet's summary rows below a series (a total, an average).
+_SUMMARY_ROW = re.compile(r"(grand\s+)?(total|sum|average|avg|mean)s?\b.*", re.IGNORECASE)
+
+
 def _styles(labels: list[str]) -> str:
     """The one label style of all ``labels``, or a :class:`PeriodError` at the first misfit."""
     styles = []
     for i, label in enumerate(labels):
         style = style_of(label)
         if style is None:
+            summary = _SUMMARY_ROW.fullmatch(label.strip())
             raise PeriodError(
                 i,
                 f"period {label!r} is not a quarter (2024Q1, Q1 2024, FY24 Q1), month "
                 "(2024-01, Jan 2024, 01/2024), "
-                "ISO date (2024-03-31), year or whole number (digits 0-9)",
+                "ISO date (2024-03-31), year or whole number (digits 0-9)"
+                + ("; a total or average row belongs outside the series: delete it"
+                   if summary else ""),
             )
         styles.append(style)
     first = styles[0]

@@ -59,6 +59,11 @@ def test_dataframe_and_series_input():
         ("quarter,value\n2024Q1,10\n2024Q2,11\n2024Q3,12\n", r"no column 'period'.*--period-col"),
         ("period,value\n2024Q1,10\n2024Q2,inf\n2024Q3,12\n", r"row 3.*not a finite number"),
         ("", r"empty"),
+        ("period,value\n2024Q1,10\n2024Q2,11\n2024Q3,12\nTotal,33\n",
+         r"row 5, column 'period': period 'Total' is not a quarter.*a total or average row "
+         r"belongs outside the series: delete it"),
+        ("period,value\n2024Q1,10\n2024Q2,11\n2024Q3,12\nTotalled,33\n",
+         r"'Totalled' is not a quarter .*digits 0-9\)$"),  # a word that is no summary
     ],
 )
 def test_bad_input_names_row_and_column(tmp_path, text, match):
