@@ -77,9 +77,9 @@ def add_parser(subparsers) -> argparse.ArgumentParser:
     p = subparsers.add_parser(
         "backtest",
         help="rolling-origin backtest: do the bands hold what they state?",
-        description="Refit each method at every forecast origin of FILE, score its forecasts "
-        "of the next H periods, and write backtest_forecasts.csv, backtest_scores.csv, "
-        "backtest_diagnostics.csv, calibration.png and backtest_fans.png.",
+        description="Refit each model at every forecast origin of FILE, score its forecasts "
+        f"of the next H periods, and write {', '.join(OUTPUT_FILES[:-1])} and "
+        f"{OUTPUT_FILES[-1]}, and backtest_model_NAME.png for each model.",
         conflict_handler="resolve",
     )
     add_input(p)

@@ -48,7 +48,8 @@ def add_parser(subparsers) -> argparse.ArgumentParser:
         "independently, and write forecast.csv, summary.csv and failures.csv to --out. "
         "Results are recorded as they finish: run the same command again to resume an "
         "interrupted batch. Exit code 0: all series done; 3: some series failed (see "
-        "failures.csv); 2: bad input or usage.",
+        "failures.csv); 4: sampling diagnostics failed for some series (forecasts written; "
+        "--accept-warnings makes it 0); 2: bad input or usage.",
     )
     add_input(p, panel=True)
     add_model_options(p)

@@ -192,3 +192,11 @@ def test_min_train_advice_names_a_value_the_command_accepts(tmp_path, capsys):
     code, _, _ = _run(["backtest", str(path), "-H", "1", "--min-train", "3",
                        "--out", str(tmp_path / "yes"), "--quiet", "--methods", "naive"], capsys)
     assert code == 0
+
+
+def test_help_names_every_file_the_command_writes(capsys):
+    with pytest.raises(SystemExit):
+        main(["backtest", "--help"])
+    text = " ".join(capsys.readouterr().out.split())
+    for name in [*OUTPUT_FILES, "backtest_model_NAME.png"]:
+        assert name in text, name

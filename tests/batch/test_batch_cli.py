@@ -4,6 +4,7 @@ import subprocess
 import sys
 
 import pandas as pd
+import pytest
 
 from bayesgrowth.cli import main
 from bayesgrowth.cli.batch import EXIT_SOME_FAILED
@@ -88,3 +89,13 @@ def test_a_fixed_curve_batch_gets_its_caution(tmp_path, good_csv, capsys):
 
     assert _batch(good_csv, "-H", 3, "--out", tmp_path / "o", "--model", "exponential") == 0
     assert f"caution: {FIXED_CURVE_CAUTION}" in capsys.readouterr().out
+
+
+def test_help_gives_every_exit_code(capsys):
+    # the exit codes of docs/many-series.md other than 1 (unexpected) and 130/143 (stopped)
+    with pytest.raises(SystemExit):
+        main(["batch", "--help"])
+    text = " ".join(capsys.readouterr().out.split())
+    for code in ("0: all series done", "3: some series failed", "4: sampling diagnostics "
+                 "failed", "2: bad input"):
+        assert code in text, code
