@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import html
 import math
+import numbers
 from collections.abc import Sequence
 from decimal import ROUND_CEILING, ROUND_FLOOR, ROUND_HALF_UP, Decimal
 
@@ -169,6 +170,19 @@ def observations(n: int, frequency: str) -> str:
     ('20 quarterly observations', '20 observations')
     """
     return f"{n} {frequency} observations" if frequency != "per period" else f"{n} observations"
+
+
+def fmt_given(x) -> str:
+    """A value as a person typed it, for an error message: ``-4`` for -4.0, ``0.5``, ``None``.
+
+    Examples
+    --------
+    >>> fmt_given(-4.0), fmt_given(0.25), fmt_given(None)
+    ('-4', '0.25', 'None')
+    """
+    if isinstance(x, numbers.Real) and not isinstance(x, bool):
+        return f"{x:.15g}"
+    return str(x)
 
 
 def fmt_percent(x, decimals: int = 1) -> str:

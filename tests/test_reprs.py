@@ -169,3 +169,11 @@ def test_huge_numbers_are_written_with_a_power_of_ten():
     assert fmt_number(999e12) == "999,000,000,000,000"
     assert fmt_number(1e15) == "1e15"
     assert fmt_interval(1.1234e266, 1.1011e303) == "1.12e266 to 1.11e303"
+
+
+def test_error_messages_echo_numbers_as_typed():
+    # "-4", not "-4.0": the user typed --noise -4
+    from bayesgrowth.priors.stated import NoisePrior
+
+    with pytest.raises(ValueError, match=r"got -4$"):
+        NoisePrior(typical_pct=-4.0)

@@ -27,6 +27,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from bayesgrowth.display import fmt_given
+
 __all__ = ["Scenario", "apply_scenario", "scenario_shift"]
 
 
@@ -55,9 +57,11 @@ class Scenario:
 
     def __post_init__(self) -> None:
         if not math.isfinite(self.growth_factor):
-            raise ValueError(f"growth factor must be a finite number, got {self.growth_factor}")
+            raise ValueError("growth factor must be a finite number, got "
+                             f"{fmt_given(self.growth_factor)}")
         if not (math.isfinite(self.shock_pct) and self.shock_pct > -100):
-            raise ValueError(f"shock must be a percentage above -100, got {self.shock_pct}")
+            raise ValueError("shock must be a percentage above -100, "
+                             f"got {fmt_given(self.shock_pct)}")
 
     @property
     def is_base(self) -> bool:

@@ -8,6 +8,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+from bayesgrowth.display import fmt_given
+
 __all__ = [
     "CeilingPrior",
     "GrowthPrior",
@@ -45,11 +47,12 @@ class InitialValuePrior:
     def __post_init__(self) -> None:
         _check(
             math.isfinite(self.give_or_take_pct) and self.give_or_take_pct >= 0,
-            f"initial-value give-or-take must be >= 0 percent, got {self.give_or_take_pct}",
+            "initial-value give-or-take must be >= 0 percent, "
+            f"got {fmt_given(self.give_or_take_pct)}",
         )
         _check(
             self.value is None or (math.isfinite(self.value) and self.value > 0),
-            f"initial value must be > 0, got {self.value}",
+            f"initial value must be > 0, got {fmt_given(self.value)}",
         )
 
 
@@ -73,11 +76,11 @@ class GrowthPrior:
     def __post_init__(self) -> None:
         _check(
             math.isfinite(self.center_pct) and self.center_pct > -100,
-            f"growth centre must be above -100 percent, got {self.center_pct}",
+            f"growth centre must be above -100 percent, got {fmt_given(self.center_pct)}",
         )
         _check(
             math.isfinite(self.give_or_take_pts) and self.give_or_take_pts > 0,
-            f"growth give-or-take must be > 0 points, got {self.give_or_take_pts}",
+            f"growth give-or-take must be > 0 points, got {fmt_given(self.give_or_take_pts)}",
         )
 
 
@@ -96,7 +99,7 @@ class NoisePrior:
     def __post_init__(self) -> None:
         _check(
             math.isfinite(self.typical_pct) and self.typical_pct > 0,
-            f"typical noise must be > 0 percent, got {self.typical_pct}",
+            f"typical noise must be > 0 percent, got {fmt_given(self.typical_pct)}",
         )
 
 
@@ -125,16 +128,18 @@ class CeilingPrior:
     def __post_init__(self) -> None:
         _check(
             self.value is None or (math.isfinite(self.value) and self.value > 0),
-            f"ceiling must be > 0, got {self.value}; state the market size on the data's scale",
+            "ceiling must be > 0, "
+            f"got {fmt_given(self.value)}; state the market size on the data's "
+            "scale",
         )
         _check(
             math.isfinite(self.multiple) and self.multiple > 1,
             f"ceiling multiple must be above 1 (the ceiling lies above the latest value), "
-            f"got {self.multiple}",
+            f"got {fmt_given(self.multiple)}",
         )
         _check(
             math.isfinite(self.give_or_take_pct) and self.give_or_take_pct > 0,
-            f"ceiling give-or-take must be > 0 percent, got {self.give_or_take_pct}",
+            f"ceiling give-or-take must be > 0 percent, got {fmt_given(self.give_or_take_pct)}",
         )
 
 
@@ -158,12 +163,12 @@ class HalfLifePrior:
     def __post_init__(self) -> None:
         _check(
             self.periods is None or (math.isfinite(self.periods) and self.periods > 0),
-            f"half-life must be > 0 periods, got {self.periods}; "
+            f"half-life must be > 0 periods, got {fmt_given(self.periods)}; "
             "give the number of periods over which growth halves",
         )
         _check(
             math.isfinite(self.factor) and self.factor > 1,
-            f"half-life factor must be above 1, got {self.factor}",
+            f"half-life factor must be above 1, got {fmt_given(self.factor)}",
         )
 
 
@@ -185,22 +190,23 @@ class LongRunGrowthPrior:
     def __post_init__(self) -> None:
         _check(
             math.isfinite(self.center_pct) and self.center_pct > -100,
-            f"long-run growth must be above -100 percent, got {self.center_pct}",
+            f"long-run growth must be above -100 percent, got {fmt_given(self.center_pct)}",
         )
         _check(
             math.isfinite(self.give_or_take_pts) and self.give_or_take_pts >= 0,
-            f"long-run growth give-or-take must be >= 0 points, got {self.give_or_take_pts}",
+            "long-run growth give-or-take must be >= 0 points, "
+            f"got {fmt_given(self.give_or_take_pts)}",
         )
 
 
 def _check_beta(mean: float, concentration: float, what: str) -> None:
     _check(
         math.isfinite(mean) and 0 < mean < 1,
-        f"{what} mean must be between 0 and 1 (exclusive), got {mean}",
+        f"{what} mean must be between 0 and 1 (exclusive), got {fmt_given(mean)}",
     )
     _check(
         math.isfinite(concentration) and concentration > 0,
-        f"{what} concentration must be > 0, got {concentration}",
+        f"{what} concentration must be > 0, got {fmt_given(concentration)}",
     )
 
 
@@ -258,16 +264,18 @@ class LocalTrendPrior:
         _check(
             self.level_shock_pct is None
             or (math.isfinite(self.level_shock_pct) and self.level_shock_pct >= 0),
-            f"level shock must be >= 0 percent (0: no level shocks), got {self.level_shock_pct}",
+            "level shock must be >= 0 percent (0: no level shocks), got "
+            f"{fmt_given(self.level_shock_pct)}",
         )
         _check(
             self.growth_drift_pts is None
             or (math.isfinite(self.growth_drift_pts) and self.growth_drift_pts > 0),
-            f"growth drift must be > 0 points per period, got {self.growth_drift_pts}",
+            f"growth drift must be > 0 points per period, got {fmt_given(self.growth_drift_pts)}",
         )
         _check(
             math.isfinite(self.season_drift_pct) and self.season_drift_pct > 0,
-            f"seasonal drift must be > 0 percent per period, got {self.season_drift_pct}",
+            "seasonal drift must be > 0 percent per period, "
+            f"got {fmt_given(self.season_drift_pct)}",
         )
 
     def scales(self, periods_per_year: float | None) -> tuple[float, float]:
@@ -296,5 +304,5 @@ class SeasonalPrior:
     def __post_init__(self) -> None:
         _check(
             math.isfinite(self.typical_pct) and self.typical_pct > 0,
-            f"seasonal typical deviation must be > 0 percent, got {self.typical_pct}",
+            f"seasonal typical deviation must be > 0 percent, got {fmt_given(self.typical_pct)}",
         )
