@@ -154,7 +154,7 @@ class ModelChoice:
         if not any(on):
             return spec.label()
         first = series.labels[train_sets[on.index(True)][-1]]
-        return f"{spec.label()}; seasonal factors from origin {first} on (two full years)"
+        return f"{spec.label()}; seasonal factors from origin {first} on, two full years in"
 
     def _seasons_on_whole_series(self) -> bool:
         """Whether "auto" seasons are decided once on the whole series (a NUTS refit)."""
