@@ -59,10 +59,9 @@ def _family(model: str | None):
 
 def _fixed_curve(model: str | None, errors: str) -> str | None:
     """The fixed curve's caution for a curve with independent errors, else ``None``."""
-    from bayesgrowth.forecast.forecast import FIXED_CURVE_CAUTION
+    from bayesgrowth.forecast.forecast import fixed_curve_caution
 
-    fixed = not _family(model).states and errors == "independent"
-    return FIXED_CURVE_CAUTION if fixed else None
+    return fixed_curve_caution(_family(model), errors)
 
 
 def panel_cautions(panel: dict, horizon, done=None, model: str | None = None,

@@ -26,7 +26,7 @@ from bayesgrowth.models import exponential, general
 from bayesgrowth.seeds import stream
 
 __all__ = ["Forecast", "forecast", "extrapolation_caution", "model_caution", "CAUTION",
-           "FIXED_CURVE_CAUTION"]
+           "FIXED_CURVE_CAUTION", "fixed_curve_caution"]
 
 #: The standing caution printed with every forecast.
 CAUTION = (
@@ -68,12 +68,15 @@ def extrapolation_caution(
     return None
 
 
+def fixed_curve_caution(family, errors: str) -> str | None:
+    """:data:`FIXED_CURVE_CAUTION` for a fixed curve (no states) with independent errors."""
+    return FIXED_CURVE_CAUTION if not family.states and errors == "independent" else None
+
+
 def model_caution(fit) -> str | None:
     """:data:`FIXED_CURVE_CAUTION` for a fixed curve with independent errors, else ``None``."""
     spec = getattr(fit, "spec", None)
-    if spec is not None and not spec.family.states and spec.errors == "independent":
-        return FIXED_CURVE_CAUTION
-    return None
+    return None if spec is None else fixed_curve_caution(spec.family, spec.errors)
 
 
 def saturates(fit) -> bool:
