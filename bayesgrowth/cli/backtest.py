@@ -18,6 +18,7 @@ from bayesgrowth.cli.common import (
     priors_from_args,
     read_input,
     say,
+    show_bars,
     whole_range,
 )
 from bayesgrowth.cli.output import add_force_option, check_output, staged_output
@@ -214,7 +215,7 @@ def run(args) -> int:
             series, models=choices, horizon=args.horizon, min_train=args.min_train,
             stride=args.stride, window=args.window, levels=args.levels, seed=args.seed,
             priors=priors, model_options=sampler, n_draws=args.draws * args.chains,
-            progress=not args.quiet,
+            progress=show_bars(args),
         )
     for w in caught:
         if issubclass(w.category, UserWarning) and "BLAS" not in str(w.message):

@@ -25,6 +25,7 @@ from bayesgrowth.cli.common import (
     note,
     priors_from_args,
     say,
+    show_bars,
 )
 from bayesgrowth.cli.recalibration import (
     add_recalibrate_options,
@@ -128,7 +129,7 @@ def run(args) -> int:
         result = run_batch(
             panel, args.out, settings, executor=executor, read_failures=bad, order=order,
             protect=[args.file], chunk_size=args.chunk_size,
-            save_posteriors=args.save_posteriors, progress=not args.quiet,
+            save_posteriors=args.save_posteriors, progress=show_bars(args),
         )
     except KeyboardInterrupt as exc:
         what = "terminated" if isinstance(exc, Terminated) else "interrupted"

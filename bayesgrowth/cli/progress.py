@@ -10,7 +10,7 @@ from __future__ import annotations
 import argparse
 import sys
 
-__all__ = ["QUIET_HELP", "add_quiet_option", "note", "say"]
+__all__ = ["QUIET_HELP", "add_quiet_option", "note", "say", "show_bars"]
 
 #: The help of ``--quiet``, in every command that takes it.
 QUIET_HELP = ("no progress messages; notes about the input data and cautions about the "
@@ -26,6 +26,15 @@ def say(args, message: str) -> None:
     """Progress message on stderr, unless ``--quiet``."""
     if not getattr(args, "quiet", False):
         print(message, file=sys.stderr, flush=True)
+
+
+def show_bars(args) -> bool:
+    """Whether to draw progress bars: not ``--quiet``, and stderr is a terminal.
+
+    A bar redraws its line with carriage returns, which a log file or a pipe keeps as
+    hundreds of half-lines; there the progress messages (:func:`say`) are enough.
+    """
+    return not getattr(args, "quiet", False) and sys.stderr.isatty()
 
 
 def note(message: str) -> None:

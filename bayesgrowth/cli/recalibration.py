@@ -12,7 +12,7 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
-from bayesgrowth.cli.common import UsageError, _positive_int, note, say, whole_range
+from bayesgrowth.cli.common import UsageError, _positive_int, note, say, show_bars, whole_range
 from bayesgrowth.config import PREDICTIVE_DRAWS
 from bayesgrowth.data.series import MIN_OBSERVATIONS
 
@@ -105,8 +105,7 @@ def recalibrate_forecast(args, fc, min_train: int):
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")  # per-origin diagnostics: the forecast's own are shown
         try:
-            return recalibrate(fc, min_train=min_train, progress=not getattr(args, "quiet",
-                                                                              False))
+            return recalibrate(fc, min_train=min_train, progress=show_bars(args))
         except ValueError as exc:
             raise UsageError(f"--recalibrate: {exc}") from None
 
@@ -230,7 +229,7 @@ def panel_recalibration(args, panel: dict, settings, executor) -> dict:
     rows: dict[str, list] = {}
     failed = []
     results = executor.run(backtest_chunk, chunks, settings)
-    if not getattr(args, "quiet", False):
+    if show_bars(args):
         from tqdm import tqdm
 
         class _Bar(tqdm):

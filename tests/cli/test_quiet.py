@@ -53,3 +53,19 @@ def test_plain_numbered_periods_are_counted_without_a_frequency(tmp_path, capsys
         "; quarterly periods")
     assert pooled_source("per period", 3, np.array([0.5]), (80,))["where"] == (
         "backtests of 3 series pooled")
+
+
+@pytest.mark.parametrize("terminal", [True, False])
+def test_progress_bars_only_on_a_terminal(tmp_path, capsys, monkeypatch, terminal):
+    # a bar redraws its line with carriage returns: in a log file or a pipe it would leave
+    # one half-line per update, so there only the progress messages are written
+    import sys
+
+    from bayesgrowth.data.demo import demo_path
+
+    monkeypatch.setattr(sys.stderr, "isatty", lambda: terminal)
+    assert main(["backtest", str(demo_path()), "-H", "2", "--min-train", "16",
+                 "--out", str(tmp_path / "o")]) == 0
+    err = capsys.readouterr().err
+    assert ("backtest origins" in err) is terminal
+    assert ("\r" in err) is terminal
