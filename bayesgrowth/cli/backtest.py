@@ -18,10 +18,10 @@ from bayesgrowth.cli.common import (
     priors_from_args,
     read_input,
     say,
-    show_bars,
     whole_range,
 )
 from bayesgrowth.cli.output import add_force_option, check_output, staged_output
+from bayesgrowth.cli.progress import show_bars
 from bayesgrowth.cli.reference import check_reference_period
 from bayesgrowth.cli.text import add_unit_option, unit_from_args
 from bayesgrowth.data.export import write_csv

@@ -25,8 +25,8 @@ from bayesgrowth.cli.common import (
     note,
     priors_from_args,
     say,
-    show_bars,
 )
+from bayesgrowth.cli.progress import show_bars
 from bayesgrowth.cli.recalibration import (
     add_recalibrate_options,
     check_batch_out,

@@ -20,7 +20,7 @@ from bayesgrowth.cli.prior_options import (
     add_curve_priors,
     add_season_drift_prior,
 )
-from bayesgrowth.cli.progress import add_quiet_option, note, say, show_bars  # noqa: F401 - also from here
+from bayesgrowth.cli.progress import add_quiet_option, note, say  # noqa: F401 - also from here
 from bayesgrowth.cli.sheet import add_sheet_option
 from bayesgrowth.config import DEFAULT_ENGINE, DEFAULT_LEVELS, DEFAULT_MODEL, check_levels
 from bayesgrowth.data.series import GrowthSeries, read_series
@@ -371,7 +371,7 @@ def fit_from_args(args, series):
     check_seasons(args, series, spec.seasonal)
     options = {"draws": args.draws, "chains": args.chains, **spec_options}
     if args.engine == "nuts":
-        options["progressbar"] = show_bars(args)
+        options["progressbar"] = not args.quiet  # PyMC draws no bar off a terminal
         options["target_accept"] = getattr(args, "target_accept", None)
         options["cores"] = min(getattr(args, "cores", 1), os.cpu_count() or 1)
     say(

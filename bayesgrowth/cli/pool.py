@@ -22,7 +22,6 @@ from bayesgrowth.cli.common import (
     note,
     priors_from_args,
     say,
-    show_bars,
 )
 from bayesgrowth.cli.output import add_force_option, staged_output
 from bayesgrowth.config import DEFAULT_LEVELS
@@ -177,7 +176,7 @@ def run(args) -> int:
             try:
                 fit = fit_pooled(panel, priors, group=group, errors=args.errors,
                                  seed=args.seed, draws=args.draws, tune=args.tune,
-                                 chains=args.chains, progressbar=show_bars(args))
+                                 chains=args.chains, progressbar=not args.quiet)
             except ValueError as exc:
                 raise UsageError(f"{exc}") from None
         pf = forecast_pooled(fit, args.horizon, levels=args.levels, seed=args.seed)

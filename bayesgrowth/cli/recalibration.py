@@ -12,7 +12,8 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
-from bayesgrowth.cli.common import UsageError, _positive_int, note, say, show_bars, whole_range
+from bayesgrowth.cli.common import UsageError, _positive_int, note, say, whole_range
+from bayesgrowth.cli.progress import show_bars
 from bayesgrowth.config import PREDICTIVE_DRAWS
 from bayesgrowth.data.series import MIN_OBSERVATIONS
 
