@@ -14,6 +14,7 @@ from bayesgrowth.data.excel import EXCEL_SUFFIXES, read_excel_file
 from bayesgrowth.data.formats import (
     check_header,
     detect_separator,
+    drop_trailing_blank_rows,
     title_line,
     title_message,
     title_rows,
@@ -82,7 +83,8 @@ def read_csv_file(path: str | Path, sheet: str | None = None) -> pd.DataFrame:
     Returns
     -------
     pandas.DataFrame
-        One column per header name, every cell a ``str`` (empty cells are ``""``).
+        One column per header name, every cell a ``str`` (empty cells are ``""``);
+        blank rows at the end are left out.
         ``attrs["separator"]`` is the separator; ``attrs["title_line"]`` says
         whether the first line looks like a title above the header (see
         :func:`bayesgrowth.data.formats.title_line`), for the message when a
@@ -135,6 +137,7 @@ def read_csv_file(path: str | Path, sheet: str | None = None) -> pd.DataFrame:
             "you may read it"
         ) from None
     frame.columns = [str(c).strip() for c in frame.columns]
+    frame = drop_trailing_blank_rows(frame)
     frame.attrs["separator"] = sep
     frame.attrs["title_line"] = title_line(title_rows(head))
     return frame

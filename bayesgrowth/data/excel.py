@@ -18,7 +18,7 @@ from pathlib import Path
 
 import pandas as pd
 
-from bayesgrowth.data.formats import check_header, title_line
+from bayesgrowth.data.formats import check_header, drop_trailing_blank_rows, title_line
 from bayesgrowth.data.series import InputError
 
 __all__ = ["EXCEL_SUFFIXES", "read_excel_file"]
@@ -92,7 +92,8 @@ def read_excel_file(path: Path, sheet: str | None = None) -> pd.DataFrame:
     Returns
     -------
     pandas.DataFrame
-        One column per header name (stripped), every cell a ``str``. ``attrs["sheet"]``
+        One column per header name (stripped), every cell a ``str``; blank rows at the
+        end are left out. ``attrs["sheet"]``
         is the sheet read; ``attrs["notes"]`` names it when the workbook has several
         and none was named.
 
@@ -117,7 +118,7 @@ def read_excel_file(path: Path, sheet: str | None = None) -> pd.DataFrame:
     cells = frame.map(_text)
     header = [c.strip() for c in cells.iloc[0].tolist()]
     check_header(header, path.name)
-    body = cells.iloc[1:].reset_index(drop=True)
+    body = drop_trailing_blank_rows(cells.iloc[1:].reset_index(drop=True))
     body.columns = header
     body.attrs["title_line"] = title_line(cells.iloc[:3].values.tolist())
     body.attrs["sheet"] = name

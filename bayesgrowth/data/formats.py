@@ -26,10 +26,12 @@ import math
 import re
 from collections.abc import Sequence
 
+import pandas as pd
+
 from bayesgrowth.data.series import InputError
 
 __all__ = ["DECIMAL_CHOICES", "amount", "check_header", "decimal_mark", "detect_separator",
-           "title_line", "title_message", "title_rows"]
+           "drop_trailing_blank_rows", "title_line", "title_message", "title_rows"]
 
 #: Values of ``--decimal``: tell the mark from the column, or state it.
 DECIMAL_CHOICES = ("auto", ".", ",")
@@ -309,6 +311,20 @@ header (columns 1 and 3); rename or delete one of them
                 f"{seen[name]} and {i}); rename or delete one of them"
             )
         seen.setdefault(name, i)
+
+
+def drop_trailing_blank_rows(frame: pd.DataFrame) -> pd.DataFrame:
+    """``frame`` without the rows at its end whose every cell is blank.
+
+    Spreadsheets export rows that were once formatted or typed in as ``,,``; at the end
+    of a file they hold nothing to read. Blank rows between values are kept, so that
+    the value missing there is named by its row; rows keep their numbers.
+    """
+    blank = frame.apply(lambda col: col.str.strip() == "").all(axis=1).to_numpy()
+    n = len(blank)
+    while n and blank[n - 1]:
+        n -= 1
+    return frame if n == len(blank) else frame.iloc[:n]
 
 
 def title_rows(text: str) -> list[list[str]]:

@@ -377,6 +377,26 @@ def test_xlsx_problems_name_the_row(tmp_path):
         read_series(path)
 
 
+def test_blank_rows_at_the_end_are_left_out(tmp_path):
+    # spreadsheets export once-used rows as ",,"; between values a blank row is still named
+    clean = "period,value,comment\n2024Q1,100,\n2024Q2,110,\n2024Q3,121,\n"
+    s = _read(tmp_path, clean + ",,\n , ,\n,,\n", name="trailing.csv")
+    assert s.labels == ["2024Q1", "2024Q2", "2024Q3"]
+    np.testing.assert_array_equal(s.values, [100, 110, 121])
+    with pytest.raises(InputError, match=r"^middle.csv, row 3, column 'value': value is missing"):
+        _read(tmp_path, "period,value\n2024Q1,100\n,\n2024Q3,121\n", name="middle.csv")
+
+
+def test_blank_rows_at_the_end_of_a_sheet_are_left_out(tmp_path):
+    pytest.importorskip("openpyxl")
+    import pandas as pd
+
+    path = tmp_path / "sales.xlsx"
+    pd.DataFrame({"period": ["Q1 2024", "Q2 2024", "Q3 2024", None, ""],
+                  "value": [100, 110, 121, None, ""]}).to_excel(path, index=False)
+    np.testing.assert_array_equal(read_series(path).values, [100, 110, 121])
+
+
 def test_xlsx_without_the_excel_reader(tmp_path, capsys, monkeypatch):
     monkeypatch.setitem(sys.modules, "openpyxl", None)  # import fails as if not installed
     _refused(tmp_path, capsys, "sales.xlsx", b"PK\x03\x04 not really", "sales.xlsx",
