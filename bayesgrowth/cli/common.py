@@ -15,6 +15,7 @@ from bayesgrowth.cli.model_words import (  # noqa: F401 - also used from here
     exact_covers,
     exact_refusal,
 )
+from bayesgrowth.cli.parser import Parser, UsageError  # noqa: F401 - also from here
 from bayesgrowth.cli.prior_options import (
     add_common_priors,
     add_curve_priors,
@@ -27,20 +28,6 @@ from bayesgrowth.data.series import GrowthSeries, read_series
 from bayesgrowth.display import observations
 
 PROG = "bayesgrowth"
-
-
-CLI_WORDS = None  # placeholder
-
-class UsageError(Exception):
-    """Bad usage, reported in one line with exit code 2."""
-
-
-class Parser(argparse.ArgumentParser):
-    """An argument parser whose usage errors are one line (exit code 2)."""
-
-    def error(self, message: str) -> None:  # noqa: D102 - one line, not a usage block
-        raise UsageError(f"{self.prog}: {message} (see --help)")
-
 
 def _levels(text: str) -> tuple[int, ...]:
     try:

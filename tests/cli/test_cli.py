@@ -109,6 +109,15 @@ def test_bad_input_one_line_exit_2_no_files(tmp_path, case, command):
         (["forecast", "{f}", "-H", "3", "--out", "{o}", "--target", "-5"], "--target -5: must"),
         (["forecast", "{f}", "-H", "3", "--out", "{o}", "--model", "exponential", "--seasonal",
           "drifting"], "drifting seasonal factors need the local-trend model"),
+        # a misspelt option is named before the required option it left out
+        (["forecast", "{f}", "--horizn", "3", "--out", "{o}"],
+         "unknown option --horizn; did you mean --horizon?"),
+        (["forecast", "{f}", "-H", "3", "--out={o}", "--levls=80"],
+         "unknown option --levls; did you mean --levels?"),
+        (["forecast", "{f}", "-H", "3", "--out", "{o}", "--zzz"], "unknown option --zzz (see"),
+        (["forecast", "{f}", "-H", "3", "--out", "{o}", "--s", "1"],
+         "ambiguous option: --s could match"),
+        (["forcast", "{f}", "-H", "3", "--out", "{o}"], "; did you mean 'forecast'?"),
     ],
 )
 def test_bad_options(tmp_path, good_csv, capsys, argv, fragment):
@@ -119,6 +128,13 @@ def test_bad_options(tmp_path, good_csv, capsys, argv, fragment):
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and fragment in err[0]
     assert not out.exists()
+
+
+def test_an_option_cut_short_still_reads_as_the_option_it_starts(tmp_path, good_csv):
+    # argparse's abbreviations (allow_abbrev) pass the check for unknown options
+    out = tmp_path / "out"
+    assert _run(["forecast", str(good_csv), "--hor", "2", "--out", str(out), "--quiet"]) == 0
+    assert (out / "forecast.csv").exists()
 
 
 def test_never_overwrites_the_input(tmp_path):
@@ -273,8 +289,10 @@ def test_every_command_refuses_a_negative_seed_at_parsing(tmp_path, good_csv, ca
     assert {"forecast", "compare", "backtest", "report", "batch", "pool"} <= set(commands)
     monkeypatch.setattr(run, "fit_series", lambda *a, **k: pytest.fail("fitted"))
     out = tmp_path / "out"
+    with_min_train = set(_commands_with("--min-train"))
     for command in commands:
-        given = [] if command == "demo" else [str(good_csv), "-H", "2", "--min-train", "3"]
+        given = [] if command == "demo" else [str(good_csv), "-H", "2"]
+        given += ["--min-train", "3"] if command in with_min_train else []
         rc = _run([command, *given, "--out", str(out), "--seed", "-1"])
         err = capsys.readouterr().err.strip()
         assert rc == 2 and err.count("\n") == 0, (command, err)
