@@ -20,7 +20,8 @@ def add_scenario_options(p: argparse.ArgumentParser) -> None:
         "scenario (a stated 'what if', drawn beside the forecast; see docs/user-guide.md)")
     g.add_argument("--scenario-growth", type=_number, default=None, metavar="F",
                    help="multiply the forecast's growth per period by F (0.5: growth halves; "
-                   "0: growth stops) from --scenario-growth-from on")
+                   "0: growth stops; -1: it turns into a decline as fast) from "
+                   "--scenario-growth-from on")
     g.add_argument("--scenario-growth-from", default=None, metavar="PERIOD",
                    help="first period of the changed growth, e.g. 2027Q1 [the first "
                    "forecast period]")
