@@ -244,7 +244,9 @@ def read_input(args) -> GrowthSeries:
     from bayesgrowth.cli.reference import check_reference_period
 
     check_run_size(args, series.n)  # before any work: the memory the options ask for
-    check_reference_period(args, series)
+    # backtest checks its models against its first training set itself
+    model = getattr(args, "model", None) if getattr(args, "command", "") != "backtest" else None
+    check_reference_period(args, series, models=[model] if isinstance(model, str) else [])
     return series
 
 

@@ -47,12 +47,13 @@ def check_reference_period(args, series, first_train: int | None = None,
             f"from {labels[0]} to {labels[-1]}); name one of them, or leave the option out "
             f"to refer to the first ({labels[0]})"
         ) from None
-    from bayesgrowth.models.registry import get_family
+    from bayesgrowth.models.registry import families, get_family
 
     anchored = [m for m in dict.fromkeys(models) if get_family(m).states]
     if at != 0 and anchored:
+        curves = ", ".join(f.name for f in families() if not f.states)
         raise UsageError(
             f"--reference-period {label}: the {anchored[0]} model anchors its level at the "
-            f"first observation ({part.labels[0]}); leave the option out, or compare only "
-            "models that are curves"
+            f"first observation ({part.labels[0]}); leave the option out, or fit only "
+            f"curves ({curves})"
         )

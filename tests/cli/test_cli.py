@@ -105,6 +105,9 @@ def test_bad_input_one_line_exit_2_no_files(tmp_path, case, command):
         (["forecast", "{f}", "-H", "3", "--out", "{o}", "--noise", "-3"], "noise"),
         (["forecast", "{f}", "-H", "3", "--out", "{o}", "--reference-period", "1999Q1"],
          "--reference-period 1999Q1: no observation of"),
+        (["forecast", "{f}", "-H", "3", "--out", "{o}", "--reference-period", "2023Q2"],
+         "--reference-period 2023Q2: the local-trend model anchors its level at the first "
+         "observation (2023Q1); leave the option out, or fit only curves (exponential,"),
         (["forecast", "{f}", "-H", "3", "--out", "{o}", "--value-col", "sales"], "--value-col"),
         (["forecast", "{f}", "-H", "3", "--out", "{o}", "--target", "-5"], "--target -5: must"),
         (["forecast", "{f}", "-H", "3", "--out", "{o}", "--model", "exponential", "--seasonal",
