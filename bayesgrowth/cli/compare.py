@@ -15,7 +15,7 @@ from bayesgrowth.cli.common import (
 from bayesgrowth.cli.output import add_force_option, staged_output
 from bayesgrowth.cli.text import add_unit_option, unit_from_args
 from bayesgrowth.data.export import write_csv
-from bayesgrowth.report.words import band_phrases
+from bayesgrowth.report.words import band_phrases, period_words
 
 __all__ = ["add_parser"]
 
@@ -67,11 +67,12 @@ def run(args) -> int:
         _save_plot(comp, stage / "comparison.png", unit=unit_from_args(args))
     sp = comp.spread
     last = fc.table.iloc[-1]
-    print(f"{series.name}: point forecasts for {fc.periods[-1]} from {len(comp.fits)} "
+    final = period_words(fc.periods[-1], series.axis)
+    print(f"{series.name}: point forecasts for {final} from {len(comp.fits)} "
           f"least-squares variants range from {fmt_number(sp['min'])} ({sp['lowest_variant']}) "
           f"to {fmt_number(sp['max'])} ({sp['highest_variant']}), a ratio of "
           f"{sp['max_over_min']:.2f}")
-    print(f"Bayesian forecast for {fc.periods[-1]} (model: {fit.spec.label()}): "
+    print(f"Bayesian forecast for {final} (model: {fit.spec.label()}): "
           + "; ".join([f"median {fmt_number(last['median'])}",
                        *band_phrases(last.to_dict(), fc.levels)]))
     if not fit.diagnostics.ok:

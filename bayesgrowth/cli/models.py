@@ -20,7 +20,7 @@ from bayesgrowth.cli.output import add_force_option, staged_output
 from bayesgrowth.cli.text import add_unit_option, unit_from_args
 from bayesgrowth.data.export import write_csv
 from bayesgrowth.display import fmt_weight
-from bayesgrowth.report.words import band_phrases
+from bayesgrowth.report.words import band_phrases, period_words
 
 __all__ = ["add_parser", "run"]
 
@@ -232,7 +232,8 @@ def run(args) -> int:
               f"checks failed ({why})")
     row = avg.table.iloc[-1]
     mixture = ", ".join(f"{m} {w:.0%}" for m, w in comp.weights.items() if w >= 0.005)
-    print(f"model-averaged forecast for {row['period']} (mixed by weight: {mixture}): "
+    final = period_words(row["period"], series.axis)
+    print(f"model-averaged forecast for {final} (mixed by weight: {mixture}): "
           + "; ".join([f"median {fmt_number(row['median'])}",
                        *band_phrases(row.to_dict(), avg.levels)]))
     for caution in (avg.caution, CURVE_CAUTION, CAUTION):

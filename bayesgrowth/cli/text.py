@@ -17,6 +17,7 @@ from bayesgrowth.report.words import (
     fmt_probability,
     per_period,
     period_noun,
+    period_words,
 )
 
 __all__ = ["add_unit_option", "forecast_lines", "growth_phrase", "outlook_lines",
@@ -74,7 +75,8 @@ def forecast_lines(fc, summary: dict) -> list[str]:
     axis = fc.fit.series.axis
     fin = summary["final_period"]
     lines = [
-        f"{summary['series']}: forecast for {fin['period']} ({_ahead(fc.horizon, axis)})",
+        f"{summary['series']}: forecast for {period_words(fin['period'], axis)} "
+        f"({_ahead(fc.horizon, axis)})",
         f"  model: {summary['model_description']}",
         "  " + "; ".join([f"median {fmt_number(fin['median'])}",
                           *band_phrases(fin, summary["levels"])]),

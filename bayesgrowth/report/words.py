@@ -28,6 +28,7 @@ __all__ = [
     "fmt_probability",
     "per_period",
     "period_noun",
+    "period_words",
 ]
 
 _NOUNS = {1: "month", 3: "quarter", 6: "half-year", 12: "year"}
@@ -47,6 +48,18 @@ def period_noun(axis) -> str:
     if months:
         return f"{months} months"
     return "period"
+
+
+def period_words(label: str, axis) -> str:
+    """A period's label as a sentence reads it: ``2026Q2``, but ``period 24`` for numbers.
+
+    Examples
+    --------
+    >>> from bayesgrowth.data.periods import PeriodAxis
+    >>> period_words("24", PeriodAxis("integer", 1, 0))
+    'period 24'
+    """
+    return f"period {label}" if period_noun(axis) == "period" else str(label)
 
 
 def per_period(axis) -> str:

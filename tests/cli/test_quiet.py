@@ -47,8 +47,9 @@ def test_plain_numbered_periods_are_counted_without_a_frequency(tmp_path, capsys
     path.write_text("period,value\n" + "".join(f"{i},{100 * 1.05**i:.2f}\n"
                                                for i in range(1, 21)))
     assert main(["forecast", str(path), "-H", "2", "--out", str(tmp_path / "o")]) == 0
-    err = capsys.readouterr().err
+    out, err = capsys.readouterr()
     assert "fitting numbered (20 observations)" in err and "per period" not in err
+    assert "numbered: forecast for period 22 (2 periods ahead)" in out
     assert _periods_words("per period") == "" and _periods_words("quarterly") == (
         "; quarterly periods")
     assert pooled_source("per period", 3, np.array([0.5]), (80,))["where"] == (
