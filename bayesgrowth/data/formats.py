@@ -244,6 +244,15 @@ def _refuse(text: str, where: str, mark: str) -> None:
         raise InputError(f"{where}: {text!r} is not a finite number")
     example = "1100 or 1100.5" if mark == "." else "1100 or 1100,5"
     word = "a decimal point" if mark == "." else "a decimal comma"
+    other = "," if mark == "." else "."
+    cell = _strip_currency(text)
+    reads = None if cell is None else _grouped(cell[0], other)
+    if reads is not None:  # the file's decimal mark is the other one
+        raise InputError(
+            f"{where}: {text!r} is not a number with {word}; if the file writes "
+            f"{'decimal commas' if other == ',' else 'decimal points'}, say so with "
+            f"--decimal {other} (it then reads as {reads})"
+        )
     raise InputError(
         f"{where}: {text!r} is not a number; write it with the digits 0-9, an optional sign "
         f"and {word} (like {example})"

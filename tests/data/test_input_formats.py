@@ -132,6 +132,16 @@ def test_stated_decimal_mark_is_threaded_from_the_command_line(tmp_path, capsys)
              "'1,234.5' is not a number", "decimal comma", extra=["--decimal", ","])
 
 
+@pytest.mark.parametrize("stated, cell, other, reads", [(".", "1000,5", ",", "1000.5"),
+                                                        (",", "1000.5", ".", "1000.5")])
+def test_a_number_in_the_other_decimal_format_names_the_option(tmp_path, capsys, stated, cell,
+                                                               other, reads):
+    text = f'period;value\n2024Q1;100\n2024Q2;"{cell}"\n2024Q3;120\n'
+    _refused(tmp_path, capsys, "sales.csv", text, "sales.csv, row 3, column 'value'",
+             f"{cell!r} is not a number with a decimal", f"say so with --decimal {other} (it "
+             f"then reads as {reads})", extra=["--decimal", stated])
+
+
 def test_decimal_marks_both_ways_are_refused(tmp_path, capsys):
     text = "period;value\n2024Q1;1.234,5\n2024Q2;1,234.5\n2024Q3;1500\n"
     _refused(tmp_path, capsys, "sales.csv", text, "sales.csv, row 3, column 'value'",
