@@ -123,10 +123,13 @@ def _final_period(fc) -> dict:
     instead.
     """
     last = fc.table.iloc[-1]
-    with np.errstate(over="ignore", invalid="ignore"):
-        out = {"period": fc.periods[-1], **interval_summary(fc.draws[:, -1], fc.levels)}
-    if fc.exact is not None:  # the exact mixture's numbers, as in the table
-        out.update({k: float(last[k]) for k in out if k != "period" and k in last.index})
+    if fc.exact is not None:  # the exact mixture's numbers, as in the table: no draws needed
+        keys = ["median", "mean"] + [f"{side}_{level}" for level in fc.levels
+                                     for side in ("lower", "upper")]
+        out = {"period": fc.periods[-1], **{k: float(last[k]) for k in keys}}
+    else:
+        with np.errstate(over="ignore", invalid="ignore"):
+            out = {"period": fc.periods[-1], **interval_summary(fc.draws[:, -1], fc.levels)}
     if "mean" in last.index:
         mean = float(last["mean"])
         out["mean"] = mean if math.isfinite(mean) else math.inf
