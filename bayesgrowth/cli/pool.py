@@ -93,9 +93,8 @@ def _read(args):
     for text in notes:
         note(text)
     if bad:
-        name, why = bad[0]
-        raise UsageError(f"{args.file}: series {name!r} cannot be pooled ({why}); fix or "
-                         f"remove it ({len(bad)} series refused)")
+        more = f"; {len(bad) - 1} more series refused" if len(bad) > 1 else ""
+        raise UsageError(f"{bad[0][1]} (a pooled fit takes every series of the file{more})")
     if len(panel) < 2:
         raise UsageError(f"{args.file}: pooling needs at least 2 series in column "
                          f"{args.series_col!r}, found {len(panel)}; use 'forecast' for one")

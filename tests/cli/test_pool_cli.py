@@ -26,6 +26,20 @@ def test_pool_refuses_a_single_series_before_any_work(tmp_path, panel_csv, capsy
     assert len(err) == 1 and "at least 2 series" in err[0]
 
 
+def test_pool_names_a_refused_series_once_with_its_row(tmp_path, capsys):
+    bad = tmp_path / "bad.csv"
+    bad.write_text("series,period,value\nA,2024Q1,100\nA,2024Q2,-5\nA,2024Q3,120\n"
+                   "B,2024Q1,100\nB,2024Q2,110\n")
+    out = tmp_path / "p"
+    assert main(["pool", str(bad), "-H", "2", "--out", str(out), "--quiet"]) == 2
+    assert not out.exists()
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].count("bad.csv") == 1, err
+    assert "bad.csv, series 'A', row 3, column 'value': value -5 is not above zero" in err[0]
+    assert err[0].endswith("(a pooled fit takes every series of the file; 1 more series "
+                           "refused)")
+
+
 @pytest.mark.slow
 def test_pool_forecasts_every_series_and_their_total(tmp_path, panel_csv, capsys):
     out = tmp_path / "p"
