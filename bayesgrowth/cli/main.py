@@ -10,7 +10,6 @@ from __future__ import annotations
 
 import argparse
 import importlib
-import math
 import os
 import sys
 from pathlib import Path
@@ -44,6 +43,7 @@ from bayesgrowth.cli.scenario import (
     scenario_table,
 )
 from bayesgrowth.cli.signals import exit_code, handled_signals, stop_line
+from bayesgrowth.cli.target import add_target_options, check_target_options
 from bayesgrowth.cli.text import add_unit_option, forecast_lines, outlook_lines, unit_from_args
 from bayesgrowth.data.export import NOT_AVAILABLE_KEY, json_ready, json_text, write_csv
 from bayesgrowth.data.series import GrowthSeries, InputError
@@ -113,19 +113,7 @@ def _add_forecast_parser(sub) -> None:
     fc.add_argument("--out", type=Path, required=True, help="output folder")
     add_force_option(fc)
     _add_posterior_option(fc)
-    fc.add_argument(
-        "--target",
-        type=float,
-        default=None,
-        help="a budget or guidance value: report the probability of reaching it",
-    )
-    fc.add_argument(
-        "--target-probability",
-        type=float,
-        default=0.5,
-        metavar="P",
-        help="probability at which the target counts as reached [0.5]",
-    )
+    add_target_options(fc)
     add_recalibrate_options(fc)
     add_scenario_options(fc)
     fc.set_defaults(run=_run_forecast)
@@ -148,8 +136,7 @@ def _add_demo_parser(sub) -> None:
     )
     add_force_option(demo)
     _add_posterior_option(demo)
-    demo.add_argument("--target", type=float, default=None, help=argparse.SUPPRESS)
-    demo.add_argument("--target-probability", type=float, default=0.5, help=argparse.SUPPRESS)
+    add_target_options(demo)
     add_recalibrate_options(demo)
     add_scenario_options(demo)
     demo.set_defaults(run=_run_demo)
@@ -190,10 +177,7 @@ def _run_forecast(args, series: GrowthSeries | None = None) -> int:
 
     series = series or read_input(args)
     series.check_horizon(args.horizon)
-    if args.target is not None and not (args.target > 0 and math.isfinite(args.target)):
-        raise UsageError(f"--target {args.target:.15g}: must be a finite value above 0")
-    if not 0 < args.target_probability < 1:
-        raise UsageError(f"--target-probability {args.target_probability}: must be between 0 and 1")
+    check_target_options(args)
     min_train = check_min_train(args, series.n)
     scenario = scenario_from_args(args, series.future_labels(args.horizon))
     names = _output_names(args, scenario)

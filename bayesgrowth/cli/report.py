@@ -2,16 +2,16 @@
 
 from __future__ import annotations
 
-import math
 import shlex
 import sys
 import warnings
 from pathlib import Path
 
 from bayesgrowth.cli.acceptance import diagnostics_exit
-from bayesgrowth.cli.common import UsageError, add_input, add_model_options, read_input, say
+from bayesgrowth.cli.common import add_input, add_model_options, read_input, say
 from bayesgrowth.cli.output import add_force_option, check_output, staged_output
 from bayesgrowth.cli.report_models import add_models_option, average_from_args
+from bayesgrowth.cli.target import add_target_options, check_target_options
 from bayesgrowth.cli.text import add_unit_option, forecast_lines, unit_from_args
 
 __all__ = ["add_parser"]
@@ -30,10 +30,7 @@ def add_parser(sub) -> None:
     add_unit_option(p)
     p.add_argument("--out", type=Path, required=True, help="output folder")
     add_force_option(p)
-    p.add_argument("--target", type=float, default=None,
-                   help="a budget or guidance value: report the probability of reaching it")
-    p.add_argument("--target-probability", type=float, default=0.5, metavar="P",
-                   help="probability at which the target counts as reached [0.5]")
+    add_target_options(p)
     p.add_argument("--no-backtest", action="store_true", help="leave out the backtest section")
     add_models_option(p)
     p.set_defaults(run=run)
@@ -47,11 +44,7 @@ def run(args) -> int:
     from bayesgrowth.report.build import report_parts
 
     series = read_input(args)
-    if args.target is not None and not (args.target > 0 and math.isfinite(args.target)):
-        raise UsageError(f"--target {args.target:.15g}: must be a finite value above 0")
-    if not 0 < args.target_probability < 1:
-        raise UsageError(f"--target-probability {args.target_probability}: must be between 0 "
-                         "and 1")
+    check_target_options(args)
     priors = priors_from_args(args)
     spec_options = checked_model_options(args, (args.engine,))
     check_seasons(args, series, spec_options.get("seasonal") in (True, "drifting"))
