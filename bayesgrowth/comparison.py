@@ -103,8 +103,9 @@ class Comparison:
                  f"{fc.horizon} periods ahead")
         points = self.table["value_at_horizon"]
         band = fmt_interval(bayes[f"bayes_lower_{level}"], bayes[f"bayes_upper_{level}"])
-        headline = (f"point forecasts {fmt_interval(points.min(), points.max())}; Bayesian "
-                    f"median {fmt_number(bayes['bayes_median'])}, {level}% band {band}")
+        # the two point forecasts as the variants' rows show them (a band is rounded outward)
+        headline = (f"point forecasts {fmt_number(points.min())} to {fmt_number(points.max())}; "
+                    f"Bayesian median {fmt_number(bayes['bayes_median'])}, {level}% band {band}")
         rows = [[r["variant"], str(r["n_points"]), fmt_percent(r["growth_per_period"]),
                  fmt_number(r["value_at_horizon"])] for _, r in self.table.iterrows()]
         return title, headline, ["variant", "points", "growth", "value at horizon"], rows

@@ -2,6 +2,9 @@
 
 from __future__ import annotations
 
+import math
+import numbers
+
 __all__ = [
     "DEFAULT_CHAINS",
     "DEFAULT_DRAWS",
@@ -10,6 +13,7 @@ __all__ = [
     "DEFAULT_MODEL",
     "DEFAULT_TUNE",
     "PREDICTIVE_DRAWS",
+    "check_count",
     "check_levels",
 ]
 
@@ -39,14 +43,54 @@ DEFAULT_ENGINE = "exact"
 
 
 def check_levels(levels) -> tuple[int, ...]:
-    """Validate band levels: whole percentages strictly between 0 and 100, sorted, unique."""
+    """Validate band levels: whole percentages strictly between 0 and 100, sorted, unique.
+
+    One number is one level (``80``); a fraction such as ``0.8`` is refused with a
+    message saying to write ``80``.
+
+    Examples
+    --------
+    >>> check_levels([95, 80]), check_levels(80)
+    ((80, 95), (80,))
+    """
+    if isinstance(levels, numbers.Real) and not isinstance(levels, bool):
+        levels = (levels,)
+    if isinstance(levels, str | bytes) or not hasattr(levels, "__iter__"):
+        raise ValueError(f"levels must be whole percentages such as (50, 80, 95), got {levels!r}")
     out = []
     for level in levels:
+        if isinstance(level, bool) or not isinstance(level, numbers.Real):
+            raise ValueError(f"band levels must be numbers such as 80, got {level!r}")
         value = float(level)
         if not (0 < value < 100) or value != int(value):
+            hint = f"; write levels in percent ({value * 100:.15g}, not {value:.15g})" \
+                if 0 < value < 1 else ""
             raise ValueError("band levels must be whole percentages between 1 and 99, got "
-                             f"{value:.15g}")
+                             f"{value:.15g}{hint}")
         out.append(int(value))
     if not out:
         raise ValueError("give at least one band level")
     return tuple(sorted(set(out)))
+
+
+def check_count(value, name: str, least: int = 1) -> int:
+    """Validate a count (draws, chains, a seed, a horizon): a whole number >= ``least``.
+
+    A float that is whole (``4.0``) is taken; a bool, a string, ``nan`` or ``2.5`` is
+    not.
+
+    Raises
+    ------
+    ValueError
+        Naming ``name`` and the value given.
+
+    Examples
+    --------
+    >>> check_count(4.0, "draws")
+    4
+    """
+    whole = (isinstance(value, numbers.Real) and not isinstance(value, bool)
+             and math.isfinite(value) and int(value) == value)
+    if not whole or value < least:
+        raise ValueError(f"{name} must be a whole number of at least {least}, got {value!r}")
+    return int(value)

@@ -37,8 +37,10 @@ class GrowthModel:
         ``"local-trend"``, ``"exponential"``, ``"damped"``, ``"logistic"``, ``"gompertz"``.
     drift : {"mean-reverting", "random-walk", "adaptive"}
         For the local trend: how its growth rate moves.
-    seasonal : bool or "auto"
-        Seasonal factors.
+    seasonal : bool, "auto" or "drifting"
+        Seasonal factors; ``"auto"`` uses them when the calendar has seasons and two
+        full years are observed; ``"drifting"`` (local trend only) lets them change
+        slowly over the years.
     errors : {"independent", "ar1"}
         Whether deviations from a curve persist.
     noise_dist : {"normal", "student-t"}
@@ -111,7 +113,12 @@ class GrowthModel:
                 "target_accept": self.target_accept, "cores": self.cores}
 
     def fit(self, data) -> GrowthModel:
-        """Fit to a :class:`GrowthSeries`, a CSV path, a DataFrame or a Series."""
+        """Fit to a :class:`GrowthSeries`, a CSV path, a DataFrame or a Series.
+
+        A DataFrame has a period and a value column, or periods in its index (a
+        DatetimeIndex or a PeriodIndex); see :func:`bayesgrowth.read_series`, which
+        also takes other column names.
+        """
         self.fit_: Fit = fit_series(
             as_series(data),
             engine=self.engine,

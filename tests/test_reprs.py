@@ -76,6 +76,8 @@ def test_comparison_repr_is_short_and_names_the_extreme_variants(demo_forecast):
     table = comp.table.set_index("variant")["value_at_horizon"]
     assert f"lowest {table.idxmin()} ({fmt_number(table.min())})" in text
     assert f"highest {table.idxmax()} ({fmt_number(table.max())})" in text
+    # the headline's range is the same two numbers, not rounded outward like a band
+    assert f"point forecasts {fmt_number(table.min())} to {fmt_number(table.max())};" in text
     assert "<table>" in comp._repr_html_()
 
 

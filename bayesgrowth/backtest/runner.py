@@ -32,7 +32,7 @@ from bayesgrowth.backtest.models import (
 from bayesgrowth.backtest.result import NO_BANDS, BacktestResult
 from bayesgrowth.backtest.split import RollingOrigin
 from bayesgrowth.config import DEFAULT_LEVELS, PREDICTIVE_DRAWS, check_levels
-from bayesgrowth.data.series import MIN_OBSERVATIONS, GrowthSeries
+from bayesgrowth.data.series import MIN_OBSERVATIONS, GrowthSeries, as_series
 from bayesgrowth.inference.diagnostics import SamplingWarning
 from bayesgrowth.scoring import score_table
 from bayesgrowth.seeds import origin_seed
@@ -77,7 +77,8 @@ def backtest(
     Parameters
     ----------
     series : GrowthSeries
-        The series; gaps keep their place in time.
+        The series (or what :func:`~bayesgrowth.data.series.read_series` reads: a
+        path, a DataFrame, a Series); gaps keep their place in time.
     models : str, mapping or sequence, optional
         The models to compare, each under its name (which labels every row, score
         and plot): names such as ``"default,exponential,log-linear"`` or
@@ -148,6 +149,7 @@ def backtest(
     >>> all_steps[["method", "n"]].to_dict("records")
     [{'method': 'exact', 'n': 7}, {'method': 'naive', 'n': 7}]
     """
+    series = as_series(series, "series")
     choices = _choices(models, methods, model_options)
     levels = check_levels(levels)
     splitter = RollingOrigin(horizon, min_train, stride=stride, window=window)

@@ -87,13 +87,14 @@ class GrowthSeries:
         self.check_horizon(horizon)
         return self.axis.labels(self.future_t(horizon))
 
-    def check_horizon(self, horizon: int) -> None:
+    def check_horizon(self, horizon: int, option: str = "--horizon ") -> None:
         """Refuse a horizon whose last period would fall after the year 9999.
 
         Raises
         ------
         InputError
-            Naming ``--horizon``, the last observed period and the longest horizon left.
+            Naming ``option`` (``"horizon="`` from Python) with the horizon, the last
+            observed period and the longest horizon left.
         """
         year = self.axis.year_of(self.t_last + horizon)
         if year is None or year <= LAST_YEAR:
@@ -104,7 +105,7 @@ class GrowthSeries:
         fix = (f"forecast at most {room} period(s)" if room
                else "the calendar ends there; number the periods 1, 2, 3, ... instead")
         raise InputError(
-            f"--horizon {horizon}: {self.source} ends in {self.labels[-1]}, and the forecast "
+            f"{option}{horizon}: {self.source} ends in {self.labels[-1]}, and the forecast "
             f"would run past the year {LAST_YEAR}; {fix}"
         )
 
@@ -247,7 +248,10 @@ def read_series(
     ----------
     data : str, pathlib.Path, pandas.DataFrame or pandas.Series
         A CSV file with a header row, a DataFrame with a period column and a value
-        column, or a Series whose index holds the periods.
+        column, or a Series whose index holds the periods. A DataFrame without a
+        period column whose index holds dates or periods (a DatetimeIndex or a
+        PeriodIndex) takes its periods from the index, and its values from
+        ``value_col`` or its only column (:mod:`bayesgrowth.data.pandas_input`).
     period_col, value_col : str
         Column names of the periods and the values.
     name : str, optional
@@ -274,6 +278,8 @@ def read_series(
     InputError
         With a one-line message that names the file, row and column at fault. Rows
         are counted as a spreadsheet shows them (the header is row 1).
+    TypeError
+        If ``data`` is none of the above (a list or an array of values, say).
 
     Examples
     --------
@@ -283,17 +289,19 @@ def read_series(
     >>> s.future_labels(2)
     ['2024Q4', '2025Q1']
     """
+    from bayesgrowth.data.pandas_input import API_OPTIONS, check_data, index_frame, series_frame
+
+    check_data(data)
     if isinstance(data, pd.Series):
-        frame = pd.DataFrame({period_col: data.index.astype(str), value_col: data.to_numpy()})
-        source = "Series"
         name = name or (str(data.name) if data.name is not None else "series")
-        return _frame_to_series(frame, source, period_col, value_col, name, header_offset=0,
-                                decimal=decimal, fiscal_start=fiscal_start)
+        return _frame_to_series(series_frame(data, period_col, value_col), "Series", period_col,
+                                value_col, name, header_offset=0, decimal=decimal,
+                                fiscal_start=fiscal_start, options=API_OPTIONS)
     if isinstance(data, pd.DataFrame):
-        return _frame_to_series(
-            data, "DataFrame", period_col, value_col, name or "series", header_offset=0,
-            decimal=decimal, fiscal_start=fiscal_start,
-        )
+        frame, value_col = index_frame(data, period_col, value_col)
+        return _frame_to_series(frame, "DataFrame", period_col, value_col, name or "series",
+                                header_offset=0, decimal=decimal, fiscal_start=fiscal_start,
+                                options=API_OPTIONS)
     from bayesgrowth.data.csvfile import read_csv_file
 
     path = Path(data)
@@ -353,9 +361,10 @@ def _frame_to_series(
     header_offset: int,
     decimal: str = "auto",
     fiscal_start: int | None = None,
+    options: tuple[str, str] = ("--period-col", "--value-col"),
 ) -> GrowthSeries:
-    frame = require_columns(frame, source, ((period_col, "--period-col"),
-                                            (value_col, "--value-col")))
+    """``options`` name the settings of the two columns in a missing column's message."""
+    frame = require_columns(frame, source, zip((period_col, value_col), options, strict=True))
     # Rows as the user counts them: CSV line numbers (header = 1), or DataFrame positions.
     rows = [i + header_offset for i in range(len(frame))]
     return _from_columns(
@@ -373,8 +382,15 @@ def _frame_to_series(
     )
 
 
-def as_series(data: GrowthSeries | str | Path | pd.DataFrame | pd.Series) -> GrowthSeries:
-    """Return ``data`` if it is a series already, else read it with the defaults."""
+def as_series(data: GrowthSeries | str | Path | pd.DataFrame | pd.Series,
+              argument: str = "data") -> GrowthSeries:
+    """Return ``data`` if it is a series already, else read it with the defaults.
+
+    ``argument`` is the parameter's name a refusal of ``data``'s type names.
+    """
+    from bayesgrowth.data.pandas_input import check_data
+
     if isinstance(data, GrowthSeries):
         return data
+    check_data(data, argument)
     return read_series(data)

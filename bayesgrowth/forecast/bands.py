@@ -7,14 +7,17 @@ draws (a forecast of the exact engine takes its bands from the mixture instead).
 
 from __future__ import annotations
 
+import math
+import numbers
 from collections.abc import Sequence
 
 import numpy as np
 import pandas as pd
 
+from bayesgrowth.config import check_count
 from bayesgrowth.forecast.means import mean_of_draws
 
-__all__ = ["band_columns", "band_probabilities", "check_horizon", "draws_table",
+__all__ = ["band_columns", "band_probabilities", "check_horizon", "check_target", "draws_table",
            "interval_summary", "prob_at_least"]
 
 
@@ -31,10 +34,18 @@ def band_probabilities(level: float) -> list[float]:
 
 
 def check_horizon(horizon) -> int:
-    """Validate a horizon: a whole number of periods >= 1."""
-    if int(horizon) != horizon or horizon < 1:
-        raise ValueError(f"horizon must be a whole number of periods >= 1, got {horizon}")
-    return int(horizon)
+    """Validate a horizon: a whole number of periods >= 1 (``4.0`` is taken; ``"4"`` is not).
+
+    Examples
+    --------
+    >>> check_horizon(4.0)
+    4
+    """
+    try:
+        return check_count(horizon, "horizon", 1)
+    except ValueError:
+        raise ValueError(
+            f"horizon must be a whole number of periods >= 1, got {horizon!r}") from None
 
 
 def band_columns(draws: np.ndarray, levels, prefix: str = "") -> dict:
@@ -83,8 +94,27 @@ def draws_table(periods: Sequence[str], draws: np.ndarray, curve_draws: np.ndarr
     })
 
 
+def check_target(target) -> float:
+    """Validate a target: a finite number above 0, in the series' units.
+
+    Raises
+    ------
+    ValueError
+        For zero, a negative number, ``nan``, infinity, a string or ``None``.
+    """
+    if not (isinstance(target, numbers.Real) and not isinstance(target, bool)
+            and math.isfinite(target) and target > 0):
+        raise ValueError(f"target must be a finite value above 0, in the series' units, got "
+                         f"{target!r}")
+    return float(target)
+
+
 def prob_at_least(periods: Sequence[str], draws: np.ndarray, target: float) -> pd.Series:
-    """Share of the draws of each period at least ``target``, indexed by period."""
+    """Share of the draws of each period at least ``target``, indexed by period.
+
+    ``target`` is checked by :func:`check_target`.
+    """
+    target = check_target(target)
     return pd.Series((draws >= target).mean(axis=0),
                      index=pd.Index(list(periods), name="period"), name="probability")
 

@@ -9,10 +9,11 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from bayesgrowth.config import DEFAULT_LEVELS, check_levels
+from bayesgrowth.config import DEFAULT_LEVELS, check_count, check_levels
 from bayesgrowth.forecast.bands import (
     band_probabilities,
     check_horizon,
+    check_target,
     draws_table,
     interval_summary,
     prob_at_least,
@@ -179,11 +180,13 @@ class Forecast:
         return self.periods.index(period)
 
     def prob_exceeds(self, target: float) -> pd.Series:
-        """Posterior probability that the value in each future period is at least ``target``."""
+        """Posterior probability that the value in each future period is at least ``target``.
+
+        ``target`` is a finite value above 0, in the series' units.
+        """
         if self.exact is not None:
             e = self.exact
-            with np.errstate(divide="ignore"):
-                log_target = np.full(self.horizon, np.log(target) if target > 0 else -np.inf)
+            log_target = np.full(self.horizon, np.log(check_target(target)))
             prob = 1.0 - mixture_cdf(e["weight"], e["mean"], e["value_sd"], log_target)
             return pd.Series(prob, index=pd.Index(self.periods, name="period"),
                              name="probability")
@@ -302,8 +305,9 @@ def forecast(
         if isinstance(fit, PooledFit):
             return forecast_pooled(fit, horizon, levels=levels, seed=seed)
     horizon = check_horizon(horizon)
+    fit.series.check_horizon(horizon, "horizon=")  # a calendar past 9999, before any work
     levels = check_levels(levels)
-    seed = fit.seed if seed is None else int(seed)
+    seed = fit.seed if seed is None else check_count(seed, "seed", 0)
     t = fit.series.future_t(horizon)
     exact = None
     if fit.state_space is not None:

@@ -18,7 +18,7 @@ import numpy as np
 import pandas as pd
 
 from bayesgrowth.config import DEFAULT_LEVELS, DEFAULT_MODEL, PREDICTIVE_DRAWS, check_levels
-from bayesgrowth.data.series import GrowthSeries
+from bayesgrowth.data.series import GrowthSeries, as_series
 from bayesgrowth.forecast.bands import band_columns
 from bayesgrowth.forecast.means import mean_of_draws
 from bayesgrowth.forecast.prior_draws import sample_prior
@@ -187,8 +187,9 @@ def prior_predictive(
     Parameters
     ----------
     series : GrowthSeries
-        Only its calendar, length and the values the default priors anchor on are
-        used; the fit's data do not enter the draws.
+        Or what :func:`~bayesgrowth.data.series.read_series` reads. Only its
+        calendar, length and the values the default priors anchor on are used; the
+        fit's data do not enter the draws.
     horizon : int
         Periods after the last observation (0 for the history alone).
     priors : Priors, optional
@@ -217,6 +218,7 @@ def prior_predictive(
     >>> prior.draws.shape[0], prior.levels
     (4000, (50, 80, 95))
     """
+    series = as_series(series, "series")
     horizon, draws = _check_sizes(horizon, draws)
     levels = check_levels(levels)
     seasonal = resolve_seasonal(seasonal, series.axis, series.t, model)

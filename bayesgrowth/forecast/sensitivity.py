@@ -22,7 +22,7 @@ import numpy as np
 import pandas as pd
 
 from bayesgrowth.config import DEFAULT_MODEL
-from bayesgrowth.data.series import GrowthSeries
+from bayesgrowth.data.series import GrowthSeries, as_series
 from bayesgrowth.forecast.bands import check_horizon
 from bayesgrowth.models.spec import ModelSpec, resolve_seasonal
 from bayesgrowth.priors import CeilingPrior, Priors
@@ -143,6 +143,8 @@ def prior_sensitivity(
     Parameters
     ----------
     series : GrowthSeries
+        Or what :func:`~bayesgrowth.data.series.read_series` reads (a path, a
+        DataFrame, a Series).
     horizon : int
         The forecast period reported is the last of ``horizon`` periods.
     model, errors, noise, seasonal, drift
@@ -185,6 +187,7 @@ def prior_sensitivity(
     >>> result.period
     '2026Q4'
     """
+    series = as_series(series, "series")
     seasonal = resolve_seasonal(seasonal, series.axis, series.t, model)
     spec = ModelSpec(model=model, errors=errors, noise=noise, seasonal=seasonal, drift=drift)
     engine = _engine(spec, engine)

@@ -143,6 +143,6 @@ def time_to_target(fc, target: float) -> TimeToTarget:
     -------
     TimeToTarget
     """
-    if not (target > 0 and math.isfinite(target)):
-        raise ValueError(f"target must be a finite value above 0, got {target}")
-    return first_passage(fc.draws, target, fc.periods)
+    from bayesgrowth.forecast.bands import check_target
+
+    return first_passage(fc.draws, check_target(target), fc.periods)

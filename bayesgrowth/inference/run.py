@@ -4,7 +4,8 @@ from __future__ import annotations
 
 import secrets
 
-from bayesgrowth.data.series import GrowthSeries
+from bayesgrowth.config import check_count
+from bayesgrowth.data.series import GrowthSeries, as_series
 from bayesgrowth.inference.exact import fit_exact
 from bayesgrowth.inference.fit import Fit
 from bayesgrowth.models.spec import ModelSpec, resolve_seasonal
@@ -13,6 +14,40 @@ from bayesgrowth.priors import Priors
 __all__ = ["ENGINES", "fit_series"]
 
 ENGINES = ("nuts", "exact")
+
+#: Sampler settings that are counts, and the least each may be.
+COUNTS = {"draws": 1, "chains": 1, "tune": 0, "cores": 1}
+
+
+def check_settings(priors, seed, settings: dict) -> None:
+    """Refuse priors that are no :class:`Priors`, and seeds or counts that are no whole numbers.
+
+    Raises
+    ------
+    TypeError
+        For ``priors`` of another type (a dict, say).
+    ValueError
+        Naming the setting: ``seed`` below 0 or not whole, ``draws``, ``chains``,
+        ``cores`` below 1, ``tune`` below 0.
+    """
+    if priors is not None and not isinstance(priors, Priors):
+        raise TypeError(
+            f"priors must be a bayesgrowth.Priors, not {type(priors).__name__}; for example "
+            "Priors(growth=GrowthPrior(center_pct=5, give_or_take_pts=10))"
+        )
+    if seed is not None:
+        check_count(seed, "seed", 0)
+    for name, least in COUNTS.items():
+        if name in settings:
+            check_count(settings[name], name, least)
+
+
+def _checked_input(series, engine: str, priors, seed, settings: dict) -> GrowthSeries:
+    """The series read (a path, a DataFrame, a Series) once the settings are checked."""
+    if engine not in ENGINES:
+        raise ValueError(f"engine must be one of {', '.join(ENGINES)}, got {engine!r}")
+    check_settings(priors, seed, settings)
+    return as_series(series, "series")
 
 
 def fit_series(
@@ -39,6 +74,8 @@ def fit_series(
     Parameters
     ----------
     series : GrowthSeries
+        Or what :func:`~bayesgrowth.data.series.read_series` reads (a path, a
+        DataFrame, a Series).
     engine : {"nuts", "exact"}
         The exact engine covers the local trend with normal noise and independent
         errors, and the exponential model with normal noise, independent or AR(1)
@@ -84,8 +121,7 @@ def fit_series(
     >>> round(float(np.median(fit.derived()["growth_per_period"])), 3)
     0.081
     """
-    if engine not in ENGINES:
-        raise ValueError(f"engine must be one of {', '.join(ENGINES)}, got {engine!r}")
+    series = _checked_input(series, engine, priors, seed, settings)
     seasonal = resolve_seasonal(seasonal, series.axis, series.t, model)
     spec = ModelSpec(model=model, errors=errors, noise=noise, seasonal=seasonal, drift=drift,
                      season_drift=season_drift)

@@ -18,7 +18,7 @@ import numpy as np
 import pandas as pd
 
 from bayesgrowth.config import DEFAULT_LEVELS
-from bayesgrowth.data.series import GrowthSeries
+from bayesgrowth.data.series import GrowthSeries, as_series
 from bayesgrowth.display import fmt_weight, html_summary, text_summary
 from bayesgrowth.forecast.bands import draws_table, prob_at_least
 from bayesgrowth.forecast.summaries import forecast_headline, forecast_html, forecast_text
@@ -70,9 +70,10 @@ def fit_models(
 
     Parameters
     ----------
-    series : GrowthSeries
+    series : GrowthSeries or what :func:`~bayesgrowth.data.series.read_series` reads
     models : sequence of str, optional
-        Curve names; default every one of :func:`registered_models`.
+        Curve names, or one string of them separated by commas; default every one
+        of :func:`registered_models`.
     engine : {"auto", "nuts"}
         ``auto``: the exact engine where it applies (the local trend and the plain
         exponential model), NUTS for the rest; ``nuts``: NUTS for every model.
@@ -106,6 +107,9 @@ def fit_models(
 
     if engine not in ("auto", "nuts"):
         raise ValueError(f"engine must be 'auto' or 'nuts', got {engine!r}")
+    series = as_series(series, "series")
+    if isinstance(models, str):  # "exponential,local-trend", as the command line takes them
+        models = [m.strip() for m in models.split(",")]
     names = list(registered_models() if models is None else models)
     if not names:
         raise ValueError("name at least one model")
