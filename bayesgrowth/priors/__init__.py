@@ -75,7 +75,7 @@ Student-t noise
 from __future__ import annotations
 
 import math
-from dataclasses import asdict, dataclass, field, fields
+from dataclasses import MISSING, asdict, dataclass, field, fields
 
 from bayesgrowth.priors.resolved import NU_ALPHA, NU_BETA, ResolvedPriors
 from bayesgrowth.priors.stated import (
@@ -106,6 +106,10 @@ __all__ = [
     "ResolvedPriors",
     "SeasonalPrior",
 ]
+
+
+def _article(word: str) -> str:
+    return "an" if word[0] in "AEIOU" else "a"
 
 
 @dataclass(frozen=True)
@@ -147,6 +151,19 @@ class Priors:
     persistence: PersistencePrior = field(default_factory=PersistencePrior)
     local_trend: LocalTrendPrior = field(default_factory=LocalTrendPrior)
     seasonal: SeasonalPrior = field(default_factory=SeasonalPrior)
+
+    def __post_init__(self) -> None:
+        """Refuse a field of the wrong kind (``Priors(GrowthPrior(...))`` would set ``initial``)."""
+        for f in fields(self):
+            value, kind = getattr(self, f.name), f.default_factory
+            if kind is not MISSING and not isinstance(value, kind):
+                name = kind.__name__
+                raise TypeError(
+                    f"Priors {f.name} must be {_article(name)} {name}, not "
+                    f"{type(value).__name__}; write Priors({f.name}={name}(...)), by keyword")
+        if self.reference_period is not None and not isinstance(self.reference_period, str):
+            raise TypeError("Priors reference_period must be a period label such as '2024Q1', "
+                            f"not {type(self.reference_period).__name__}")
 
     def _ceiling_centre(self, series) -> float:
         """The ceiling prior's centre: the stated market size, or a multiple of the latest value."""

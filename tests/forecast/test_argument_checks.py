@@ -78,3 +78,17 @@ def test_priors_must_be_a_priors_object(demo):
 def test_models_named_in_one_string_are_each_fitted(demo):
     fits = bg.fit_models(demo, "exponential, local-trend", seed=1)
     assert list(fits) == ["exponential", "local-trend"]
+
+
+@pytest.mark.parametrize(("given", "message"), [
+    ({"growth": 5}, r"^Priors growth must be a GrowthPrior, not int; write "
+                    r"Priors\(growth=GrowthPrior\(\.\.\.\)\), by keyword$"),
+    ({"initial": bg.GrowthPrior(center_pct=5, give_or_take_pts=10)},
+     r"^Priors initial must be an InitialValuePrior, not GrowthPrior"),
+    ({"reference_period": 2024}, r"^Priors reference_period must be a period label"),
+])
+def test_priors_of_the_wrong_kind_are_refused_naming_the_field(given, message):
+    with pytest.raises(TypeError, match=message):
+        bg.Priors(**given)
+    stated = bg.GrowthPrior(center_pct=5, give_or_take_pts=10)
+    assert bg.Priors(growth=stated).growth is stated
