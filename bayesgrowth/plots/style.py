@@ -283,7 +283,10 @@ def legend(ax: Axes, handles=None, labels=None, *, where: str = "below", **kwarg
         whatever the series does: "below" spreads the entries over columns
         (``ncol``, default 2) under the x axis' labels, "right" lists them beside
         the axes. "inside" (upper left, on a white panel) hides what is behind it:
-        only for charts whose corner is known to be empty.
+        only for charts whose corner is known to be empty. Outside the axes, the
+        legend needs room in the figure: on a figure without a layout engine (one
+        made by ``plt.subplots()`` on an ``ax`` passed in) the constrained layout is
+        switched on, which makes that room when the figure is drawn.
     **kwargs
         Passed to :meth:`matplotlib.axes.Axes.legend`. Call it once the x axis'
         ticks and label are set: "below" is placed under them.
@@ -302,6 +305,8 @@ def legend(ax: Axes, handles=None, labels=None, *, where: str = "below", **kwarg
     else:
         raise ValueError(f"where must be inside, right or below, got {where!r}")
     style.update(kwargs)
+    if where != "inside" and ax.figure.get_layout_engine() is None:
+        ax.figure.set_layout_engine("constrained")  # else the legend is cut off when saved
     made = ax.legend(**style) if handles is None else ax.legend(handles, labels, **style)
     made.set_zorder(10)
     if where == "below":

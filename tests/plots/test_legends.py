@@ -90,3 +90,16 @@ def test_backtest_model_title_is_wrapped_inside_the_figure(demo):
     title = model_figure(result, "default")._suptitle
     _inside_the_figure(title)
     assert " ".join(result.descriptions["default"].split()) in " ".join(title.get_text().split())
+
+
+def test_legend_on_a_users_own_figure_stays_inside_the_saved_image(demo, tmp_path):
+    import matplotlib.pyplot as plt
+
+    fc = bg.forecast(bg.fit_series(demo, engine="exact", seed=1), 4)
+    fig, ax = plt.subplots(figsize=(7, 4))  # no layout engine: the legend below needs room
+    plot_fan(fc, ax=ax)
+    fig.savefig(tmp_path / "fan.png", dpi=60)
+    box = ax.get_legend().get_window_extent()
+    assert box.y0 >= 0 and box.x0 >= 0 and box.x1 <= fig.bbox.x1, box
+    _clear_of_the_plot(ax)
+    plt.close(fig)
