@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import re
+
 from bayesgrowth.config import (
     DEFAULT_CHAINS,
     DEFAULT_DRAWS,
@@ -119,8 +121,19 @@ class GrowthModel:
         DatetimeIndex or a PeriodIndex); see :func:`bayesgrowth.read_series`, which
         also takes other column names.
         """
-        self.fit_: Fit = fit_series(
-            as_series(data),
+        try:
+            fitted = self._fit(as_series(data))
+        except ValueError as err:  # the library says noise=, this class's keyword is noise_dist=
+            words = re.sub(r"\bnoise(=| must be)", r"noise_dist\1", str(err))
+            if words == str(err):
+                raise
+            raise ValueError(words) from err
+        self.fit_: Fit = fitted
+        return self
+
+    def _fit(self, series) -> Fit:
+        return fit_series(
+            series,
             engine=self.engine,
             priors=self.priors or Priors(),
             seed=self.seed,
@@ -131,7 +144,6 @@ class GrowthModel:
             noise=self.noise_dist,
             **self._settings(),
         )
-        return self
 
     def forecast(self, horizon: int, *, levels=DEFAULT_LEVELS, seed: int | None = None) -> Forecast:
         """Posterior predictive forecast ``horizon`` periods past the last observation.

@@ -23,7 +23,7 @@ from bayesgrowth.display import fmt_weight, html_summary, text_summary
 from bayesgrowth.forecast.bands import draws_table, prob_at_least
 from bayesgrowth.forecast.summaries import forecast_headline, forecast_html, forecast_text
 from bayesgrowth.seeds import stream
-from bayesgrowth.select.loo import ModelComparison, compare_models
+from bayesgrowth.select.loo import ModelComparison, check_named, compare_models
 
 __all__ = [
     "AveragedForecast",
@@ -251,6 +251,7 @@ def average_forecasts(
     -------
     AveragedForecast
     """
+    check_named(forecasts, "forecasts", "forecast")
     if not forecasts:
         raise ValueError("give at least one forecast to average")
     names = tuple(forecasts)
@@ -267,9 +268,7 @@ def average_forecasts(
         fc = forecasts[name]
         if fc.periods != first.periods or fc.fit.series.fingerprint() != (
                 first.fit.series.fingerprint()):
-            raise ValueError(
-                "forecasts to average must be of the same series and the same future periods"
-            )
+            raise ValueError("forecasts to average must be of the same series and periods")
         if tuple(fc.levels) != tuple(first.levels):
             raise ValueError("forecasts to average must have the same band levels")
     n = int(n_draws or max(forecasts[m].draws.shape[0] for m in names))
@@ -387,6 +386,7 @@ def model_average(
     """
     from bayesgrowth.forecast.forecast import forecast
 
+    check_named(fits)
     excluded = {name: "; ".join(fit.diagnostics.problems) or "diagnostics failed"
                 for name, fit in fits.items() if not fit.diagnostics.ok}
     if len(excluded) == len(fits):  # nothing left to average: keep all, each flagged failed

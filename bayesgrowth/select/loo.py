@@ -32,6 +32,7 @@ __all__ = [
     "SMALL_DIFF",
     "LooResult",
     "ModelComparison",
+    "check_named",
     "compare_models",
     "loo",
 ]
@@ -269,6 +270,22 @@ class ModelComparison:
         return out
 
 
+def check_named(items, what: str = "fits", kind: str = "fit") -> None:
+    """Refuse ``items`` that are no mapping of model names to results, saying what to give.
+
+    Raises
+    ------
+    TypeError
+        For a list, a tuple or a single result: the names label the table's rows.
+    """
+    if not isinstance(items, Mapping):
+        raise TypeError(
+            f"{what} must be a mapping of model names to {kind}s, such as "
+            f"{{'default': {kind}_a, 'exponential': {kind}_b}} (the names label the rows), "
+            f"got {type(items).__name__}"
+        )
+
+
 def _check_same_data(fits: Mapping) -> None:
     prints = {name: fit.series.fingerprint() for name, fit in fits.items()}
     if len(set(prints.values())) > 1:
@@ -306,6 +323,7 @@ def compare_models(fits: Mapping) -> ModelComparison:
     >>> bg.compare_models(fits).best
     'free'
     """
+    check_named(fits)
     if not fits:
         raise ValueError("give at least one fitted model to compare")
     _check_same_data(fits)

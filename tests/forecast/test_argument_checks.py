@@ -92,3 +92,20 @@ def test_priors_of_the_wrong_kind_are_refused_naming_the_field(given, message):
         bg.Priors(**given)
     stated = bg.GrowthPrior(center_pct=5, give_or_take_pts=10)
     assert bg.Priors(growth=stated).growth is stated
+
+
+@pytest.mark.parametrize("call", ["compare_models", "model_average"])
+def test_fits_given_as_a_list_are_refused_asking_for_names(demo_exact_fit, call):
+    args = (4,) if call == "model_average" else ()
+    with pytest.raises(TypeError, match=r"^fits must be a mapping of model names to fits, "
+                                        r"such as \{'default': fit_a, .*got list$"):
+        getattr(bg, call)([demo_exact_fit, demo_exact_fit], *args)
+
+
+def test_growth_model_names_its_own_noise_keyword(demo):
+    # the library's messages say noise=; GrowthModel's keyword is noise_dist=
+    with pytest.raises(ValueError, match=r"use noise_dist='normal' with it"):
+        bg.GrowthModel(noise_dist="student-t").fit(demo)
+    with pytest.raises(ValueError, match=r"^noise_dist must be one of normal, student-t, "
+                                         r"got 'cauchy'$"):
+        bg.GrowthModel(noise_dist="cauchy", model="exponential").fit(demo)
