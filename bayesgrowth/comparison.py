@@ -154,6 +154,16 @@ def compare_to_forecast(forecast: Forecast, *, max_drop: int | None = None) -> C
     Returns
     -------
     Comparison
+
+    Examples
+    --------
+    >>> import bayesgrowth as bg
+    >>> fc = bg.GrowthModel(seed=1).fit(bg.load_demo()).forecast(8)
+    >>> comparison = bg.compare_to_forecast(fc)
+    >>> comparison.table[["variant", "value_at_horizon", "prob_at_least"]].shape
+    (30, 3)
+    >>> comparison.table["variant"].iloc[0]
+    'log-linear'
     """
     series = forecast.fit.series
     t_ref = forecast.fit.priors.t_ref

@@ -67,3 +67,20 @@ def test_leave_one_out_variants_are_named_by_the_period_left_out(demo):
     loo = [f for f in comp.fits if f.variant.startswith("log-linear, leave out")]
     for a, b in zip(loo, raw, strict=True):
         assert a.forecast(2) == pytest.approx(b.forecast(2))
+
+
+def test_a_comparison_draws_on_the_users_axes(demo):
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    import bayesgrowth as bg
+
+    comparison = bg.compare_to_forecast(bg.GrowthModel(seed=1).fit(demo).forecast(4))
+    fig, ax = plt.subplots()
+    assert bg.plot_compared(comparison, ax=ax, unit="Revenue") is ax
+    # a line per least-squares variant, the Bayesian median, the data, the forecast start
+    assert len(ax.get_lines()) >= len(comparison.fits) + 3
+    assert ax.get_xlabel() == "Period (quarterly)" and ax.get_ylabel() == "Revenue"
+    plt.close(fig)

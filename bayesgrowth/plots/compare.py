@@ -23,11 +23,13 @@ from bayesgrowth.plots.style import (
     format_value_axis,
     legend,
     mark_forecast_start,
+    period_label,
     set_period_ticks,
     style_axes,
+    unit_label,
 )
 
-__all__ = ["comparison_figure", "plot_comparison"]
+__all__ = ["comparison_figure", "plot_compared", "plot_comparison"]
 
 #: Colour, line style and legend text of each main least-squares variant.
 _MAIN_STYLES = {
@@ -217,14 +219,47 @@ def _period_ticks(ax: Axes, t_obs: np.ndarray, period_labels) -> None:
     set_period_ticks(ax, ticks, names, max_ticks=MAX_TICKS)
 
 
-def comparison_figure(comparison, unit: str | None = None):
-    """A new figure of a :class:`~bayesgrowth.comparison.Comparison`: curves, range, band.
+def plot_compared(comparison, *, ax: Axes | None = None, unit: str | None = None) -> Axes:
+    """Draw a :class:`~bayesgrowth.comparison.Comparison`: data, curves, their range, the band.
 
     Parameters
     ----------
     comparison : Comparison
+        From :func:`~bayesgrowth.comparison.compare_to_forecast`.
+    ax : matplotlib.axes.Axes, optional
+        Axes to draw on; a new figure is made when omitted.
     unit : str, optional
         Y-axis label (default: the series' value column if known, else "Value").
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+
+    Examples
+    --------
+    >>> import bayesgrowth as bg
+    >>> fc = bg.GrowthModel(seed=1).fit(bg.load_demo()).forecast(8)
+    >>> ax = bg.plot_compared(bg.compare_to_forecast(fc))
+    >>> ax.get_xlabel()
+    'Period (quarterly)'
+    """
+    from bayesgrowth.plots.fan import describe_model
+
+    fc = comparison.forecast
+    series = fc.fit.series
+    all_t = list(series.t) + list(fc.t)
+    ax = plot_comparison(series.t, series.values, comparison.fits, fc.horizon, band=fc.table,
+                         ax=ax, period_labels=dict(zip(all_t, series.axis.labels(all_t),
+                                                       strict=True)),
+                         unit=unit_label(unit, series))
+    ax.set_xlabel(period_label(series))
+    ax.set_title(f"{literal(series.name)}: least-squares point forecasts beside the Bayesian band\n"
+                 f"Bayesian model: {describe_model(fc)}", fontsize=11)
+    return ax
+
+
+def comparison_figure(comparison, unit: str | None = None):
+    """A new figure of a :class:`~bayesgrowth.comparison.Comparison` (see :func:`plot_compared`).
 
     Returns
     -------
@@ -232,16 +267,6 @@ def comparison_figure(comparison, unit: str | None = None):
     """
     import matplotlib.pyplot as plt
 
-    from bayesgrowth.plots.fan import describe_model
-    from bayesgrowth.plots.style import unit_label
-
-    fc = comparison.forecast
-    series = fc.fit.series
     fig, ax = plt.subplots(figsize=(9.5, 6.4), layout="constrained")
-    all_t = list(series.t) + list(fc.t)
-    plot_comparison(series.t, series.values, comparison.fits, fc.horizon, band=fc.table, ax=ax,
-                    period_labels=dict(zip(all_t, series.axis.labels(all_t), strict=True)),
-                    unit=unit_label(unit, series))
-    ax.set_title(f"{literal(series.name)}: least-squares point forecasts beside the Bayesian band\n"
-                 f"Bayesian model: {describe_model(fc)}", fontsize=11)
+    plot_compared(comparison, ax=ax, unit=unit)
     return fig

@@ -18,6 +18,7 @@ from bayesgrowth.plots.style import (
     format_value_axis,
     legend_in_reading_order,
     mark_forecast_start,
+    period_label,
     set_period_ticks,
     style_axes,
 )
@@ -178,8 +179,7 @@ def plot_fan(forecast, ax: Axes | None = None, *, show_curve: bool = False,
     ax.set_ylim(bottom=0)
     mark_forecast_start(ax, t_obs[-1] + 0.5)
     format_value_axis(ax, unit, series)
-    ax.set_xlabel(f"Period ({series.axis.frequency})" if series.axis.frequency != "per period"
-                  else "Period")
+    ax.set_xlabel(period_label(series))
     ax.set_title(title or _title(forecast), fontsize=11)
     legend_in_reading_order(ax, ncol=3)
     return ax

@@ -48,6 +48,7 @@ __all__ = [
     "legend",
     "legend_in_reading_order",
     "mark_forecast_start",
+    "period_label",
     "set_period_ticks",
     "style_axes",
     "unit_label",
@@ -167,6 +168,12 @@ def _calendar(labels: Sequence[str]) -> tuple[Sequence[int], list[int]]:
         starts = [i for i, s in enumerate(labels) if _MONTH.match(str(s)).group(1) == "01"]
         return (1, 2, 3, 6, 12, 24, 36, 60, 120), starts
     return (1, 2, 5, 10, 20, 25, 50, 100, 200, 500, 1000), []
+
+
+def period_label(series) -> str:
+    """The x axis' label: "Period (quarterly)", or "Period" for numbered periods."""
+    frequency = series.axis.frequency
+    return f"Period ({frequency})" if frequency != "per period" else "Period"
 
 
 def set_period_ticks(ax: Axes, t, labels: Sequence[str], max_ticks: int = 8) -> None:
