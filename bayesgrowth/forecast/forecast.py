@@ -168,14 +168,16 @@ class Forecast:
     def _column(self, period: str | int | None) -> int:
         if period is None:
             return self.horizon - 1
-        if isinstance(period, int | np.integer):
+        if isinstance(period, float | np.floating) and float(period).is_integer():
+            period = int(period)  # a step written 2.0
+        if isinstance(period, int | np.integer) and not isinstance(period, bool):
             if not 1 <= period <= self.horizon:
                 raise ValueError(f"step must be between 1 and {self.horizon}, got {period}")
             return int(period) - 1
         if period not in self.periods:
             raise ValueError(
-                f"period {period!r} is not in the forecast ({self.periods[0]} to "
-                f"{self.periods[-1]})"
+                f"period {period!r} is not in the forecast: give a label from "
+                f"{self.periods[0]!r} to {self.periods[-1]!r} or a step from 1 to {self.horizon}"
             )
         return self.periods.index(period)
 
@@ -225,7 +227,8 @@ class Forecast:
         """Growth per period, per year and doubling time, with 80% and 95% credible intervals.
 
         Doubling time (periods) is ``ln 2 / ln(1+g)``; draws with ``g <= 0`` never
-        double and count as infinite, so its upper bounds can be ``inf``.
+        double and count as infinite, so its upper bounds and its mean can be ``inf``
+        (read the median).
         """
         g = self.fit.derived()["growth_per_period"]
         rows = {"growth_per_period": interval_summary(g)}

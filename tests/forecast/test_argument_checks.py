@@ -1,6 +1,7 @@
 """Arguments a notebook user gets wrong are refused with a message naming them."""
 
 import math
+import re
 
 import pytest
 
@@ -109,3 +110,14 @@ def test_growth_model_names_its_own_noise_keyword(demo):
     with pytest.raises(ValueError, match=r"^noise_dist must be one of normal, student-t, "
                                          r"got 'cauchy'$"):
         bg.GrowthModel(noise_dist="cauchy", model="exponential").fit(demo)
+
+
+def test_a_period_is_a_label_or_a_step(state_space_forecast):
+    fc = state_space_forecast
+    assert (fc.value_draws(2.0) == fc.value_draws(2)).all()
+    assert (fc.value_draws(fc.periods[1]) == fc.value_draws(2)).all()
+    for given in (2.5, True, "2030Q1"):
+        with pytest.raises(ValueError, match=rf"^period {re.escape(repr(given))} is not in the "
+                                             r"forecast: give a label from '2026Q1' to '2026Q4' "
+                                             r"or a step from 1 to 4$"):
+            fc.value_draws(given)
