@@ -5,6 +5,7 @@ from __future__ import annotations
 import dataclasses
 import re
 
+import pandas as pd
 import pytest
 
 import bayesgrowth as bg
@@ -179,3 +180,21 @@ def test_error_messages_echo_numbers_as_typed():
 
     with pytest.raises(ValueError, match=r"got -4$"):
         NoisePrior(typical_pct=-4.0)
+
+
+def test_series_repr_is_one_line_whatever_its_length(demo):
+    text = repr(demo)
+    _short(text)
+    assert text == ("GrowthSeries('Larkspur Instruments revenue (demo)': 20 quarterly values, "
+                    "2021Q1 to 2025Q4, from 1,180 to 4,950; source 'demo_revenue.csv')")
+    long = bg.read_series(pd.Series(range(1, 601), dtype=float), name="long")
+    assert len(repr(long).splitlines()) == 1 and "600 values, 0 to 599" in repr(long)
+
+
+def test_prior_predictive_repr_names_series_model_periods_and_coverage(demo):
+    pp = bg.prior_predictive(demo, seed=1, horizon=4)
+    text = repr(pp)
+    _short(text)
+    assert demo.name in text and pp.spec.label() in text
+    assert f"{pp.periods[0]} to {pp.periods[-1]}: the history and 4 periods" in text
+    assert f"{round(100 * pp.coverage(95))}% of the observed values inside the 95%" in text

@@ -16,9 +16,10 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from bayesgrowth.data.columns import require_columns
 from bayesgrowth.data.csvfile import read_csv_file, separator_of
 from bayesgrowth.data.excel import EXCEL_SUFFIXES
-from bayesgrowth.data.series import GrowthSeries, InputError, _from_columns, require_columns
+from bayesgrowth.data.series import GrowthSeries, InputError, _from_columns
 
 __all__ = ["read_panel", "Panel", "invented_panel", "panel_frame"]
 

@@ -11,6 +11,7 @@ import numpy as np
 import pandas as pd
 
 from bayesgrowth.data.periods import LAST_YEAR, PeriodAxis, PeriodError, parse_periods
+from bayesgrowth.display import fmt_number
 
 __all__ = ["GrowthSeries", "InputError", "read_series", "MIN_OBSERVATIONS", "MAX_VALUE"]
 
@@ -57,6 +58,14 @@ class GrowthSeries:
     source: str = "DataFrame"
     gaps: tuple[str, ...] = field(default=())
     notes: tuple[str, ...] = field(default=())
+
+    def __repr__(self) -> str:
+        frequency = self.axis.frequency
+        count = f"{self.n} {frequency} values" if frequency != "per period" else f"{self.n} values"
+        gaps = f" ({len(self.gaps)} missing)" if self.gaps else ""
+        return (f"GrowthSeries({self.name!r}: {count}, {self.labels[0]} to {self.labels[-1]}{gaps}"
+                f", from {fmt_number(self.values[0])} to {fmt_number(self.values[-1])}; "
+                f"source {self.source!r})")
 
     @property
     def n(self) -> int:
@@ -310,48 +319,6 @@ def read_series(
                             decimal=decimal, fiscal_start=fiscal_start)
 
 
-def require_columns(frame: pd.DataFrame, source: str, columns) -> pd.DataFrame:
-    """Refuse a table without one of ``columns`` (pairs of name and the option that sets it).
-
-    A column named alike but for case and surrounding spaces (``Period`` for
-    ``period``), when only one is, is taken for it. A file that seems to start with a
-    title line above the header (``attrs["title_line"]``,
-    :func:`bayesgrowth.data.formats.title_line`) is told to delete that line instead;
-    a workbook of several sheets (``attrs["sheets"]``) is told which sheet was read
-    and that ``--sheet`` names another.
-
-    Returns
-    -------
-    pandas.DataFrame
-        ``frame`` with such columns renamed to the names asked for (a new table;
-        ``frame`` itself is left as it is).
-    """
-    from bayesgrowth.data.formats import title_message
-
-    title = frame.attrs.get("title_line")
-    columns = list(columns)
-    if title and title["title"] in {col for col, _ in columns}:
-        title = None  # a header naming one column only, not a title
-    for col, option in columns:
-        alike = [c for c in frame.columns if str(c).strip().casefold() == col.casefold()]
-        if col not in frame.columns and len(alike) == 1:  # 'Period' for period
-            frame = frame.rename(columns={alike[0]: col})
-        elif col not in frame.columns:
-            if title and (col in title["header"] or title["fits"]):
-                raise InputError(title_message(source, title))
-            have = ", ".join(repr(str(c)) for c in frame.columns)
-            sheets = frame.attrs.get("sheets", [])
-            where = f" in the sheet {frame.attrs['sheet']!r}" if len(sheets) > 1 else ""
-            other = (f", or another of its {len(sheets)} sheets ("
-                     + ", ".join(repr(n) for n in sheets) + ") with --sheet"
-                     if len(sheets) > 1 else "")
-            raise InputError(
-                f"{source}: no column {col!r}{where} (columns are {have}); name the right one "
-                f"with {option}{other}"
-            )
-    return frame
-
-
 def _frame_to_series(
     frame: pd.DataFrame,
     source: str,
@@ -364,6 +331,8 @@ def _frame_to_series(
     options: tuple[str, str] = ("--period-col", "--value-col"),
 ) -> GrowthSeries:
     """``options`` name the settings of the two columns in a missing column's message."""
+    from bayesgrowth.data.columns import require_columns
+
     frame = require_columns(frame, source, zip((period_col, value_col), options, strict=True))
     # Rows as the user counts them: CSV line numbers (header = 1), or DataFrame positions.
     rows = [i + header_offset for i in range(len(frame))]

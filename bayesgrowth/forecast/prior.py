@@ -19,6 +19,7 @@ import pandas as pd
 
 from bayesgrowth.config import DEFAULT_LEVELS, DEFAULT_MODEL, PREDICTIVE_DRAWS, check_levels
 from bayesgrowth.data.series import GrowthSeries, as_series
+from bayesgrowth.display import fmt_percent, text_summary
 from bayesgrowth.forecast.bands import band_columns
 from bayesgrowth.forecast.means import mean_of_draws
 from bayesgrowth.forecast.prior_draws import sample_prior
@@ -69,6 +70,17 @@ class PriorPredictive:
     parameters: dict
     seed: int
     sampler: str
+
+    def __repr__(self) -> str:
+        level = max(self.levels)
+        title = (f"Prior predictive of {self.series.name!r} ({self.spec.label()}), "
+                 f"{self.draws.shape[0]} draws")
+        return text_summary(title, [
+            f"{self.periods[0]} to {self.periods[-1]}: the history and {self.horizon} periods "
+            "past it",
+            f"{fmt_percent(self.coverage(level), 0)} of the observed values inside the "
+            f"{level}% prior band",
+        ])
 
     @property
     def in_history(self) -> np.ndarray:
