@@ -37,11 +37,12 @@ def _case(name: str, min_train: int) -> dict:
     t1 = time.perf_counter()
     origins = RollingOrigin(HORIZON, min_train).n_splits(demo.n)
     if name == "single":
-        fit = bg.fit_series(demo, engine="nuts", seed=1)
+        fit = bg.fit_series(demo, engine="nuts", seed=1, model="exponential")
         bg.forecast(fit, HORIZON)
     elif name == "loop":
         for train_idx, _ in RollingOrigin(HORIZON, min_train).split(demo.n):
-            fit = bg.fit_series(demo.take(train_idx), engine="nuts", seed=int(train_idx[-1]))
+            fit = bg.fit_series(demo.take(train_idx),
+                                engine="nuts", seed=int(train_idx[-1]), model="exponential")
             bg.forecast(fit, HORIZON)
     else:
         backtest(demo, methods=(name,), horizon=HORIZON, min_train=min_train)

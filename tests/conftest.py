@@ -57,7 +57,7 @@ def demo():
 def demo_exact_fit(demo):
     from bayesgrowth.inference import fit_series
 
-    return fit_series(demo, engine="exact", seed=7)
+    return fit_series(demo, engine="exact", seed=7, model="exponential")
 
 
 @pytest.fixture(autouse=True)

@@ -104,7 +104,7 @@ def test_model_comparison_repr_names_the_best_and_its_weight(demo):
 
 
 def demo_exact_fit_of(series, priors=None):
-    return bg.fit_series(series, engine="exact", seed=3, priors=priors)
+    return bg.fit_series(series, engine="exact", seed=3, priors=priors, model="exponential")
 
 
 @pytest.fixture(scope="module")
@@ -154,7 +154,8 @@ def test_pooled_fit_and_forecast_reprs_give_the_group_and_the_total(pooled_fit):
 
 def test_model_average_reprs_name_the_weights_and_the_last_band(demo):
     fits = {"exponential": demo_exact_fit_of(demo),
-            "local trend": bg.fit_series(demo, engine="exact", seed=3, model="local-trend")}
+            "local trend": bg.fit_series(demo, engine="exact", seed=3, model="local-trend",
+                                         drift="random-walk", seasonal=False)}
     avg = bg.model_average(fits, 4, seed=1)
     text = repr(avg)
     _short(text)

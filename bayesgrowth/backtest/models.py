@@ -350,8 +350,13 @@ def resolve_models(models) -> tuple[ModelChoice, ...]:
 
 
 def choices_from_methods(methods, model_options: dict | None) -> tuple[ModelChoice, ...]:
-    """One model per method name, each named by its method, sharing ``model_options``."""
-    return tuple(ModelChoice(m, m, dict(model_options or {}) if m in BAYESIAN else {})
+    """One model per method name, each named by its method, sharing ``model_options``.
+
+    The Bayesian methods fit the exponential curve unless ``model_options`` name a model
+    (this form's meaning from before models were named).
+    """
+    shared = {"model": "exponential", **(model_options or {})}
+    return tuple(ModelChoice(m, m, dict(shared) if m in BAYESIAN else {})
                  for m in check_methods(methods))
 
 

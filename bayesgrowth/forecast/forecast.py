@@ -295,7 +295,7 @@ def forecast(
     Examples
     --------
     >>> import bayesgrowth as bg
-    >>> fc = bg.forecast(bg.fit_series(bg.load_demo(), engine="exact", seed=1), 4)
+    >>> fc = bg.forecast(bg.fit_series(bg.load_demo(), seed=1), 4)
     >>> fc.periods
     ['2026Q1', '2026Q2', '2026Q3', '2026Q4']
     >>> fc.table.columns[:4].tolist()

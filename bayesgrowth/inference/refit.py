@@ -290,8 +290,8 @@ class NutsRefitter:
         if not np.array_equal(positions, np.arange(positions.size)):
             from bayesgrowth.inference.run import fit_series
 
-            return fit_series(train, priors=self.priors, seed=int(seed), draws=self.draws,
-                              tune=self.tune, chains=self.chains,
+            return fit_series(train, engine="nuts", priors=self.priors, seed=int(seed),
+                              draws=self.draws, tune=self.tune, chains=self.chains,
                               target_accept=self.target_accept, **spec.to_dict())
         weight = np.zeros(self.series.n)
         weight[positions] = 1.0

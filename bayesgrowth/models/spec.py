@@ -81,9 +81,10 @@ class ModelSpec:
         Seasonal factors (quarterly or monthly data only); ``"drifting"`` is short for
         ``seasonal=True, season_drift=True``.
     drift : {"random-walk", "mean-reverting", "adaptive"}
-        For ``local-trend`` only: whether the growth rate wanders freely, reverts
-        to a long-run rate (growth fades with a half-life), or either, weighted by
-        the evidence (``adaptive``, exact engine only).
+        For ``local-trend`` only (other curves record ``"random-walk"``): whether the
+        growth rate wanders freely, reverts to a long-run rate (growth fades with a
+        half-life), or either, weighted by the evidence (``adaptive``, exact engine
+        only).
     season_drift : bool
         For ``local-trend`` with seasonal factors only: the factors drift slowly, a
         seasonal random walk around them (Harvey 1989; Durbin & Koopman 2012, sec.
@@ -102,6 +103,8 @@ class ModelSpec:
         object.__setattr__(self, "errors", _choice(self.errors, ERRORS, "errors"))
         object.__setattr__(self, "noise", _choice(self.noise, NOISES, "noise"))
         object.__setattr__(self, "drift", _choice(self.drift, DRIFTS, "drift"))
+        if not self.family.drifts:  # a curve has no drifting growth: one spelling of it
+            object.__setattr__(self, "drift", "random-walk")
         if isinstance(self.seasonal, str) and self.seasonal.lower() == "drifting":
             object.__setattr__(self, "season_drift", True)  # the option's one-word form
         object.__setattr__(self, "seasonal", bool(self.seasonal))

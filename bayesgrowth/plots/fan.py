@@ -137,7 +137,7 @@ def plot_fan(forecast, ax: Axes | None = None, *, show_curve: bool = False,
     --------
     >>> import matplotlib.pyplot as plt
     >>> import bayesgrowth as bg
-    >>> fc = bg.forecast(bg.fit_series(bg.load_demo(), engine="exact", seed=1), 4)
+    >>> fc = bg.forecast(bg.fit_series(bg.load_demo(), seed=1), 4)
     >>> ax = bg.plot_fan(fc)
     >>> ax.get_title().splitlines()[0]
     'Larkspur Instruments revenue (demo)'

@@ -377,9 +377,8 @@ def model_average(
     --------
     >>> import bayesgrowth as bg
     >>> series = bg.load_demo()
-    >>> fits = {"exponential": bg.fit_series(series, engine="exact", seed=1),
-    ...         "local trend": bg.fit_series(series, engine="exact", seed=1,
-    ...                                      model="local-trend")}
+    >>> fits = {"exponential": bg.fit_series(series, model="exponential", seed=1),
+    ...         "local trend": bg.fit_series(series, seed=1)}
     >>> avg = bg.model_average(fits, 4, seed=1)
     >>> sorted(avg.forecasts), avg.averaged.table.shape[0]
     (['exponential', 'local trend'], 4)

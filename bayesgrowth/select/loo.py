@@ -318,8 +318,8 @@ def compare_models(fits: Mapping) -> ModelComparison:
     >>> import bayesgrowth as bg
     >>> series = bg.load_demo()
     >>> flat = bg.Priors(growth=bg.GrowthPrior(0, 0.5))  # growth held near zero
-    >>> fits = {"free": bg.fit_series(series, engine="exact", seed=1),
-    ...         "flat": bg.fit_series(series, engine="exact", seed=1, priors=flat)}
+    >>> fits = {"free": bg.fit_series(series, model="exponential", seed=1),
+    ...         "flat": bg.fit_series(series, model="exponential", seed=1, priors=flat)}
     >>> bg.compare_models(fits).best
     'free'
     """

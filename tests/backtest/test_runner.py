@@ -319,7 +319,8 @@ def test_compiled_refit_of_another_model_samples_the_direct_posterior(demo):
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         compiled = refit.fit(np.arange(14), seed=5)
-        direct = fit_series(demo.take(np.arange(14)), errors="ar1", seed=6)
+        direct = fit_series(demo.take(np.arange(14)), errors="ar1", seed=6,
+                            engine="nuts", model="exponential")
     assert compiled.settings["sampler"] == "nutpie"
     assert compiled.diagnostics.ok and direct.diagnostics.ok
     a, b = compiled.flat(), direct.flat()

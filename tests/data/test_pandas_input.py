@@ -24,7 +24,7 @@ def test_values_that_are_no_series_are_refused_naming_the_argument(data):
     with pytest.raises(TypeError, match=r"^data must be"):
         bg.GrowthModel().fit(data)
     with pytest.raises(TypeError, match=r"^series must be"):
-        bg.fit_series(data, engine="exact")
+        bg.fit_series(data, engine="exact", model="exponential")
 
 
 @pytest.mark.parametrize("index", ["period", "datetime"])
@@ -68,10 +68,12 @@ def test_every_entry_point_reads_a_frame_as_the_series_it_holds(demo, table):
         by_frame = bg.backtest(table, horizon=2, min_train=16, methods=["naive"])
     by_series = bg.backtest(demo, horizon=2, min_train=16, methods=["naive"])
     pd.testing.assert_frame_equal(by_frame.scores, by_series.scores)
-    fit = bg.fit_series(table.set_index("period")["value"], engine="exact", seed=3)
+    fit = bg.fit_series(table.set_index("period")["value"], engine="exact", seed=3,
+                        model="exponential")
     np.testing.assert_array_equal(fit.series.values, demo.values)
     np.testing.assert_array_equal(
         fit.derived()["growth_per_period"],
-        bg.fit_series(demo, engine="exact", seed=3).derived()["growth_per_period"])
+        bg.fit_series(demo, engine="exact", seed=3,
+                      model="exponential").derived()["growth_per_period"])
     prior = bg.prior_predictive(table, 2, seed=1)
     assert prior.series.labels == demo.labels

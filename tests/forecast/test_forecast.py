@@ -109,6 +109,7 @@ def test_fixed_curve_with_independent_errors_says_its_bands_ran_narrow(demo, dem
 
     assert forecast(demo_exact_fit, 4).summary()["cautions"][0] == FIXED_CURVE_CAUTION
     ar1 = fit_series(demo, engine="exact", model="exponential", errors="ar1", seed=1)
-    default = fit_series(demo, engine="exact", seed=1, model="local-trend")
+    default = fit_series(demo, engine="exact", seed=1, model="local-trend",
+                         drift="random-walk", seasonal=False)
     for fit in (ar1, default):
         assert FIXED_CURVE_CAUTION not in forecast(fit, 4).summary()["cautions"]

@@ -86,20 +86,22 @@ def test_fixed_initial_value_matches_scipy_grid_integration():
     z = integrate.simpson(integrate.simpson(dens, x=u), x=b)
     mb = integrate.simpson(integrate.simpson(B * dens, x=u), x=b) / z
     assert m == pytest.approx(mb, rel=1e-7)
-    fit = fit_series(series, engine="exact", priors=Priors(initial=InitialValuePrior(0)), seed=1)
+    fit = fit_series(series, engine="exact", priors=Priors(initial=InitialValuePrior(0)), seed=1,
+                     model="exponential")
     assert np.all(fit.derived()["initial_value"] == pytest.approx(100.0))
 
 
 def test_same_seed_same_draws_and_different_seed_differs():
-    a = fit_series(SHORT, engine="exact", seed=5).flat()["log1p_g"]
-    b = fit_series(SHORT, engine="exact", seed=5).flat()["log1p_g"]
-    c = fit_series(SHORT, engine="exact", seed=6).flat()["log1p_g"]
+    a = fit_series(SHORT, engine="exact", seed=5, model="exponential").flat()["log1p_g"]
+    b = fit_series(SHORT, engine="exact", seed=5, model="exponential").flat()["log1p_g"]
+    c = fit_series(SHORT, engine="exact", seed=6, model="exponential").flat()["log1p_g"]
     np.testing.assert_array_equal(a, b)
     assert not np.array_equal(a, c)
 
 
 def test_reference_period_moves_the_initial_value():
-    fit = fit_series(SHORT, engine="exact", seed=1, priors=Priors(reference_period="2023Q2"))
+    fit = fit_series(SHORT, engine="exact", seed=1, priors=Priors(reference_period="2023Q2"),
+                     model="exponential")
     assert fit.priors.t_ref == 5
     assert np.median(fit.derived()["initial_value"]) == pytest.approx(171, rel=0.05)
 
@@ -144,7 +146,8 @@ def test_too_few_exact_draws_are_named_as_such_not_as_a_sampler_failure(model):
 
     # Independent draws have no chains to disagree; only their number can fall short (the
     # 400 effective draws of Vehtari et al. 2021, the threshold the NUTS checks use).
-    few = fit_series(TWELVE, engine="exact", model=model, seed=1, draws=10, chains=4)
+    few = fit_series(TWELVE, engine="exact", model=model, seed=1, draws=10, chains=4,
+                     drift="random-walk", seasonal=False)
     assert not few.diagnostics.ok
     assert few.diagnostics.problems == (
         "only 40 independent draws of the exact posterior (numbers read from the draws need "
@@ -155,5 +158,6 @@ def test_too_few_exact_draws_are_named_as_such_not_as_a_sampler_failure(model):
     text = str(caught[0].message)
     assert caught[0].category is SamplingWarning
     assert "more draws" in text and "exact engine" not in text and "target_accept" not in text
-    enough = fit_series(TWELVE, engine="exact", model=model, seed=1, draws=100, chains=4)
+    enough = fit_series(TWELVE, engine="exact", model=model, seed=1, draws=100, chains=4,
+                        drift="random-walk", seasonal=False)
     assert enough.diagnostics.ok and enough.diagnostics.problems == ()

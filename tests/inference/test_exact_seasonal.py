@@ -123,13 +123,15 @@ def test_conditional_draws_follow_the_textbook_normal_conditional(errors):
 @pytest.mark.parametrize("errors", ["independent", "ar1"])
 def test_fit_draws_have_the_nuts_shapes_and_feed_the_forecast(errors):
     series = _simulated(20, errors, seed=2)
-    fit = fit_series(series, engine="exact", seasonal=True, errors=errors, seed=4)
+    fit = fit_series(series, engine="exact", seasonal=True, errors=errors, seed=4,
+                     model="exponential")
     assert fit.engine == "exact" and fit.spec == ModelSpec(errors=errors, seasonal=True)
     assert fit.diagnostics.ok
     assert fit.posterior["season"].shape == (4, 1000, 4)
     expected = {"log_a", "log1p_g", "sigma", "season"} | ({"phi"} if errors == "ar1" else set())
     assert set(fit.posterior) == expected
-    again = fit_series(series, engine="exact", seasonal=True, errors=errors, seed=4)
+    again = fit_series(series, engine="exact", seasonal=True, errors=errors, seed=4,
+                       model="exponential")
     np.testing.assert_array_equal(again.posterior["season"], fit.posterior["season"])
     assert fit.log_likelihood().shape == (4, 1000, series.n)
     fc = bg.forecast(fit, 8)

@@ -37,6 +37,8 @@ def _quarterly(values, start_year=2015):
 def _fit(series, **kw):
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")  # short chains: ESS warnings expected; checked below
+        kw = {"engine": "nuts", "model": "exponential", "drift": "random-walk",
+              "seasonal": False, **kw}
         return fit_series(series, seed=kw.pop("seed", 1), **SHORT, **kw)
 
 
@@ -163,7 +165,7 @@ def test_every_curve_with_ar1_errors_samples_the_demo_cleanly(curve):
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         fit = fit_series(load_demo(), model=curve, errors="ar1", seed=1,
-                         priors=NO_LEVEL_SHOCKS)
+                         priors=NO_LEVEL_SHOCKS, engine="nuts", drift="random-walk", seasonal=False)
     d = fit.diagnostics
     assert d.divergences == 0, d
     assert d.max_rhat <= 1.01 and d.min_ess_bulk >= 400, d

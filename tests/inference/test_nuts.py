@@ -13,7 +13,7 @@ pytestmark = pytest.mark.slow
 
 @pytest.fixture(scope="module")
 def nuts_fit(demo):
-    return fit_series(demo, engine="nuts", seed=3)
+    return fit_series(demo, engine="nuts", seed=3, model="exponential")
 
 
 def _ess(x):
@@ -76,14 +76,14 @@ def test_four_step_predictive_matches_exact(demo, nuts_fit):
 
 
 def test_same_seed_reproduces_draws(demo, nuts_fit):
-    again = fit_series(demo, engine="nuts", seed=3)
+    again = fit_series(demo, engine="nuts", seed=3, model="exponential")
     np.testing.assert_array_equal(again.posterior["log1p_g"], nuts_fit.posterior["log1p_g"])
 
 
 def test_failed_diagnostics_warn_loudly(demo):
     # 25 draws per chain cannot reach 400 effective draws: the fit must say so.
     with pytest.warns(SamplingWarning, match="diagnostics failed"):
-        fit = fit_series(demo, engine="nuts", seed=1, draws=25, tune=200)
+        fit = fit_series(demo, engine="nuts", seed=1, draws=25, tune=200, model="exponential")
     assert not fit.diagnostics.ok
     assert any("ESS" in p for p in fit.diagnostics.problems)
 

@@ -76,7 +76,7 @@ def test_simulation_based_calibration_of_the_exact_engine():
         priors = Priors(initial=InitialValuePrior(value=1000.0))
         fit = fit_series(series, engine="exact", model="local-trend", drift="random-walk",
                          priors=priors, seed=int(rng.integers(1 << 30)), draws=n_draws,
-                         chains=1)
+                         chains=1, seasonal=False)
         flat = fit.flat()
         ranks["sigma_growth"].append(int((flat["sigma_growth"] < theta[2]).sum()))
         ranks["log1p_g"].append(int((flat["log1p_g"] < g0).sum()))

@@ -55,7 +55,8 @@ def pooled_runs():
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
             pooled = fit_pooled(panel, seed=seed, draws=1000, tune=1000, chains=4, cores=2)
-        alone = {n: fit_series(s, engine="exact", seed=seed, draws=500) for n, s in panel.items()}
+        alone = {n: fit_series(s, engine="exact", seed=seed, draws=500,
+                               model="exponential") for n, s in panel.items()}
         runs.append((panel, truth, future, pooled, alone))
     return runs
 
@@ -191,7 +192,7 @@ def test_one_series_agrees_with_single_series_model_under_the_implied_prior():
     p = Priors().resolve(series)
     wide = 1.0  # proposal prior sd on log(1+g); the posterior sd is about 0.03
     ref = fit_series(series, engine="exact", seed=4, draws=25_000,
-                     priors=Priors(growth=GrowthPrior(0.0, 100 * wide)))
+                     priors=Priors(growth=GrowthPrior(0.0, 100 * wide)), model="exponential")
     b_ref = ref.posterior["log1p_g"].ravel()
     w = _marginal_growth_prior(b_ref, p.log1p_g_mu, p.log1p_g_sd, GroupPrior().tau_scale)
     w = w / stats.norm.pdf(b_ref, loc=0.0, scale=wide)

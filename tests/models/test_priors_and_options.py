@@ -47,11 +47,14 @@ def test_ceiling_below_the_data_is_refused(demo):
 def test_exact_engine_refuses_other_models(demo):
     # the exponential curve is covered with normal noise only (any errors, seasons or not)
     with pytest.raises(ValueError, match="with or without seasonal factors.*use engine='nuts'"):
-        fit_series(demo, engine="exact", errors="ar1", noise="student-t", seed=1)
+        fit_series(demo, engine="exact", errors="ar1", noise="student-t", seed=1,
+                   model="exponential")
     with pytest.raises(ValueError, match="use engine='nuts'"):
-        fit_series(demo, engine="exact", noise="student-t", seasonal=True, seed=1)
+        fit_series(demo, engine="exact", noise="student-t", seasonal=True, seed=1,
+                   model="exponential")
     with pytest.raises(ValueError, match="use engine='nuts'"):
-        fit_series(demo, engine="exact", model="local-trend", errors="ar1", seed=1)
+        fit_series(demo, engine="exact", model="local-trend", errors="ar1", seed=1,
+                   drift="random-walk", seasonal=False)
     with pytest.raises(ValueError, match="use engine='nuts'"):
         fit_series(demo, engine="exact", model="logistic", seed=1)
 
@@ -63,7 +66,7 @@ def test_seasonal_needs_a_seasonal_calendar():
 
     s = read_series(pd.DataFrame({"period": [2001, 2002, 2003, 2004], "value": [1, 2, 3, 4.0]}))
     with pytest.raises(ValueError, match="quarterly or monthly"):
-        fit_series(s, seasonal=True, seed=1)
+        fit_series(s, seasonal=True, seed=1, engine="nuts", model="exponential")
 
 
 def test_defaults_resolve_and_describe(demo):

@@ -52,7 +52,7 @@ def toy_fit(demo):
     with _registered(), warnings.catch_warnings():
         warnings.simplefilter("ignore")
         yield fit_series(demo, engine="nuts", model=TOY, seed=5, draws=150, tune=150,
-                         chains=2, progressbar=False)
+                         chains=2, progressbar=False, drift="random-walk", seasonal=False)
 
 
 def test_toy_is_unknown_until_registered():

@@ -79,9 +79,10 @@ def test_models_chart_legend_gives_each_weight_with_its_interval(demo):
     from bayesgrowth.priors import InitialValuePrior, Priors
     from bayesgrowth.select import model_average
 
-    fits = {"default": fit_series(demo, engine="exact", seed=2),
+    fits = {"default": fit_series(demo, engine="exact", seed=2, model="exponential"),
             "fixed start": fit_series(demo, engine="exact", seed=2,
-                                      priors=Priors(initial=InitialValuePrior(0)))}
+                                      priors=Priors(initial=InitialValuePrior(0)),
+                                      model="exponential")}
     ma = model_average(fits, 4, seed=2)
     ax = plot_model_bands(ma.forecasts, ma.averaged, comparison=ma.comparison, unit="Revenue")
     texts = _legend_texts(ax)

@@ -36,7 +36,8 @@ def _clear_of_the_plot(ax) -> None:
 
 @pytest.mark.parametrize("horizon", [4, 60])
 def test_fan_legend_covers_nothing_drawn(horizon):
-    fc = bg.forecast(bg.fit_series(_declining(), engine="exact", seed=1), horizon)
+    fc = bg.forecast(bg.fit_series(_declining(), engine="exact", seed=1,
+                                   model="exponential"), horizon)
     _clear_of_the_plot(plot_fan(fc, target=3000.0))
 
 
@@ -49,7 +50,7 @@ def test_backtest_legends_cover_nothing_drawn(demo):
 
 
 def test_models_chart_legend_covers_nothing_and_writes_a_tiny_weight_readably(demo):
-    fits = {"default": bg.fit_series(demo, engine="exact", seed=2),
+    fits = {"default": bg.fit_series(demo, engine="exact", seed=2, model="exponential"),
             "exponential": bg.fit_series(demo, engine="exact", seed=2, model="exponential")}
     forecasts = {name: bg.forecast(fit, 4) for name, fit in fits.items()}
     # an optimiser leaves a weight it drives to zero at about 1e-17, not at 0
@@ -73,7 +74,7 @@ def test_a_long_scenario_label_is_wrapped_inside_the_figure(demo):
     from bayesgrowth.forecast.scenario import Scenario, apply_scenario
     from bayesgrowth.plots.scenario import draw_scenario
 
-    fc = bg.forecast(bg.fit_series(demo, engine="exact", seed=1), 8)
+    fc = bg.forecast(bg.fit_series(demo, engine="exact", seed=1, model="exponential"), 8)
     sc = Scenario(growth_factor=0.5, growth_from="2027Q1", shock_pct=-10, shock_at="2026Q3")
     words = sc.describe(fc.periods)
     ax = draw_scenario(plot_fan(fc, target=9000.0), apply_scenario(fc, sc), words)
@@ -95,7 +96,7 @@ def test_backtest_model_title_is_wrapped_inside_the_figure(demo):
 def test_legend_on_a_users_own_figure_stays_inside_the_saved_image(demo, tmp_path):
     import matplotlib.pyplot as plt
 
-    fc = bg.forecast(bg.fit_series(demo, engine="exact", seed=1), 4)
+    fc = bg.forecast(bg.fit_series(demo, engine="exact", seed=1, model="exponential"), 4)
     fig, ax = plt.subplots(figsize=(7, 4))  # no layout engine: the legend below needs room
     plot_fan(fc, ax=ax)
     fig.savefig(tmp_path / "fan.png", dpi=60)

@@ -17,9 +17,10 @@ from bayesgrowth.select import model_average
 @pytest.fixture(scope="module")
 def average(demo):
     # Two exact exponential fits that differ by the initial-value prior (fast).
-    fits = {"default": fit_series(demo, engine="exact", seed=2),
+    fits = {"default": fit_series(demo, engine="exact", seed=2, model="exponential"),
             "fixed start": fit_series(demo, engine="exact", seed=2,
-                                      priors=Priors(initial=InitialValuePrior(0)))}
+                                      priors=Priors(initial=InitialValuePrior(0)),
+                                      model="exponential")}
     return model_average(fits, 4, seed=2)
 
 

@@ -18,8 +18,9 @@ from bayesgrowth.select import average_forecasts, fit_models, model_average, reg
 def two_forecasts(demo):
     # Two exponential models that disagree about growth: the data's own (about
     # 7% a quarter) and one held near 2% a quarter by a tight prior.
-    free = fit_series(demo, engine="exact", seed=5)
-    slow = fit_series(demo, engine="exact", seed=5, priors=Priors(growth=GrowthPrior(2, 0.3)))
+    free = fit_series(demo, engine="exact", seed=5, model="exponential")
+    slow = fit_series(demo, engine="exact", seed=5, priors=Priors(growth=GrowthPrior(2, 0.3)),
+                      model="exponential")
     return {"free": forecast(free, 8, seed=5), "slow": forecast(slow, 8, seed=5)}
 
 
@@ -92,16 +93,16 @@ def test_bad_weights_are_refused(two_forecasts, weights, match):
 
 
 def test_forecasts_of_different_series_are_refused(demo, two_forecasts):
-    short = forecast(fit_series(demo.head(10), engine="exact", seed=1), 8)
+    short = forecast(fit_series(demo.head(10), engine="exact", seed=1, model="exponential"), 8)
     with pytest.raises(ValueError, match="same series"):
         average_forecasts({"a": two_forecasts["free"], "b": short}, {"a": 0.5, "b": 0.5})
 
 
 def test_model_average_uses_stacking_weights(demo):
     fits = {
-        "free": fit_series(demo, engine="exact", seed=4),
+        "free": fit_series(demo, engine="exact", seed=4, model="exponential"),
         "slow": fit_series(demo, engine="exact", seed=4,
-                           priors=Priors(growth=GrowthPrior(2, 0.3))),
+                           priors=Priors(growth=GrowthPrior(2, 0.3)), model="exponential"),
     }
     ma = model_average(fits, 4, seed=4)
     assert ma.averaged.weights == pytest.approx(ma.comparison.weights)

@@ -33,11 +33,11 @@ def three_exact_fits(demo):
     # Three exponential models of the demo series that differ by their priors:
     # the default, a fixed initial value, and a growth prior pinned near zero.
     return {
-        "default": fit_series(demo, engine="exact", seed=3),
+        "default": fit_series(demo, engine="exact", seed=3, model="exponential"),
         "fixed start": fit_series(demo, engine="exact", seed=3,
-                                  priors=Priors(initial=InitialValuePrior(0))),
+                                  priors=Priors(initial=InitialValuePrior(0)), model="exponential"),
         "no growth": fit_series(demo, engine="exact", seed=3,
-                                priors=Priors(growth=GrowthPrior(0, 0.5))),
+                                priors=Priors(growth=GrowthPrior(0, 0.5)), model="exponential"),
     }
 
 
@@ -143,14 +143,14 @@ def test_an_outlying_period_is_named_as_influential():
     values = 100 * 1.06 ** np.arange(16) * np.exp(rng.normal(0, 0.02, 16))
     values[10] *= 2.0  # one period doubled, as by a one-off deal
     series = _quarterly(values)
-    res = loo(fit_series(series, engine="exact", seed=2))
+    res = loo(fit_series(series, engine="exact", seed=2, model="exponential"))
     assert int(np.argmax(res.pareto_k)) == 10 and res.max_k > 0.7
     assert np.sum(res.pareto_k > 0.7) == 1
     assert any("period 2022Q3 is unreliable" in m for m in res.messages())
 
 
 def test_fits_to_different_series_are_refused(demo, demo_exact_fit):
-    other = fit_series(demo.head(12), engine="exact", seed=1)
+    other = fit_series(demo.head(12), engine="exact", seed=1, model="exponential")
     with pytest.raises(ValueError, match="same observations"):
         compare_models({"a": demo_exact_fit, "b": other})
     with pytest.raises(ValueError, match="at least one"):
