@@ -121,17 +121,21 @@ def _parse(argv: Sequence[str] | None) -> argparse.Namespace:
     return check_data_options(args, _FILES)
 
 
-def _notes(args: argparse.Namespace, records: Sequence[SeriesRecord], wall: float) -> list[str]:
+def _notes(args: argparse.Namespace, records: Sequence[SeriesRecord], wall: float,
+           kept: Sequence[str] = ()) -> list[str]:
     import statsmodels
+
+    earlier = (f" Rows of {', '.join(kept)} kept from an earlier run on the same series "
+               f"({args.keep}/scores_by_series.csv)." if kept else "")
 
     return [
         f"{data_note(args, records)} A series is growing when every value is above zero and "
         "the mean of its last four training values exceeds 1.1 times the mean of its first "
         "four. Each method forecasts the official hold-out from the training part.",
         "",
-        f"Methods: {', '.join(args.methods)} (statsmodels {statsmodels.__version__}); "
+        f"Methods run: {', '.join(args.methods)} (statsmodels {statsmodels.__version__}); "
         f"{args.jobs} process(es), {wall / 60:.1f} min wall time; {args.bootstrap} bootstrap "
-        "resamples.",
+        f"resamples.{earlier}",
     ]
 
 
@@ -172,7 +176,8 @@ def _run(args: argparse.Namespace) -> int:
         methods += [m for m in dict.fromkeys(earlier["method"]) if m not in methods]
         scores = pd.concat([scores, earlier], ignore_index=True)
     summary = summarise(scores, n_boot=args.bootstrap, seed=args.seed, methods=methods)
-    _write(Path(args.out), scores, summary, _notes(args, records, wall), args.force)
+    kept = methods[len(args.methods):]
+    _write(Path(args.out), scores, summary, _notes(args, records, wall, kept), args.force)
     shown = summary[summary["group"] == "pooled"]
     cols = ["method", "series", "failed", "inside_80", "inside_95", "msis", "scaled_crps",
             "smape", "mase", "seconds_mean", "cpu_seconds_mean"]
