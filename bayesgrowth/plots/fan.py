@@ -15,6 +15,7 @@ from bayesgrowth.plots.style import (
     draw_history,
     draw_nested_bands,
     draw_target,
+    fit_title_to_axes,
     format_value_axis,
     legend_in_reading_order,
     mark_forecast_start,
@@ -181,5 +182,6 @@ def plot_fan(forecast, ax: Axes | None = None, *, show_curve: bool = False,
     format_value_axis(ax, unit, series)
     ax.set_xlabel(period_label(series))
     ax.set_title(title or _title(forecast), fontsize=11)
+    fit_title_to_axes(ax)
     legend_in_reading_order(ax, ncol=3)
     return ax

@@ -44,6 +44,7 @@ __all__ = [
     "draw_history",
     "draw_nested_bands",
     "draw_target",
+    "fit_title_to_axes",
     "format_value_axis",
     "legend",
     "legend_in_reading_order",
@@ -330,6 +331,27 @@ def fit_to_figure_width(text) -> None:
         A text placed in its figure, such as the return of ``Figure.suptitle``.
     """
     _wrap_to_width([text], text.get_window_extent, text.figure)
+
+
+def fit_title_to_axes(ax: Axes) -> None:
+    """Wrap the title of ``ax`` into lines until it fits the figure, centred on the axes.
+
+    On a narrow figure of the user's, a long title would otherwise run off both edges.
+    Each of the title's own lines is filled afresh at a narrower width each round, so
+    the lines break between words, once.
+    """
+    title, fig = ax.title, ax.figure
+    lines = title.get_text().splitlines()
+    # a layout engine moves the axes' centre right of the figure's to make room for the
+    # value axis' labels: by up to about 7% of the width on the package's charts
+    room = 0.84 * fig.bbox.width
+    longest = max(map(len, lines), default=0)
+    for _ in range(12):
+        width = title.get_window_extent().width
+        if width <= room or longest <= 16:
+            return
+        longest = max(16, min(longest - 1, int(longest * room / width)))
+        title.set_text("\n".join(textwrap.fill(line, longest) for line in lines))
 
 
 def _wrap_to_width(texts, extent, fig, *, share: float = 0.97, shortest: int = 16) -> None:

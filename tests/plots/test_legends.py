@@ -104,3 +104,19 @@ def test_legend_on_a_users_own_figure_stays_inside_the_saved_image(demo, tmp_pat
     assert box.y0 >= 0 and box.x0 >= 0 and box.x1 <= fig.bbox.x1, box
     _clear_of_the_plot(ax)
     plt.close(fig)
+
+
+@pytest.mark.parametrize("chart", ["fan", "comparison"])
+def test_a_long_title_on_a_users_narrow_figure_is_wrapped_inside_it(demo, chart):
+    import matplotlib.pyplot as plt
+
+    fc = bg.forecast(bg.fit_series(demo, seed=1), 8)  # the default: a long model description
+    fig, ax = plt.subplots()  # matplotlib's default 6.4 by 4.8 inches
+    if chart == "fan":
+        plot_fan(fc, ax=ax)
+    else:
+        bg.plot_compared(bg.compare_to_forecast(fc), ax=ax)
+    _inside_the_figure(ax.title)  # drawn with the constrained layout the legend asks for
+    assert " ".join(ax.get_title().split()).endswith(
+        "independent errors, normal noise, seasonal factors")  # wrapped, not cut
+    plt.close(fig)
