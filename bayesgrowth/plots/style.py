@@ -340,11 +340,8 @@ def fit_title_to_axes(ax: Axes) -> None:
     Each of the title's own lines is filled afresh at a narrower width each round, so
     the lines break between words, once.
     """
-    title, fig = ax.title, ax.figure
-    lines = title.get_text().splitlines()
-    # a layout engine moves the axes' centre right of the figure's to make room for the
-    # value axis' labels: by up to about 7% of the width on the package's charts
-    room = 0.84 * fig.bbox.width
+    title, lines = ax.title, ax.title.get_text().splitlines()
+    room = 0.84 * ax.figure.bbox.width  # a layout moves the axes right by up to ~7% of it
     longest = max(map(len, lines), default=0)
     for _ in range(12):
         width = title.get_window_extent().width
