@@ -122,28 +122,24 @@ class GrowthModel:
         also takes other column names.
         """
         try:
-            fitted = self._fit(as_series(data))
+            self.fit_: Fit = fit_series(
+                as_series(data),
+                engine=self.engine,
+                priors=self.priors or Priors(),
+                seed=self.seed,
+                model=self.model,
+                drift=self.drift,
+                seasonal=self.seasonal,
+                errors=self.errors,
+                noise=self.noise_dist,
+                **self._settings(),
+            )
         except ValueError as err:  # the library says noise=, this class's keyword is noise_dist=
             words = re.sub(r"\bnoise(=| must be)", r"noise_dist\1", str(err))
             if words == str(err):
                 raise
             raise ValueError(words) from err
-        self.fit_: Fit = fitted
         return self
-
-    def _fit(self, series) -> Fit:
-        return fit_series(
-            series,
-            engine=self.engine,
-            priors=self.priors or Priors(),
-            seed=self.seed,
-            model=self.model,
-            drift=self.drift,
-            seasonal=self.seasonal,
-            errors=self.errors,
-            noise=self.noise_dist,
-            **self._settings(),
-        )
 
     def forecast(self, horizon: int, *, levels=DEFAULT_LEVELS, seed: int | None = None) -> Forecast:
         """Posterior predictive forecast ``horizon`` periods past the last observation.

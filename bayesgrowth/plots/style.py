@@ -337,27 +337,21 @@ def fit_title_to_axes(ax: Axes) -> None:
     """Wrap the title of ``ax`` into lines until it fits the figure, centred on the axes.
 
     On a narrow figure of the user's, a long title would otherwise run off both edges.
-    Each of the title's own lines is filled afresh at a narrower width each round, so
-    the lines break between words, once.
+    A layout engine moves the axes right by up to about 7% of the figure's width, so
+    the title keeps to 84% of it.
     """
-    title, lines = ax.title, ax.title.get_text().splitlines()
-    room = 0.84 * ax.figure.bbox.width  # a layout moves the axes right by up to ~7% of it
-    longest = max(map(len, lines), default=0)
-    for _ in range(12):
-        width = title.get_window_extent().width
-        if width <= room or longest <= 16:
-            return
-        longest = max(16, min(longest - 1, int(longest * room / width)))
-        title.set_text("\n".join(textwrap.fill(line, longest) for line in lines))
+    _wrap_to_width([ax.title], ax.title.get_window_extent, ax.figure, share=0.84)
 
 
 def _wrap_to_width(texts, extent, fig, *, share: float = 0.97, shortest: int = 16) -> None:
     """Wrap the longest line of ``texts`` until ``extent()`` fits ``share`` of the figure.
 
     A long label (a scenario described in words, a model's description) would
-    otherwise run off the saved image's edges. Each round wraps the lines of the
-    text with the longest line at three quarters of that line's length.
+    otherwise run off the saved image's edges. Each round fills the lines the text
+    with the longest line had at first afresh, at three quarters of that length, so
+    the lines break between words, once.
     """
+    first = {id(t): t.get_text().splitlines() for t in texts}
     for _ in range(16):
         if extent().width <= share * fig.bbox.width:
             return
@@ -367,7 +361,7 @@ def _wrap_to_width(texts, extent, fig, *, share: float = 0.97, shortest: int = 1
             return
         width = max(shortest, int(longest * 0.75))
         text.set_text("\n".join(textwrap.fill(line, width) if len(line) > width else line
-                                for line in text.get_text().splitlines()))
+                                for line in first[id(text)]))
 
 
 _LEVEL = re.compile(r"(\d+(?:\.\d+)?)% .*band")
